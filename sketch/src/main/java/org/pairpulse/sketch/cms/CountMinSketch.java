@@ -1,0 +1,267 @@
+package org.pairpulse.sketch.cms;
+
+import java.io.DataInput;
+import java.io.DataOutput;
+import java.io.IOException;
+import java.util.Arrays;
+import org.pairpulse.sketch.hash.ItemHash;
+
+/**
+ * A count-min sketch of non-negative weights keyed by 64-bit keys (Cormode and Muthukrishnan 2005).
+ *
+ * <h2>Contract</h2>
+ * For a key with true weight {@code f}, {@link #estimate} never undercounts ({@code estimate >= f}, as
+ * long as weights are non-negative), and with probability at least {@code 1 - delta()} it overcounts by
+ * at most {@link #maxError()} {@code = epsilon() * totalWeight()}. {@link #lowerBound} and
+ * {@link #upperBound} bracket the true weight under that probability.
+ *
+ * <h2>Design</h2>
+ * <pre>
+ *   counters: double[depth * width], row r occupies [r * width, (r + 1) * width)
+ *   width  = 2^k >= e / epsilon      (Cormode and Muthukrishnan 2005, Theorem 1)
+ *   depth  = ceil(ln(1 / delta))
+ *   column = (h1 + r * h2) mod width with h1, h2 the two 32-bit halves of mix64(key ^ seed)
+ * </pre>
+ * The row indices use double hashing, which keeps the sketch's error guarantees in practice with one
+ * 64-bit hash per update (Kirsch and Mitzenmacher 2006, "Less hashing, same performance"). Counters are
+ * doubles so that forward-decayed weights and integer weights above 2^24 stay exact enough: an
+ * integer-valued counter is exact up to 2^53.
+ *
+ * <p>Not thread-safe: one writer at a time; copy before handing to another thread.
+ *
+ * <ol>
+ *   <li>G. Cormode, S. Muthukrishnan. An improved data stream summary: the count-min sketch and its
+ *       applications. J. Algorithms 55(1), 2005.</li>
+ *   <li>C. Estan, G. Varghese. New directions in traffic measurement and accounting. SIGCOMM 2002.</li>
+ *   <li>A. Kirsch, M. Mitzenmacher. Less hashing, same performance: building a better Bloom filter.
+ *       ESA 2006.</li>
+ * </ol>
+ */
+public final class CountMinSketch {
+  private final int width;
+  private final int depth;
+  private final int mask;
+  private final long seed;
+  private final UpdateRule rule;
+  private final double[] counters;
+  private double totalWeight;
+
+  /**
+   * @param width number of counters per row, a power of two ≥ 2
+   * @param depth number of rows, 1..32
+   */
+  public CountMinSketch(int width, int depth, UpdateRule rule, long seed) {
+    if (width < 2 || Integer.bitCount(width) != 1) {
+      throw new IllegalArgumentException("width must be a power of two >= 2, got " + width);
+    }
+    if (depth < 1 || depth > 32) {
+      throw new IllegalArgumentException("depth must be in 1..32, got " + depth);
+    }
+    if ((long) width * depth > (1L << 28)) {
+      throw new IllegalArgumentException("width * depth too large: " + width + " * " + depth);
+    }
+    this.width = width;
+    this.depth = depth;
+    this.mask = width - 1;
+    this.seed = seed;
+    this.rule = rule;
+    this.counters = new double[width * depth];
+  }
+
+  /** A sketch sized by the Cormode–Muthukrishnan formulas for error {@code epsilon} and failure {@code delta}. */
+  public static CountMinSketch forError(double epsilon, double delta, UpdateRule rule, long seed) {
+    return new CountMinSketch(widthFor(epsilon), depthFor(delta), rule, seed);
+  }
+
+  /** Counters per row for relative error {@code epsilon}: ⌈e/ε⌉ rounded up to a power of two. */
+  public static int widthFor(double epsilon) {
+    if (!(epsilon > 0 && epsilon < 1)) {
+      throw new IllegalArgumentException("epsilon must be in (0, 1), got " + epsilon);
+    }
+    long minWidth = (long) Math.ceil(Math.E / epsilon);
+    if (minWidth > (1L << 26)) {
+      throw new IllegalArgumentException("epsilon " + epsilon + " needs more than 2^26 counters per row");
+    }
+    return Math.max(2, Integer.highestOneBit((int) minWidth - 1) << 1);
+  }
+
+  /** Rows for failure probability {@code delta}: ⌈ln(1/δ)⌉. */
+  public static int depthFor(double delta) {
+    if (!(delta > 0 && delta < 1)) {
+      throw new IllegalArgumentException("delta must be in (0, 1), got " + delta);
+    }
+    return Math.max(1, (int) Math.ceil(Math.log(1 / delta)));
+  }
+
+  /** Adds {@code weight ≥ 0} to {@code key}. */
+  public void add(long key, double weight) {
+    assert weight >= 0 : "negative weight " + weight;
+    long h = ItemHash.mix64(key ^ seed);
+    int h1 = (int) h;
+    int h2 = (int) (h >>> 32) | 1; // odd step: visits distinct columns in a power-of-two row
+    if (rule == UpdateRule.LINEAR) {
+      for (int row = 0, base = 0; row < depth; row++, base += width) {
+        counters[base + ((h1 + row * h2) & mask)] += weight;
+      }
+    } else {
+      double target = minOf(h1, h2) + weight;
+      for (int row = 0, base = 0; row < depth; row++, base += width) {
+        int index = base + ((h1 + row * h2) & mask);
+        if (counters[index] < target) {
+          counters[index] = target;
+        }
+      }
+    }
+    totalWeight += weight;
+  }
+
+  /** The point estimate: the smallest counter of the key's columns. Never below the true weight. */
+  public double estimate(long key) {
+    long h = ItemHash.mix64(key ^ seed);
+    return minOf((int) h, (int) (h >>> 32) | 1);
+  }
+
+  private double minOf(int h1, int h2) {
+    double min = Double.POSITIVE_INFINITY;
+    for (int row = 0, base = 0; row < depth; row++, base += width) {
+      double value = counters[base + ((h1 + row * h2) & mask)];
+      if (value < min) {
+        min = value;
+      }
+    }
+    return min;
+  }
+
+  /** Same as {@link #estimate}: the count-min estimate is an upper bound. */
+  public double upperBound(long key) {
+    return estimate(key);
+  }
+
+  /** {@code max(0, estimate − maxError())}: below the true weight with probability ≥ 1 − δ. */
+  public double lowerBound(long key) {
+    return Math.max(0, estimate(key) - maxError());
+  }
+
+  /** ε·W: the overcount bound that holds with probability ≥ 1 − δ. */
+  public double maxError() {
+    return epsilon() * totalWeight;
+  }
+
+  /** The ε this sketch guarantees: e / width. */
+  public double epsilon() {
+    return Math.E / width;
+  }
+
+  /** The δ this sketch guarantees: e^−depth. */
+  public double delta() {
+    return Math.exp(-depth);
+  }
+
+  /** W: the sum of all weights added (after merges, subtractions and scaling). */
+  public double totalWeight() {
+    return totalWeight;
+  }
+
+  public int width() {
+    return width;
+  }
+
+  public int depth() {
+    return depth;
+  }
+
+  public long seed() {
+    return seed;
+  }
+
+  public UpdateRule rule() {
+    return rule;
+  }
+
+  /** Adds {@code other} counter by counter; both must share width, depth and seed. */
+  public void merge(CountMinSketch other) {
+    requireCompatible(other);
+    for (int i = 0; i < counters.length; i++) {
+      counters[i] += other.counters[i];
+    }
+    totalWeight += other.totalWeight;
+  }
+
+  /**
+   * Subtracts {@code other}, which must have been built from a sub-stream of this sketch's stream.
+   * Linear sketches only: a conservative-update sketch is not a sum of its parts.
+   */
+  public void subtract(CountMinSketch other) {
+    requireCompatible(other);
+    if (rule != UpdateRule.LINEAR || other.rule != UpdateRule.LINEAR) {
+      throw new IllegalStateException("only linear count-min sketches can be subtracted");
+    }
+    for (int i = 0; i < counters.length; i++) {
+      counters[i] -= other.counters[i];
+    }
+    totalWeight -= other.totalWeight;
+  }
+
+  /** Multiplies every counter and the total weight by {@code factor > 0} (exact for powers of two). */
+  public void scale(double factor) {
+    if (!(factor > 0) || Double.isInfinite(factor)) {
+      throw new IllegalArgumentException("scale factor must be positive and finite, got " + factor);
+    }
+    for (int i = 0; i < counters.length; i++) {
+      counters[i] *= factor;
+    }
+    totalWeight *= factor;
+  }
+
+  public void clear() {
+    Arrays.fill(counters, 0.0);
+    totalWeight = 0;
+  }
+
+  public CountMinSketch copy() {
+    CountMinSketch copy = new CountMinSketch(width, depth, rule, seed);
+    System.arraycopy(counters, 0, copy.counters, 0, counters.length);
+    copy.totalWeight = totalWeight;
+    return copy;
+  }
+
+  /** Heap bytes of the counters (the only part that grows with the configuration). */
+  public long stateBytes() {
+    return 16L + 8L * counters.length + 48;
+  }
+
+  /** True when both sketches have the same shape, seed, rule and identical counters. */
+  public boolean sameCountersAs(CountMinSketch other) {
+    return isCompatible(other) && rule == other.rule
+        && Arrays.equals(counters, other.counters)
+        && Double.compare(totalWeight, other.totalWeight) == 0;
+  }
+
+  private boolean isCompatible(CountMinSketch other) {
+    return width == other.width && depth == other.depth && seed == other.seed;
+  }
+
+  private void requireCompatible(CountMinSketch other) {
+    if (!isCompatible(other)) {
+      throw new IllegalArgumentException(
+          "incompatible count-min sketches: " + width + "x" + depth + " seed " + seed
+              + " vs " + other.width + "x" + other.depth + " seed " + other.seed);
+    }
+  }
+
+  /** Writes counters and total; the shape is written by the owner of the sketch. */
+  public void writeCounters(DataOutput out) throws IOException {
+    out.writeDouble(totalWeight);
+    for (double counter : counters) {
+      out.writeDouble(counter);
+    }
+  }
+
+  /** Reads what {@link #writeCounters} wrote into this (same-shape) sketch. */
+  public void readCounters(DataInput in) throws IOException {
+    totalWeight = in.readDouble();
+    for (int i = 0; i < counters.length; i++) {
+      counters[i] = in.readDouble();
+    }
+  }
+}

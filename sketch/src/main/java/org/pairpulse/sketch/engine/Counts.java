@@ -1,0 +1,83 @@
+package org.pairpulse.sketch.engine;
+
+import org.pairpulse.sketch.cms.CountMinSketch;
+import org.pairpulse.sketch.stats.Estimate;
+
+/**
+ * Reads N, n_a and n_ab with bounds from an engine, as of its watermark.
+ *
+ * <p>A tracked key's count in a cell is exact since admission plus, for cells that existed before,
+ * the count-min estimate taken at admission (an upper bound). Its lower bound subtracts the inherited
+ * error: ε·W of each pane that existed at admission (windows; W only grows, so today's ε·W bounds the
+ * error at admission) or the error recorded at admission (decays). An untracked key is read from the
+ * sketches: the sum over live panes of their estimates, lower bound the sum of
+ * {@code max(0, estimate − ε·W)} per pane. Each pane's bound holds with probability ≥ 1 − δ.
+ */
+final class Counts {
+  private Counts() {}
+
+  static double baskets(PairEngine engine, HorizonState state) {
+    if (!state.isWindow()) {
+      return state.basketWeight[0] / state.scaleAt(engine.watermarkMillis);
+    }
+    double sum = 0;
+    for (int p = 0; p < state.paneCount; p++) {
+      if (state.slotLive(p)) {
+        sum += state.basketWeight[p];
+      }
+    }
+    return sum;
+  }
+
+  static Estimate item(PairEngine engine, HorizonState state, long key) {
+    int slot = engine.items.find(key);
+    return slot >= 0 ? tracked(engine, engine.items, slot, state) : sketched(engine, state.itemSketch, state, key);
+  }
+
+  static Estimate pair(PairEngine engine, HorizonState state, long key) {
+    int slot = engine.pairs.find(key);
+    return slot >= 0 ? tracked(engine, engine.pairs, slot, state) : sketched(engine, state.pairSketch, state, key);
+  }
+
+  static Estimate tracked(PairEngine engine, TrackedTable table, int slot, HorizonState state) {
+    int base = slot * table.cellCount + state.cellOffset;
+    if (!state.isWindow()) {
+      double scale = state.scaleAt(engine.watermarkMillis);
+      double upper = table.cells[base];
+      double lower = Math.max(0, upper - table.admissionError[slot * table.decayCount + state.kindOrdinal]);
+      return new Estimate(upper / scale, lower / scale, upper / scale);
+    }
+    long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
+    double upper = 0;
+    double lower = 0;
+    for (int p = 0; p < state.paneCount; p++) {
+      if (!state.slotLive(p)) {
+        continue;
+      }
+      double count = table.cells[base + p];
+      upper += count;
+      boolean inherited = admittedPane != Long.MIN_VALUE && state.paneOfSlot[p] <= admittedPane;
+      lower += inherited ? Math.max(0, count - state.pairOrItemError(table == engine.pairs, p)) : count;
+    }
+    return new Estimate(upper, Math.min(lower, upper), upper);
+  }
+
+  static Estimate sketched(PairEngine engine, CountMinSketch[] sketches, HorizonState state, long key) {
+    if (!state.isWindow()) {
+      double scale = state.scaleAt(engine.watermarkMillis);
+      double upper = sketches[0].estimate(key);
+      double lower = Math.max(0, upper - sketches[0].maxError());
+      return new Estimate(upper / scale, lower / scale, upper / scale);
+    }
+    double upper = 0;
+    double lower = 0;
+    for (int p = 0; p < state.paneCount; p++) {
+      if (state.slotLive(p)) {
+        double estimate = sketches[p].estimate(key);
+        upper += estimate;
+        lower += Math.max(0, estimate - sketches[p].maxError());
+      }
+    }
+    return new Estimate(upper, lower, upper);
+  }
+}

@@ -1,0 +1,173 @@
+package org.pairpulse.sketch.engine;
+
+import java.util.ArrayList;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Objects;
+import java.util.Set;
+import org.pairpulse.sketch.cms.CountMinSketch;
+import org.pairpulse.sketch.cms.UpdateRule;
+import org.pairpulse.sketch.horizon.HorizonKind;
+import org.pairpulse.sketch.horizon.HorizonSpec;
+
+/**
+ * Everything that fixes a {@link PairEngine}'s memory and behaviour. Two engines can merge only when
+ * their configurations are equal.
+ *
+ * <table>
+ *   <caption>Settings</caption>
+ *   <tr><th>setting</th><th>default</th><th>meaning</th></tr>
+ *   <tr><td>horizons</td><td>recent, day, baseline</td><td>the time weightings kept (see {@link HorizonSpec})</td></tr>
+ *   <tr><td>trackingHorizon</td><td>recent</td><td>the decay horizon whose weights rank tracked pairs and items</td></tr>
+ *   <tr><td>itemEpsilon / itemDelta</td><td>0.002 / 0.02</td><td>item count-min error and failure probability</td></tr>
+ *   <tr><td>pairEpsilon / pairDelta</td><td>0.001 / 0.02</td><td>pair count-min error and failure probability</td></tr>
+ *   <tr><td>trackedPairCapacity</td><td>16384</td><td>pairs for which statistics are kept (Space-Saving capacity)</td></tr>
+ *   <tr><td>trackedItemCapacity</td><td>16384</td><td>items counted exactly once admitted</td></tr>
+ *   <tr><td>maxPairsPerBasket</td><td>256</td><td>pairs counted per basket before sampling with inverse-probability weights</td></tr>
+ *   <tr><td>updateRule</td><td>LINEAR</td><td>count-min update rule; LINEAR keeps partitions mergeable</td></tr>
+ *   <tr><td>seed</td><td>0x5EED</td><td>hash seed; equal seeds are needed to merge</td></tr>
+ * </table>
+ */
+public record EngineConfig(
+    List<HorizonSpec> horizons,
+    String trackingHorizon,
+    double itemEpsilon,
+    double itemDelta,
+    double pairEpsilon,
+    double pairDelta,
+    int trackedPairCapacity,
+    int trackedItemCapacity,
+    int maxPairsPerBasket,
+    UpdateRule updateRule,
+    long seed) {
+
+  /** Largest tracked capacity: keeps slot arithmetic in int range for every layout. */
+  public static final int MAX_CAPACITY = 1 << 22;
+
+  public EngineConfig {
+    Objects.requireNonNull(horizons, "horizons");
+    Objects.requireNonNull(updateRule, "updateRule");
+    horizons = List.copyOf(horizons);
+    if (horizons.isEmpty()) {
+      throw new IllegalArgumentException("at least one horizon is needed");
+    }
+    Set<String> names = new HashSet<>();
+    int cells = 0;
+    for (HorizonSpec h : horizons) {
+      if (!names.add(h.name())) {
+        throw new IllegalArgumentException("duplicate horizon name '" + h.name() + "'");
+      }
+      cells += h.paneCount();
+    }
+    HorizonSpec tracking = horizons.stream().filter(h -> h.name().equals(trackingHorizon)).findFirst()
+        .orElseThrow(() -> new IllegalArgumentException("trackingHorizon '" + trackingHorizon
+            + "' is not one of the horizons " + names));
+    if (tracking.kind() != HorizonKind.DECAY) {
+      throw new IllegalArgumentException("trackingHorizon '" + trackingHorizon + "' must be a decay horizon");
+    }
+    CountMinSketch.widthFor(itemEpsilon);
+    CountMinSketch.depthFor(itemDelta);
+    CountMinSketch.widthFor(pairEpsilon);
+    CountMinSketch.depthFor(pairDelta);
+    requireRange("trackedPairCapacity", trackedPairCapacity, 2, MAX_CAPACITY);
+    requireRange("trackedItemCapacity", trackedItemCapacity, 2, MAX_CAPACITY);
+    requireRange("maxPairsPerBasket", maxPairsPerBasket, 1, 1 << 20);
+    if ((long) Math.max(trackedPairCapacity, trackedItemCapacity) * cells > Integer.MAX_VALUE - 8) {
+      throw new IllegalArgumentException("tracked capacity × panes too large: " + cells + " cells");
+    }
+  }
+
+  private static void requireRange(String name, int value, int min, int max) {
+    if (value < min || value > max) {
+      throw new IllegalArgumentException(name + " must be in " + min + ".." + max + ", got " + value);
+    }
+  }
+
+  /** The defaults of the table above. */
+  public static EngineConfig defaults() {
+    return builder().build();
+  }
+
+  public static Builder builder() {
+    return new Builder();
+  }
+
+  public Builder toBuilder() {
+    return new Builder().horizons(horizons).trackingHorizon(trackingHorizon)
+        .itemError(itemEpsilon, itemDelta).pairError(pairEpsilon, pairDelta)
+        .trackedPairCapacity(trackedPairCapacity).trackedItemCapacity(trackedItemCapacity)
+        .maxPairsPerBasket(maxPairsPerBasket).updateRule(updateRule).seed(seed);
+  }
+
+  /** Number of panes over all horizons (a decay horizon counts as one). */
+  public int totalCells() {
+    return horizons.stream().mapToInt(HorizonSpec::paneCount).sum();
+  }
+
+  /** Builder with the defaults preset. */
+  public static final class Builder {
+    private List<HorizonSpec> horizons = HorizonSpec.defaults();
+    private String trackingHorizon = HorizonSpec.RECENT.name();
+    private double itemEpsilon = 0.002;
+    private double itemDelta = 0.02;
+    private double pairEpsilon = 0.001;
+    private double pairDelta = 0.02;
+    private int trackedPairCapacity = 16_384;
+    private int trackedItemCapacity = 16_384;
+    private int maxPairsPerBasket = 256;
+    private UpdateRule updateRule = UpdateRule.LINEAR;
+    private long seed = 0x5EEDL;
+
+    public Builder horizons(List<HorizonSpec> value) {
+      this.horizons = new ArrayList<>(value);
+      return this;
+    }
+
+    public Builder trackingHorizon(String value) {
+      this.trackingHorizon = value;
+      return this;
+    }
+
+    public Builder itemError(double epsilon, double delta) {
+      this.itemEpsilon = epsilon;
+      this.itemDelta = delta;
+      return this;
+    }
+
+    public Builder pairError(double epsilon, double delta) {
+      this.pairEpsilon = epsilon;
+      this.pairDelta = delta;
+      return this;
+    }
+
+    public Builder trackedPairCapacity(int value) {
+      this.trackedPairCapacity = value;
+      return this;
+    }
+
+    public Builder trackedItemCapacity(int value) {
+      this.trackedItemCapacity = value;
+      return this;
+    }
+
+    public Builder maxPairsPerBasket(int value) {
+      this.maxPairsPerBasket = value;
+      return this;
+    }
+
+    public Builder updateRule(UpdateRule value) {
+      this.updateRule = value;
+      return this;
+    }
+
+    public Builder seed(long value) {
+      this.seed = value;
+      return this;
+    }
+
+    public EngineConfig build() {
+      return new EngineConfig(horizons, trackingHorizon, itemEpsilon, itemDelta, pairEpsilon, pairDelta,
+          trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed);
+    }
+  }
+}

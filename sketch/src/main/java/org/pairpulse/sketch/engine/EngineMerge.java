@@ -1,0 +1,232 @@
+package org.pairpulse.sketch.engine;
+
+import java.util.ArrayList;
+import java.util.Comparator;
+import java.util.List;
+import org.pairpulse.sketch.cms.CountMinSketch;
+
+/**
+ * Merges the state of an engine built over a disjoint stream (another partition) into this one.
+ *
+ * <ul>
+ *   <li>Linear parts add exactly: windows first advance to the newer of the two newest panes, decays
+ *       to the later landmark (an exact rescale by 2^−k); then sketches and N add pane by pane.</li>
+ *   <li>Tracked tables merge by the mergeable-summary rule for Space-Saving (Agarwal, Cormode, Huang,
+ *       Phillips, Wei, Yi, "Mergeable summaries", PODS 2012): every key of either table is kept with the
+ *       sum of both sides' counts, where a side that does not track the key contributes its own upper
+ *       bound for it (nothing if that side was never full, which means it never saw the key; else its
+ *       count-min estimates, capped by its smallest tracked count in the tracking cell, with that bound
+ *       recorded as inherited error); then the largest {@code capacity} tracking counts stay. Every key
+ *       heavier than (W₁ + W₂) / capacity stays tracked.</li>
+ * </ul>
+ */
+final class EngineMerge {
+  private EngineMerge() {}
+
+  static void merge(PairEngine into, PairEngine other) {
+    if (!into.config().equals(other.config())) {
+      throw new IllegalArgumentException("cannot merge engines with different configurations:\n  " + into.config()
+          + "\n  " + other.config());
+    }
+    if (other.baskets == 0 && other.watermarkMillis == Long.MIN_VALUE) {
+      return;
+    }
+    // 1. align time: windows to the newest pane of either, decays to the later landmark
+    double[] otherScale = new double[into.horizons.length];
+    for (int h = 0; h < into.horizons.length; h++) {
+      HorizonState mine = into.horizons[h];
+      HorizonState theirs = other.horizons[h];
+      otherScale[h] = 1.0;
+      if (mine.isWindow()) {
+        if (theirs.newestPane != Long.MIN_VALUE
+            && (mine.newestPane == Long.MIN_VALUE || theirs.newestPane > mine.newestPane)) {
+          into.advanceWindow(mine, theirs.newestPane);
+        }
+      } else if (theirs.landmarkMillis != Long.MIN_VALUE) {
+        if (mine.landmarkMillis == Long.MIN_VALUE) {
+          mine.landmarkMillis = theirs.landmarkMillis;
+        } else if (theirs.landmarkMillis > mine.landmarkMillis) {
+          into.moveLandmark(mine, theirs.landmarkMillis);
+        } else {
+          long halfLives = (mine.landmarkMillis - theirs.landmarkMillis) / mine.halfLifeMillis;
+          otherScale[h] = Math.scalb(1.0, (int) -Math.min(halfLives, 2000));
+        }
+      }
+    }
+    // 2. tracked tables, from both sides' sketches as they are before the sketches merge
+    mergeTable(into, other, into.items, other.items, false, otherScale);
+    mergeTable(into, other, into.pairs, other.pairs, true, otherScale);
+    // 3. linear parts
+    for (int h = 0; h < into.horizons.length; h++) {
+      HorizonState mine = into.horizons[h];
+      HorizonState theirs = other.horizons[h];
+      for (int p = 0; p < mine.paneCount; p++) {
+        if (!otherPaneLive(mine, theirs, p)) {
+          continue;
+        }
+        addScaled(mine.itemSketch[p], theirs.itemSketch[p], otherScale[h]);
+        addScaled(mine.pairSketch[p], theirs.pairSketch[p], otherScale[h]);
+        mine.basketWeight[p] += theirs.basketWeight[p] * otherScale[h];
+      }
+    }
+    into.watermarkMillis = Math.max(into.watermarkMillis, other.watermarkMillis);
+    into.baskets += other.baskets;
+    into.pairUpdates += other.pairUpdates;
+    into.expiredWindowUpdates += other.expiredWindowUpdates;
+    into.sampling().restore(into.sampling().cappedBaskets() + other.sampling().cappedBaskets(),
+        into.sampling().skippedPairs() + other.sampling().skippedPairs());
+  }
+
+  /** True when the other engine's ring slot p holds a pane that is live in this engine's window. */
+  private static boolean otherPaneLive(HorizonState mine, HorizonState theirs, int p) {
+    if (!mine.isWindow()) {
+      return theirs.landmarkMillis != Long.MIN_VALUE;
+    }
+    return theirs.paneOfSlot[p] != Long.MIN_VALUE && theirs.paneOfSlot[p] == mine.paneOfSlot[p] && mine.slotLive(p);
+  }
+
+  private static void addScaled(CountMinSketch into, CountMinSketch other, double scale) {
+    if (scale == 1.0) {
+      into.merge(other);
+    } else {
+      CountMinSketch scaled = other.copy();
+      scaled.scale(scale);
+      into.merge(scaled);
+    }
+  }
+
+  /** One merged entry before the top-capacity cut. */
+  private static final class Entry {
+    long key;
+    String labelA;
+    String labelB;
+    long hashA;
+    long hashB;
+    long admittedAtMillis;
+    double[] cells;
+    long[] admissionPane;
+    double[] admissionError;
+  }
+
+  private static void mergeTable(PairEngine into, PairEngine other, TrackedTable mine, TrackedTable theirs,
+      boolean pair, double[] otherScale) {
+    List<Entry> entries = new ArrayList<>(mine.size() + theirs.size());
+    for (int s = 0; s < mine.size(); s++) {
+      Entry entry = copyOut(mine, s, into, into, null);
+      int t = theirs.find(mine.keys[s]);
+      if (t >= 0) {
+        addTracked(entry, theirs, t, into, other, otherScale);
+      } else if (theirs.isFull()) {
+        addUntracked(entry, theirs, into, other, pair, otherScale);
+      }
+      entries.add(entry);
+    }
+    for (int t = 0; t < theirs.size(); t++) {
+      if (mine.find(theirs.keys[t]) >= 0) {
+        continue;
+      }
+      Entry entry = copyOut(theirs, t, into, other, otherScale);
+      if (mine.isFull()) {
+        addUntracked(entry, mine, into, into, pair, null);
+      }
+      entries.add(entry);
+    }
+    int tracking = mine.trackingCell;
+    entries.sort(Comparator.comparingDouble((Entry e) -> e.cells[tracking]).reversed());
+    int keep = Math.min(entries.size(), mine.capacity);
+    long evicted = entries.size() - keep;
+    for (int s = 0; s < keep; s++) {
+      Entry e = entries.get(s);
+      mine.keys[s] = e.key;
+      mine.labelA[s] = e.labelA;
+      mine.labelB[s] = e.labelB;
+      mine.hashA[s] = e.hashA;
+      mine.hashB[s] = e.hashB;
+      mine.admittedAtMillis[s] = e.admittedAtMillis;
+      System.arraycopy(e.cells, 0, mine.cells, s * mine.cellCount, mine.cellCount);
+      System.arraycopy(e.admissionPane, 0, mine.admissionPane, s * mine.windowCount, mine.windowCount);
+      System.arraycopy(e.admissionError, 0, mine.admissionError, s * mine.decayCount, mine.decayCount);
+    }
+    mine.admissions += theirs.admissions;
+    mine.evictions += theirs.evictions + evicted;
+    mine.rejections += theirs.rejections;
+    mine.rebuild(keep);
+  }
+
+  /** Copies slot s of {@code table} (owned by {@code owner}) into an entry laid out for {@code into}. */
+  private static Entry copyOut(TrackedTable table, int s, PairEngine into, PairEngine owner, double[] scale) {
+    Entry e = new Entry();
+    e.key = table.keys[s];
+    e.labelA = table.labelA[s];
+    e.labelB = table.labelB[s];
+    e.hashA = table.hashA[s];
+    e.hashB = table.hashB[s];
+    e.admittedAtMillis = table.admittedAtMillis[s];
+    e.cells = new double[table.cellCount];
+    e.admissionPane = new long[table.windowCount];
+    e.admissionError = new double[table.decayCount];
+    for (int w = 0; w < table.windowCount; w++) {
+      e.admissionPane[w] = table.admissionPane[s * table.windowCount + w];
+    }
+    for (HorizonState state : into.horizons) {
+      HorizonState source = owner.horizons[state.index];
+      for (int p = 0; p < state.paneCount; p++) {
+        boolean live = owner == into ? (!state.isWindow() || state.slotLive(p)) : otherPaneLive(state, source, p);
+        if (live) {
+          double factor = scale == null || state.isWindow() ? 1.0 : scale[state.index];
+          e.cells[state.cellOffset + p] = table.cells[s * table.cellCount + state.cellOffset + p] * factor;
+        }
+      }
+      if (!state.isWindow()) {
+        double factor = scale == null ? 1.0 : scale[state.index];
+        e.admissionError[state.kindOrdinal] = table.admissionError[s * table.decayCount + state.kindOrdinal] * factor;
+      }
+    }
+    return e;
+  }
+
+  /** Adds the other side's tracked counts for the same key. */
+  private static void addTracked(Entry e, TrackedTable theirs, int t, PairEngine into, PairEngine other, double[] scale) {
+    Entry add = copyOut(theirs, t, into, other, scale);
+    for (int c = 0; c < e.cells.length; c++) {
+      e.cells[c] += add.cells[c];
+    }
+    for (int d = 0; d < e.admissionError.length; d++) {
+      e.admissionError[d] += add.admissionError[d];
+    }
+    for (int w = 0; w < e.admissionPane.length; w++) {
+      e.admissionPane[w] = Math.max(e.admissionPane[w], add.admissionPane[w]);
+    }
+    e.admittedAtMillis = Math.min(e.admittedAtMillis, add.admittedAtMillis);
+  }
+
+  /**
+   * Adds what a side that does not track the key (and was full, so may have seen it) can say: its
+   * count-min estimates, an upper bound, recorded as inherited error.
+   */
+  private static void addUntracked(Entry e, TrackedTable side, PairEngine into, PairEngine sideEngine, boolean pair,
+      double[] scale) {
+    double sideMin = side.minCount();
+    for (HorizonState state : into.horizons) {
+      HorizonState source = sideEngine.horizons[state.index];
+      CountMinSketch[] sketches = pair ? source.pairSketch : source.itemSketch;
+      if (state.isWindow()) {
+        for (int p = 0; p < state.paneCount; p++) {
+          boolean live = sideEngine == into ? state.slotLive(p) : otherPaneLive(state, source, p);
+          if (live) {
+            e.cells[state.cellOffset + p] += sketches[p].estimate(e.key);
+          }
+        }
+        e.admissionPane[state.kindOrdinal] = Math.max(e.admissionPane[state.kindOrdinal], state.newestPane);
+      } else if (source.landmarkMillis != Long.MIN_VALUE) {
+        double factor = scale == null ? 1.0 : scale[state.index];
+        double estimate = sketches[0].estimate(e.key);
+        if (state.cellOffset == side.trackingCell) {
+          estimate = Math.min(estimate, sideMin);
+        }
+        e.cells[state.cellOffset] += estimate * factor;
+        e.admissionError[state.kindOrdinal] += estimate * factor;
+      }
+    }
+  }
+}

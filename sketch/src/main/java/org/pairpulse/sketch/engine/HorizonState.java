@@ -1,0 +1,130 @@
+package org.pairpulse.sketch.engine;
+
+import java.util.Arrays;
+import org.pairpulse.sketch.cms.CountMinSketch;
+import org.pairpulse.sketch.horizon.HorizonSpec;
+
+/**
+ * The sketches of one horizon: per pane (a decay has one) an item sketch, a pair sketch and the basket
+ * weight N.
+ *
+ * <h2>Windows</h2>
+ * A ring of {@code paneCount} panes; pane index {@code q = floor(t / paneMillis)} lives in ring slot
+ * {@code q mod paneCount}. The window holds panes {@code newestPane − paneCount + 1 .. newestPane}; when a
+ * newer pane starts, the ring slots it reuses are cleared (a pane leaves whole).
+ *
+ * <h2>Decays: forward decay</h2>
+ * A basket at time {@code t} adds {@code g(t) = 2^((t − L) / halfLife)} for a landmark {@code L}; the
+ * decayed value at time {@code T} is the stored sum divided by {@code g(T)} (Cormode, Shkapenyuk,
+ * Srivastava, Xu, "Forward decay: a practical time decay model for streaming systems", ICDE 2009).
+ * Landmarks are multiples of the half-life, so moving the landmark by {@code k} half-lives multiplies
+ * every stored value by {@code 2^−k}, an exact operation in binary floating point (a rescale). Ratios
+ * such as lift and confidence are invariant to the common scale and need no division at all.
+ */
+final class HorizonState {
+  /** Rescale once the newest weight would exceed 2^64 (far from double overflow even when summed). */
+  static final int RESCALE_AFTER_HALF_LIVES = 64;
+
+  final HorizonSpec spec;
+  final int index;
+  final int cellOffset;
+  final int paneCount;
+  final long paneMillis;
+  final long halfLifeMillis;
+  final CountMinSketch[] itemSketch;
+  final CountMinSketch[] pairSketch;
+  final double[] basketWeight;
+  /** Window: pane index held by each ring slot (Long.MIN_VALUE: never used). */
+  final long[] paneOfSlot;
+  /** Window: newest pane index seen (Long.MIN_VALUE before the first basket). */
+  long newestPane = Long.MIN_VALUE;
+  /** Decay: landmark L in epoch millis, a multiple of the half-life (Long.MIN_VALUE before the first basket). */
+  long landmarkMillis = Long.MIN_VALUE;
+  /** Window: ordinal among windows; decay: ordinal among decays. */
+  final int kindOrdinal;
+
+  HorizonState(HorizonSpec spec, int index, int cellOffset, int kindOrdinal, EngineConfig config) {
+    this.spec = spec;
+    this.index = index;
+    this.cellOffset = cellOffset;
+    this.kindOrdinal = kindOrdinal;
+    this.paneCount = spec.paneCount();
+    this.paneMillis = spec.paneMillis();
+    this.halfLifeMillis = spec.halfLifeMillis();
+    int itemWidth = CountMinSketch.widthFor(config.itemEpsilon());
+    int itemDepth = CountMinSketch.depthFor(config.itemDelta());
+    int pairWidth = CountMinSketch.widthFor(config.pairEpsilon());
+    int pairDepth = CountMinSketch.depthFor(config.pairDelta());
+    this.itemSketch = new CountMinSketch[paneCount];
+    this.pairSketch = new CountMinSketch[paneCount];
+    for (int p = 0; p < paneCount; p++) {
+      // one seed for all panes and horizons: panes of a window must align to be summed and merged
+      itemSketch[p] = new CountMinSketch(itemWidth, itemDepth, config.updateRule(), config.seed());
+      pairSketch[p] = new CountMinSketch(pairWidth, pairDepth, config.updateRule(), config.seed() ^ 0x9A1L);
+    }
+    this.basketWeight = new double[paneCount];
+    this.paneOfSlot = new long[paneCount];
+    Arrays.fill(paneOfSlot, Long.MIN_VALUE);
+  }
+
+  boolean isWindow() {
+    return spec.isWindow();
+  }
+
+  long paneOf(long eventMillis) {
+    return Math.floorDiv(eventMillis, paneMillis);
+  }
+
+  int slotOf(long pane) {
+    return (int) Math.floorMod(pane, (long) paneCount);
+  }
+
+  /** Oldest pane index still in the window. */
+  long oldestLivePane() {
+    return newestPane == Long.MIN_VALUE ? Long.MIN_VALUE : newestPane - paneCount + 1;
+  }
+
+  boolean slotLive(int slot) {
+    long pane = paneOfSlot[slot];
+    return pane != Long.MIN_VALUE && pane >= oldestLivePane();
+  }
+
+  void clearSlot(int slot, long newPane) {
+    itemSketch[slot].clear();
+    pairSketch[slot].clear();
+    basketWeight[slot] = 0;
+    paneOfSlot[slot] = newPane;
+  }
+
+  /** Forward-decay weight g(t) = 2^((t − L)/halfLife). */
+  double decayWeight(long eventMillis) {
+    return Math.pow(2.0, (double) (eventMillis - landmarkMillis) / halfLifeMillis);
+  }
+
+  /** The landmark a basket at {@code eventMillis} should use (a multiple of the half-life). */
+  long landmarkFor(long eventMillis) {
+    return Math.floorDiv(eventMillis, halfLifeMillis) * halfLifeMillis;
+  }
+
+  boolean needsRescale(long eventMillis) {
+    return eventMillis - landmarkMillis > RESCALE_AFTER_HALF_LIVES * halfLifeMillis;
+  }
+
+  /** Divide stored decay values by this to get values as of {@code asOfMillis}. */
+  double scaleAt(long asOfMillis) {
+    return landmarkMillis == Long.MIN_VALUE ? 1.0 : decayWeight(asOfMillis);
+  }
+
+  /** ε·W of pane {@code slot}'s pair sketch (pairs) or item sketch (items). */
+  double pairOrItemError(boolean pair, int slot) {
+    return pair ? pairSketch[slot].maxError() : itemSketch[slot].maxError();
+  }
+
+  long stateBytes() {
+    long bytes = 8L * basketWeight.length * 2;
+    for (int p = 0; p < paneCount; p++) {
+      bytes += itemSketch[p].stateBytes() + pairSketch[p].stateBytes();
+    }
+    return bytes;
+  }
+}

@@ -1,0 +1,450 @@
+package org.pairpulse.sketch.engine;
+
+import java.util.Arrays;
+import java.util.Collection;
+import java.util.List;
+import java.util.Objects;
+import org.pairpulse.sketch.cms.CountMinSketch;
+import org.pairpulse.sketch.hash.ItemHash;
+import org.pairpulse.sketch.horizon.HorizonSpec;
+import org.pairpulse.sketch.stats.Estimate;
+
+/**
+ * The counting state of pairpulse: item and pair counts over several horizons in fixed memory, and the
+ * tracked pairs for which statistics are published.
+ *
+ * <h2>What one basket does</h2>
+ * {@link #addBasket} takes a basket's event time and items. Duplicate items count once. For every
+ * horizon the basket lands in one cell (the pane of its event time, or the decay) with weight 1 (window)
+ * or the forward-decay weight (decay). N, every item and every pair (at most
+ * {@code maxPairsPerBasket} of them, see {@link PairSampling}) go into the cell's count-min sketches, then
+ * into the tracked tables. Tracked keys hold counts per cell, exact from the moment they were admitted
+ * and count-min estimates (with their error bound) for the time before.
+ *
+ * <h2>Time</h2>
+ * Event time only. Windows advance when a basket from a newer pane arrives or when {@link #advanceTo}
+ * is called (an idle stream). A basket whose pane has left a window counts in the other horizons only
+ * ({@link EngineStats#expiredWindowUpdates()}); deciding what is too late to accept at all is the caller's
+ * job (allowed lateness).
+ *
+ * <h2>Memory</h2>
+ * Fixed by {@link EngineConfig}: all arrays are allocated up front; {@link #stateBytes()} reports them.
+ *
+ * <h2>Threading</h2>
+ * Single writer, many readers through snapshots: an engine is not thread-safe. One thread (the writer)
+ * calls {@link #addBasket}, {@link #advanceTo}, {@link #merge} and {@link #refresh}. {@code refresh}
+ * returns an immutable {@link org.pairpulse.sketch.table.PairTable} that any number of reader threads
+ * may use while the writer goes on; publish it through a volatile or atomic reference
+ * ({@link org.pairpulse.sketch.table.PairTableHolder}). To read counts from another thread, take a
+ * {@link #copy()} on the writer thread.
+ */
+public final class PairEngine {
+  private final EngineConfig config;
+  final HorizonState[] horizons;
+  final int cellCount;
+  final int trackingHorizon;
+  final TrackedTable items;
+  final TrackedTable pairs;
+  private final PairSampling sampling;
+
+  long watermarkMillis = Long.MIN_VALUE;
+  long baskets;
+  long pairUpdates;
+  long expiredWindowUpdates;
+
+  // per-basket scratch, reused (no allocation per basket for baskets of up to 64 items)
+  private long[] hashScratch = new long[64];
+  private String[] itemScratch = new String[64];
+  private final int[] cellOfHorizon;
+  private final double[] weightOfHorizon;
+
+  public PairEngine(EngineConfig config) {
+    this.config = Objects.requireNonNull(config, "config");
+    List<HorizonSpec> specs = config.horizons();
+    this.horizons = new HorizonState[specs.size()];
+    int offset = 0;
+    int windows = 0;
+    int decays = 0;
+    int tracking = -1;
+    for (int h = 0; h < specs.size(); h++) {
+      HorizonSpec spec = specs.get(h);
+      int ordinal = spec.isWindow() ? windows++ : decays++;
+      horizons[h] = new HorizonState(spec, h, offset, ordinal, config);
+      if (spec.name().equals(config.trackingHorizon())) {
+        tracking = h;
+      }
+      offset += spec.paneCount();
+    }
+    this.cellCount = offset;
+    this.trackingHorizon = tracking;
+    int trackingCell = horizons[tracking].cellOffset;
+    this.items = new TrackedTable(config.trackedItemCapacity(), cellCount, trackingCell, windows, decays);
+    this.pairs = new TrackedTable(config.trackedPairCapacity(), cellCount, trackingCell, windows, decays);
+    this.sampling = new PairSampling(config.maxPairsPerBasket());
+    this.cellOfHorizon = new int[horizons.length];
+    this.weightOfHorizon = new double[horizons.length];
+  }
+
+  public EngineConfig config() {
+    return config;
+  }
+
+  /** Adds one basket; see the class comment. Null or empty item ids are ignored. */
+  public void addBasket(long eventMillis, Collection<String> basketItems) {
+    addBasket(eventMillis, basketItems.toArray(new String[0]));
+  }
+
+  /** Adds one basket; see the class comment. Null or empty item ids are ignored. */
+  public void addBasket(long eventMillis, String... basketItems) {
+    int distinct = distinctSortedByHash(basketItems);
+    if (distinct == 0) {
+      return;
+    }
+    baskets++;
+    if (eventMillis > watermarkMillis) {
+      watermarkMillis = eventMillis;
+    }
+    placeInHorizons(eventMillis);
+    for (int h = 0; h < horizons.length; h++) {
+      int cell = cellOfHorizon[h];
+      if (cell >= 0) {
+        horizons[h].basketWeight[cell - horizons[h].cellOffset] += weightOfHorizon[h];
+      }
+    }
+    for (int i = 0; i < distinct; i++) {
+      long key = hashScratch[i];
+      addToSketches(key, 1.0, false);
+      track(items, false, key, itemScratch[i], null, key, 0L, 1.0, eventMillis);
+    }
+    addPairs(distinct, eventMillis);
+  }
+
+  private void addPairs(int distinct, long eventMillis) {
+    long pairTotal = (long) distinct * (distinct - 1) / 2;
+    if (pairTotal == 0) {
+      return;
+    }
+    long step = sampling.stepFor(pairTotal);
+    double pairWeight = step;
+    long start = step == 1 ? 0 : sampling.startFor(hashScratch, distinct, step);
+    // enumerate pairs (i < j) in row-major order and keep those with ordinal ≡ start (mod step)
+    long ordinal = 0;
+    long next = start;
+    for (int i = 0; i < distinct - 1; i++) {
+      long rowEnd = ordinal + (distinct - 1 - i);
+      while (next < rowEnd) {
+        int j = i + 1 + (int) (next - ordinal);
+        long key = ItemHash.pairKey(hashScratch[i], hashScratch[j]);
+        addToSketches(key, pairWeight, true);
+        track(pairs, true, key, itemScratch[i], itemScratch[j], hashScratch[i], hashScratch[j], pairWeight, eventMillis);
+        pairUpdates++;
+        next += step;
+      }
+      ordinal = rowEnd;
+    }
+    if (step > 1) {
+      sampling.recordCapped(pairTotal, (pairTotal - start + step - 1) / step);
+    }
+  }
+
+  private void addToSketches(long key, double multiplier, boolean pair) {
+    for (int h = 0; h < horizons.length; h++) {
+      int cell = cellOfHorizon[h];
+      if (cell >= 0) {
+        HorizonState state = horizons[h];
+        CountMinSketch sketch = pair ? state.pairSketch[cell - state.cellOffset] : state.itemSketch[cell - state.cellOffset];
+        sketch.add(key, multiplier * weightOfHorizon[h]);
+      }
+    }
+  }
+
+  private void track(TrackedTable table, boolean pair, long key, String a, String b, long ha, long hb,
+      double multiplier, long eventMillis) {
+    int slot = table.find(key);
+    if (slot >= 0) {
+      int base = slot * cellCount;
+      for (int h = 0; h < horizons.length; h++) {
+        int cell = cellOfHorizon[h];
+        if (cell >= 0) {
+          table.cells[base + cell] += multiplier * weightOfHorizon[h];
+        }
+      }
+      table.increased(slot);
+      return;
+    }
+    HorizonState tracking = horizons[trackingHorizon];
+    CountMinSketch trackingSketch = pair ? tracking.pairSketch[0] : tracking.itemSketch[0];
+    double add = multiplier * weightOfHorizon[trackingHorizon];
+    if (!table.isFull()) {
+      // never full so far: nothing was ever evicted or refused, so this key was never seen: exact start
+      slot = table.admit(key, a, b, ha, hb, eventMillis);
+      int base = slot * cellCount;
+      for (int h = 0; h < horizons.length; h++) {
+        int cell = cellOfHorizon[h];
+        if (cell >= 0) {
+          table.cells[base + cell] = multiplier * weightOfHorizon[h];
+        }
+      }
+      table.placed(slot);
+      return;
+    }
+    double estimate = trackingSketch.estimate(key);
+    double min = table.minCount();
+    if (!(estimate > min)) {
+      table.rejections++;
+      return;
+    }
+    double start = Math.min(estimate, min + add);
+    slot = table.admit(key, a, b, ha, hb, eventMillis);
+    initialiseFromSketches(table, slot, pair, key, start, estimate);
+    table.placed(slot);
+  }
+
+  /** Fills a newly admitted slot from the count-min sketches (upper bounds) and records their error. */
+  private void initialiseFromSketches(TrackedTable table, int slot, boolean pair, long key, double trackingStart,
+      double trackingEstimate) {
+    int base = slot * cellCount;
+    for (HorizonState state : horizons) {
+      CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
+      if (state.isWindow()) {
+        for (int p = 0; p < state.paneCount; p++) {
+          if (state.slotLive(p)) {
+            table.cells[base + state.cellOffset + p] = sketches[p].estimate(key);
+          }
+        }
+        table.admissionPane[slot * table.windowCount + state.kindOrdinal] = state.newestPane;
+      } else if (state.index == trackingHorizon) {
+        double lower = Math.min(trackingStart, Math.max(0, trackingEstimate - sketches[0].maxError()));
+        table.cells[base + state.cellOffset] = trackingStart;
+        table.admissionError[slot * table.decayCount + state.kindOrdinal] = trackingStart - lower;
+      } else {
+        double estimate = sketches[0].estimate(key);
+        table.cells[base + state.cellOffset] = estimate;
+        table.admissionError[slot * table.decayCount + state.kindOrdinal] = Math.min(estimate, sketches[0].maxError());
+      }
+    }
+  }
+
+  /** Chooses each horizon's cell and weight for a basket at {@code eventMillis}, advancing as needed. */
+  private void placeInHorizons(long eventMillis) {
+    for (int h = 0; h < horizons.length; h++) {
+      HorizonState state = horizons[h];
+      if (state.isWindow()) {
+        long pane = state.paneOf(eventMillis);
+        if (state.newestPane == Long.MIN_VALUE || pane > state.newestPane) {
+          advanceWindow(state, pane);
+        }
+        if (pane < state.oldestLivePane()) {
+          expiredWindowUpdates++;
+          cellOfHorizon[h] = -1;
+          weightOfHorizon[h] = 0;
+        } else {
+          cellOfHorizon[h] = state.cellOffset + state.slotOf(pane);
+          weightOfHorizon[h] = 1.0;
+        }
+      } else {
+        if (state.landmarkMillis == Long.MIN_VALUE) {
+          state.landmarkMillis = state.landmarkFor(eventMillis);
+        } else if (state.needsRescale(eventMillis)) {
+          moveLandmark(state, state.landmarkFor(eventMillis));
+        }
+        cellOfHorizon[h] = state.cellOffset;
+        weightOfHorizon[h] = state.decayWeight(eventMillis);
+      }
+    }
+  }
+
+  /** Starts pane {@code newPane} in a window, clearing the ring slots of panes that leave. */
+  void advanceWindow(HorizonState state, long newPane) {
+    long first = state.newestPane == Long.MIN_VALUE
+        ? newPane - state.paneCount + 1
+        : Math.max(state.newestPane + 1, newPane - state.paneCount + 1);
+    for (long q = first; q <= newPane; q++) {
+      int slot = state.slotOf(q);
+      state.clearSlot(slot, q);
+      items.clearCell(state.cellOffset + slot);
+      pairs.clearCell(state.cellOffset + slot);
+    }
+    state.newestPane = newPane;
+  }
+
+  /** Moves a decay's landmark forward by whole half-lives: multiplies every stored value by 2^−k exactly. */
+  void moveLandmark(HorizonState state, long newLandmarkMillis) {
+    long halfLives = (newLandmarkMillis - state.landmarkMillis) / state.halfLifeMillis;
+    if (halfLives <= 0) {
+      return;
+    }
+    double factor = Math.scalb(1.0, (int) -Math.min(halfLives, 2000));
+    if (factor == 0.0) {
+      factor = Double.MIN_NORMAL; // everything older than ~2000 half-lives is gone; keep sketches valid
+    }
+    state.itemSketch[0].scale(factor);
+    state.pairSketch[0].scale(factor);
+    state.basketWeight[0] *= factor;
+    items.scaleDecay(state.cellOffset, state.kindOrdinal, factor);
+    pairs.scaleDecay(state.cellOffset, state.kindOrdinal, factor);
+    state.landmarkMillis = newLandmarkMillis;
+  }
+
+  /**
+   * Advances every window to the pane of {@code eventMillis} (an idle stream: panes leave although no
+   * basket arrives). Moves the watermark. Never goes back.
+   */
+  public void advanceTo(long eventMillis) {
+    if (eventMillis <= watermarkMillis) {
+      return;
+    }
+    watermarkMillis = eventMillis;
+    for (HorizonState state : horizons) {
+      if (state.isWindow()) {
+        long pane = state.paneOf(eventMillis);
+        if (state.newestPane != Long.MIN_VALUE && pane > state.newestPane) {
+          advanceWindow(state, pane);
+        }
+      } else if (state.landmarkMillis != Long.MIN_VALUE && state.needsRescale(eventMillis)) {
+        moveLandmark(state, state.landmarkFor(eventMillis));
+      }
+    }
+  }
+
+  /** Newest event time seen or advanced to; Long.MIN_VALUE before anything. */
+  public long watermarkMillis() {
+    return watermarkMillis;
+  }
+
+  /** Sorts the basket's distinct items by hash into the scratch arrays; returns how many. */
+  private int distinctSortedByHash(String[] basketItems) {
+    int n = basketItems.length;
+    if (hashScratch.length < n) {
+      int size = Integer.highestOneBit(n) << 1;
+      hashScratch = new long[size];
+      itemScratch = new String[size];
+    }
+    int count = 0;
+    for (String item : basketItems) {
+      if (item == null || item.isEmpty()) {
+        continue;
+      }
+      hashScratch[count] = ItemHash.of(item);
+      itemScratch[count] = item;
+      count++;
+    }
+    if (count <= 32) {
+      for (int i = 1; i < count; i++) { // insertion sort: baskets are small
+        long hash = hashScratch[i];
+        String item = itemScratch[i];
+        int j = i - 1;
+        while (j >= 0 && hashScratch[j] > hash) {
+          hashScratch[j + 1] = hashScratch[j];
+          itemScratch[j + 1] = itemScratch[j];
+          j--;
+        }
+        hashScratch[j + 1] = hash;
+        itemScratch[j + 1] = item;
+      }
+    } else {
+      Integer[] order = new Integer[count];
+      for (int i = 0; i < count; i++) {
+        order[i] = i;
+      }
+      long[] hashes = Arrays.copyOf(hashScratch, count);
+      String[] names = Arrays.copyOf(itemScratch, count);
+      Arrays.sort(order, (x, y) -> Long.compare(hashes[x], hashes[y]));
+      for (int i = 0; i < count; i++) {
+        hashScratch[i] = hashes[order[i]];
+        itemScratch[i] = names[order[i]];
+      }
+    }
+    int distinct = 0;
+    for (int i = 0; i < count; i++) {
+      if (distinct == 0 || hashScratch[i] != hashScratch[distinct - 1]) {
+        hashScratch[distinct] = hashScratch[i];
+        itemScratch[distinct] = itemScratch[i];
+        distinct++;
+      }
+    }
+    return distinct;
+  }
+
+  // ---------------------------------------------------------------- queries (writer thread)
+
+  HorizonState horizon(String name) {
+    for (HorizonState state : horizons) {
+      if (state.spec.name().equals(name)) {
+        return state;
+      }
+    }
+    throw new IllegalArgumentException("unknown horizon '" + name + "'; known: "
+        + config.horizons().stream().map(HorizonSpec::name).toList());
+  }
+
+  /** N: baskets in {@code horizon} as of the watermark (decayed for a decay horizon). */
+  public double basketCount(String horizon) {
+    return Counts.baskets(this, horizon(horizon));
+  }
+
+  /** n_a with bounds, as of the watermark. */
+  public Estimate itemCount(String item, String horizon) {
+    return Counts.item(this, horizon(horizon), ItemHash.of(item));
+  }
+
+  /** n_ab with bounds, as of the watermark: tracked counts if the pair is tracked, else the sketches. */
+  public Estimate pairCount(String itemA, String itemB, String horizon) {
+    return Counts.pair(this, horizon(horizon), ItemHash.pairKey(ItemHash.of(itemA), ItemHash.of(itemB)));
+  }
+
+  /** True when {@code {a, b}} is in the tracked-pair table. */
+  public boolean isTracked(String itemA, String itemB) {
+    return pairs.find(ItemHash.pairKey(ItemHash.of(itemA), ItemHash.of(itemB))) >= 0;
+  }
+
+  /** Tracked pairs now. */
+  public int trackedPairCount() {
+    return pairs.size();
+  }
+
+  /** Counters for metrics. */
+  public EngineStats stats() {
+    return new EngineStats(baskets, pairUpdates, sampling.cappedBaskets(), sampling.skippedPairs(),
+        expiredWindowUpdates, pairs.size(), pairs.admissions, pairs.evictions, items.size(), watermarkMillis);
+  }
+
+  /** Heap bytes of the state: sketches and tracked tables. Fixed by the configuration (labels aside). */
+  public long stateBytes() {
+    long bytes = items.stateBytes() + pairs.stateBytes();
+    for (HorizonState state : horizons) {
+      bytes += state.stateBytes();
+    }
+    return bytes;
+  }
+
+  /** The total weight W of the pair sketches in the tracking horizon (forward units), for tests. */
+  double trackingPairWeight() {
+    return horizons[trackingHorizon].pairSketch[0].totalWeight();
+  }
+
+  // ---------------------------------------------------------------- refresh, copy, merge
+
+  /** Builds an immutable pair table from the current state; see {@link PairTables}. Writer thread only. */
+  public org.pairpulse.sketch.table.PairTable refresh(PairTables.Options options) {
+    return PairTables.build(this, options);
+  }
+
+  /** A deep copy (through the snapshot codec, so it is as exact as a restore). */
+  public PairEngine copy() {
+    return Snapshots.read(Snapshots.write(this));
+  }
+
+  /**
+   * Adds the state of {@code other} (a disjoint stream with the same configuration) into this engine.
+   * Sketches and basket counts add exactly; tracked tables merge by the mergeable-summary rule; see
+   * {@link EngineMerge}.
+   */
+  public void merge(PairEngine other) {
+    EngineMerge.merge(this, other);
+  }
+
+  PairSampling sampling() {
+    return sampling;
+  }
+}

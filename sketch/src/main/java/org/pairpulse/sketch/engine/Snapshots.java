@@ -1,0 +1,280 @@
+package org.pairpulse.sketch.engine;
+
+import java.io.ByteArrayInputStream;
+import java.io.ByteArrayOutputStream;
+import java.io.DataInputStream;
+import java.io.DataOutputStream;
+import java.io.EOFException;
+import java.io.IOException;
+import java.io.UncheckedIOException;
+import java.nio.ByteBuffer;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.zip.CRC32C;
+import org.pairpulse.sketch.cms.UpdateRule;
+import org.pairpulse.sketch.horizon.HorizonKind;
+import org.pairpulse.sketch.horizon.HorizonSpec;
+import org.pairpulse.sketch.snapshot.SnapshotFormatException;
+
+/**
+ * The binary snapshot of a {@link PairEngine}: versioned, checksummed, self-describing.
+ *
+ * <pre>
+ * offset  bytes  field
+ * ------  -----  -----------------------------------------------------------------
+ *   0       4    MAGIC          0x50 0x50 0x53 0x4E ("PPSN")
+ *   4       1    FORMAT_VERSION 1
+ *   5       3    reserved       0
+ *   8       8    PAYLOAD_BYTES  length L of the payload (big-endian)
+ *  16       4    PAYLOAD_CRC    CRC32C of the payload
+ *  20       4    reserved       0
+ *  24       L    payload        (java.io.DataOutput encoding, big-endian)
+ *
+ * payload:
+ *   config    horizonCount:int, per horizon {name:utf, kind:byte, lengthMillis:long, paneCount:int,
+ *             halfLifeMillis:long}, trackingHorizon:utf, itemEpsilon, itemDelta, pairEpsilon,
+ *             pairDelta:double, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket:int,
+ *             updateRule:byte, seed:long
+ *   counters  watermarkMillis, baskets, pairUpdates, expiredWindowUpdates, cappedBaskets,
+ *             pairsSkippedByCap:long
+ *   horizons  per horizon {newestPane:long, landmarkMillis:long, per pane {paneOfSlot:long,
+ *             basketWeight:double, item sketch {total:double, counters:double[width*depth]},
+ *             pair sketch {same}}}
+ *   tables    items then pairs, each {size:int, admissions, evictions, rejections:long, per slot
+ *             {key:long, labelA:nullable-utf, labelB:nullable-utf, hashA, hashB, admittedAtMillis:long,
+ *             cells:double[cellCount], admissionPane:long[windows], admissionError:double[decays]}}
+ * </pre>
+ *
+ * A reader checks magic, version, length and checksum before it parses anything, and builds a new
+ * engine: a bad snapshot gives a {@link SnapshotFormatException} and never a half-loaded state.
+ */
+public final class Snapshots {
+  static final int MAGIC = 0x5050_534E;
+  static final byte FORMAT_VERSION = 1;
+  static final int OFFSET_VERSION = 4;
+  static final int OFFSET_PAYLOAD_BYTES = 8;
+  static final int OFFSET_CRC = 16;
+  static final int HEADER_BYTES = 24;
+
+  private Snapshots() {}
+
+  /** The snapshot of {@code engine}. Writer thread only. */
+  public static byte[] write(PairEngine engine) {
+    try {
+      ByteArrayOutputStream bytes = new ByteArrayOutputStream(1 << 16);
+      DataOutputStream out = new DataOutputStream(bytes);
+      writeConfig(out, engine.config());
+      out.writeLong(engine.watermarkMillis);
+      out.writeLong(engine.baskets);
+      out.writeLong(engine.pairUpdates);
+      out.writeLong(engine.expiredWindowUpdates);
+      out.writeLong(engine.sampling().cappedBaskets());
+      out.writeLong(engine.sampling().skippedPairs());
+      for (HorizonState state : engine.horizons) {
+        out.writeLong(state.newestPane);
+        out.writeLong(state.landmarkMillis);
+        for (int p = 0; p < state.paneCount; p++) {
+          out.writeLong(state.paneOfSlot[p]);
+          out.writeDouble(state.basketWeight[p]);
+          state.itemSketch[p].writeCounters(out);
+          state.pairSketch[p].writeCounters(out);
+        }
+      }
+      writeTable(out, engine.items);
+      writeTable(out, engine.pairs);
+      out.flush();
+      byte[] payload = bytes.toByteArray();
+      CRC32C crc = new CRC32C();
+      crc.update(payload);
+      ByteBuffer result = ByteBuffer.allocate(HEADER_BYTES + payload.length);
+      result.putInt(MAGIC).put(FORMAT_VERSION).put(new byte[3]).putLong(payload.length)
+          .putInt((int) crc.getValue()).putInt(0).put(payload);
+      return result.array();
+    } catch (IOException e) {
+      throw new UncheckedIOException(e);
+    }
+  }
+
+  /** A new engine from a snapshot; throws {@link SnapshotFormatException} for anything unreadable. */
+  public static PairEngine read(byte[] snapshot) {
+    if (snapshot == null || snapshot.length < HEADER_BYTES) {
+      throw new SnapshotFormatException("snapshot truncated: " + (snapshot == null ? 0 : snapshot.length)
+          + " bytes, the header alone has " + HEADER_BYTES);
+    }
+    ByteBuffer header = ByteBuffer.wrap(snapshot, 0, HEADER_BYTES);
+    int magic = header.getInt();
+    if (magic != MAGIC) {
+      throw new SnapshotFormatException(String.format("not a pairpulse snapshot (magic 0x%08X, expected 0x%08X)", magic, MAGIC));
+    }
+    byte version = snapshot[OFFSET_VERSION];
+    if (version != FORMAT_VERSION) {
+      throw new SnapshotFormatException("snapshot format version " + version + " is not supported; this build reads version "
+          + FORMAT_VERSION);
+    }
+    long payloadBytes = header.getLong(OFFSET_PAYLOAD_BYTES);
+    if (payloadBytes != snapshot.length - HEADER_BYTES) {
+      throw new SnapshotFormatException("snapshot truncated or padded: header says " + payloadBytes
+          + " payload bytes, found " + (snapshot.length - HEADER_BYTES));
+    }
+    CRC32C crc = new CRC32C();
+    crc.update(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES);
+    int expected = header.getInt(OFFSET_CRC);
+    if ((int) crc.getValue() != expected) {
+      throw new SnapshotFormatException(String.format("snapshot corrupt: checksum 0x%08X, header says 0x%08X",
+          (int) crc.getValue(), expected));
+    }
+    try {
+      DataInputStream in = new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES));
+      PairEngine engine = new PairEngine(readConfig(in));
+      engine.watermarkMillis = in.readLong();
+      engine.baskets = in.readLong();
+      engine.pairUpdates = in.readLong();
+      engine.expiredWindowUpdates = in.readLong();
+      engine.sampling().restore(in.readLong(), in.readLong());
+      for (HorizonState state : engine.horizons) {
+        state.newestPane = in.readLong();
+        state.landmarkMillis = in.readLong();
+        for (int p = 0; p < state.paneCount; p++) {
+          state.paneOfSlot[p] = in.readLong();
+          state.basketWeight[p] = in.readDouble();
+          state.itemSketch[p].readCounters(in);
+          state.pairSketch[p].readCounters(in);
+        }
+      }
+      readTable(in, engine.items);
+      readTable(in, engine.pairs);
+      if (in.available() != 0) {
+        throw new SnapshotFormatException("snapshot has " + in.available() + " unread bytes after the state");
+      }
+      return engine;
+    } catch (EOFException e) {
+      throw new SnapshotFormatException("snapshot payload ends early", e);
+    } catch (IOException | IllegalArgumentException e) {
+      throw new SnapshotFormatException("snapshot payload unreadable: " + e.getMessage(), e);
+    }
+  }
+
+  /** Reads the configuration a snapshot was written with, without loading its state. */
+  public static EngineConfig configOf(byte[] snapshot) {
+    read(snapshot); // validates fully first
+    try {
+      return readConfig(new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES)));
+    } catch (IOException e) {
+      throw new SnapshotFormatException("snapshot configuration unreadable", e);
+    }
+  }
+
+  private static void writeConfig(DataOutputStream out, EngineConfig config) throws IOException {
+    out.writeInt(config.horizons().size());
+    for (HorizonSpec spec : config.horizons()) {
+      out.writeUTF(spec.name());
+      out.writeByte(spec.kind().ordinal());
+      out.writeLong(spec.lengthMillis());
+      out.writeInt(spec.paneCount());
+      out.writeLong(spec.halfLifeMillis());
+    }
+    out.writeUTF(config.trackingHorizon());
+    out.writeDouble(config.itemEpsilon());
+    out.writeDouble(config.itemDelta());
+    out.writeDouble(config.pairEpsilon());
+    out.writeDouble(config.pairDelta());
+    out.writeInt(config.trackedPairCapacity());
+    out.writeInt(config.trackedItemCapacity());
+    out.writeInt(config.maxPairsPerBasket());
+    out.writeByte(config.updateRule().ordinal());
+    out.writeLong(config.seed());
+  }
+
+  private static EngineConfig readConfig(DataInputStream in) throws IOException {
+    int count = in.readInt();
+    if (count < 1 || count > 64) {
+      throw new SnapshotFormatException("snapshot names " + count + " horizons");
+    }
+    List<HorizonSpec> horizons = new ArrayList<>();
+    for (int i = 0; i < count; i++) {
+      String name = in.readUTF();
+      int kind = in.readByte();
+      if (kind < 0 || kind >= HorizonKind.values().length) {
+        throw new SnapshotFormatException("snapshot horizon '" + name + "' has unknown kind " + kind);
+      }
+      horizons.add(new HorizonSpec(name, HorizonKind.values()[kind], in.readLong(), in.readInt(), in.readLong()));
+    }
+    String tracking = in.readUTF();
+    double itemEpsilon = in.readDouble();
+    double itemDelta = in.readDouble();
+    double pairEpsilon = in.readDouble();
+    double pairDelta = in.readDouble();
+    int pairCapacity = in.readInt();
+    int itemCapacity = in.readInt();
+    int maxPairs = in.readInt();
+    int rule = in.readByte();
+    if (rule < 0 || rule >= UpdateRule.values().length) {
+      throw new SnapshotFormatException("snapshot has unknown update rule " + rule);
+    }
+    return new EngineConfig(horizons, tracking, itemEpsilon, itemDelta, pairEpsilon, pairDelta, pairCapacity,
+        itemCapacity, maxPairs, UpdateRule.values()[rule], in.readLong());
+  }
+
+  private static void writeTable(DataOutputStream out, TrackedTable table) throws IOException {
+    out.writeInt(table.size());
+    out.writeLong(table.admissions);
+    out.writeLong(table.evictions);
+    out.writeLong(table.rejections);
+    for (int s = 0; s < table.size(); s++) {
+      out.writeLong(table.keys[s]);
+      writeNullable(out, table.labelA[s]);
+      writeNullable(out, table.labelB[s]);
+      out.writeLong(table.hashA[s]);
+      out.writeLong(table.hashB[s]);
+      out.writeLong(table.admittedAtMillis[s]);
+      for (int c = 0; c < table.cellCount; c++) {
+        out.writeDouble(table.cells[s * table.cellCount + c]);
+      }
+      for (int w = 0; w < table.windowCount; w++) {
+        out.writeLong(table.admissionPane[s * table.windowCount + w]);
+      }
+      for (int d = 0; d < table.decayCount; d++) {
+        out.writeDouble(table.admissionError[s * table.decayCount + d]);
+      }
+    }
+  }
+
+  private static void readTable(DataInputStream in, TrackedTable table) throws IOException {
+    int size = in.readInt();
+    if (size < 0 || size > table.capacity) {
+      throw new SnapshotFormatException("snapshot table holds " + size + " keys, capacity is " + table.capacity);
+    }
+    table.admissions = in.readLong();
+    table.evictions = in.readLong();
+    table.rejections = in.readLong();
+    for (int s = 0; s < size; s++) {
+      table.keys[s] = in.readLong();
+      table.labelA[s] = readNullable(in);
+      table.labelB[s] = readNullable(in);
+      table.hashA[s] = in.readLong();
+      table.hashB[s] = in.readLong();
+      table.admittedAtMillis[s] = in.readLong();
+      for (int c = 0; c < table.cellCount; c++) {
+        table.cells[s * table.cellCount + c] = in.readDouble();
+      }
+      for (int w = 0; w < table.windowCount; w++) {
+        table.admissionPane[s * table.windowCount + w] = in.readLong();
+      }
+      for (int d = 0; d < table.decayCount; d++) {
+        table.admissionError[s * table.decayCount + d] = in.readDouble();
+      }
+    }
+    table.rebuild(size);
+  }
+
+  private static void writeNullable(DataOutputStream out, String value) throws IOException {
+    out.writeBoolean(value != null);
+    if (value != null) {
+      out.writeUTF(value);
+    }
+  }
+
+  private static String readNullable(DataInputStream in) throws IOException {
+    return in.readBoolean() ? in.readUTF() : null;
+  }
+}

@@ -1,0 +1,253 @@
+package org.pairpulse.sketch.engine;
+
+import com.carrotsearch.hppc.LongIntHashMap;
+import java.util.Arrays;
+
+/**
+ * A bounded table of tracked keys (items or pairs) with per-cell counts, ranked by a Space-Saving
+ * min-heap on the count of one cell (the tracking horizon's decayed weight).
+ *
+ * <h2>Layout</h2>
+ * <pre>
+ *   slot s in [0, capacity):  keys[s], labelA[s], labelB[s], hashA[s], hashB[s], admittedAtMillis[s]
+ *   cells[s * cellCount + c]            count of the key in cell c (a pane of a window, or a decay)
+ *   admissionPane[s * windowCount + w]  newest pane of window w when s was admitted (counts of panes up
+ *                                       to it began as count-min estimates); Long.MIN_VALUE if exact
+ *   admissionError[s * decayCount + d]  overcount bound inherited at admission in decay d (forward units)
+ *   heap[i]  slot at heap position i (min-heap on cells[s * cellCount + trackingCell]); heapPos[s] = i
+ * </pre>
+ *
+ * <h2>Space-Saving with an admission test</h2>
+ * The heap and the eviction rule are those of Space-Saving (Metwally, Agrawal, El Abbadi 2005), with
+ * weighted increments. A key that is not tracked enters only if its count-min estimate exceeds the
+ * smallest tracked count {@code m}, and then starts at {@code min(estimate, m + w)}. That start is an
+ * upper bound of its true weight (an untracked key weighed at most {@code m} before this update, and the
+ * estimate never undercounts), and the sum of tracked counts never exceeds the stream's total weight
+ * {@code W}, so {@code m ≤ W / capacity} and every key heavier than {@code W / capacity} is tracked:
+ * the Space-Saving guarantee. The test only skips keys that could not have displaced the minimum, so it
+ * saves the heap work without weakening the guarantee.
+ *
+ * <p>The engine fills cells at admission; this class keeps the structure consistent. Not thread-safe.
+ */
+final class TrackedTable {
+  final int capacity;
+  final int cellCount;
+  final int trackingCell;
+  final int windowCount;
+  final int decayCount;
+
+  final long[] keys;
+  final String[] labelA;
+  final String[] labelB;
+  final long[] hashA;
+  final long[] hashB;
+  final long[] admittedAtMillis;
+  final double[] cells;
+  final long[] admissionPane;
+  final double[] admissionError;
+
+  private final int[] heap;
+  private final int[] heapPos;
+  private final LongIntHashMap index;
+  private int size;
+
+  long admissions;
+  long evictions;
+  long rejections;
+
+  TrackedTable(int capacity, int cellCount, int trackingCell, int windowCount, int decayCount) {
+    this.capacity = capacity;
+    this.cellCount = cellCount;
+    this.trackingCell = trackingCell;
+    this.windowCount = windowCount;
+    this.decayCount = decayCount;
+    this.keys = new long[capacity];
+    this.labelA = new String[capacity];
+    this.labelB = new String[capacity];
+    this.hashA = new long[capacity];
+    this.hashB = new long[capacity];
+    this.admittedAtMillis = new long[capacity];
+    this.cells = new double[capacity * cellCount];
+    this.admissionPane = new long[capacity * Math.max(windowCount, 1)];
+    this.admissionError = new double[capacity * Math.max(decayCount, 1)];
+    this.heap = new int[capacity];
+    this.heapPos = new int[capacity];
+    this.index = new LongIntHashMap(capacity);
+  }
+
+  int size() {
+    return size;
+  }
+
+  boolean isFull() {
+    return size == capacity;
+  }
+
+  /** Slot of {@code key}, or −1. */
+  int find(long key) {
+    return index.getOrDefault(key, -1);
+  }
+
+  /** The tracking count of {@code slot}. */
+  double count(int slot) {
+    return cells[slot * cellCount + trackingCell];
+  }
+
+  /** The smallest tracking count (0 when empty). */
+  double minCount() {
+    return size == 0 ? 0 : count(heap[0]);
+  }
+
+  /**
+   * Takes a slot for {@code key}: a fresh one while not full, else the minimum's (evicting it). The
+   * slot's cells are zeroed; the caller fills them and then calls {@link #placed(int)}.
+   */
+  int admit(long key, String a, String b, long ha, long hb, long eventMillis) {
+    int slot;
+    if (size < capacity) {
+      slot = size;
+      heap[size] = slot;
+      heapPos[slot] = size;
+      size++;
+    } else {
+      slot = heap[0];
+      index.remove(keys[slot]);
+      evictions++;
+    }
+    admissions++;
+    keys[slot] = key;
+    labelA[slot] = a;
+    labelB[slot] = b;
+    hashA[slot] = ha;
+    hashB[slot] = hb;
+    admittedAtMillis[slot] = eventMillis;
+    Arrays.fill(cells, slot * cellCount, slot * cellCount + cellCount, 0.0);
+    if (windowCount > 0) {
+      Arrays.fill(admissionPane, slot * windowCount, slot * windowCount + windowCount, Long.MIN_VALUE);
+    }
+    if (decayCount > 0) {
+      Arrays.fill(admissionError, slot * decayCount, slot * decayCount + decayCount, 0.0);
+    }
+    index.put(key, slot);
+    return slot;
+  }
+
+  /** Restores heap order after {@code slot}'s tracking count was set at admission. */
+  void placed(int slot) {
+    int pos = heapPos[slot];
+    siftUp(pos);
+    siftDown(heapPos[slot]);
+  }
+
+  /** Restores heap order after {@code slot}'s tracking count grew. */
+  void increased(int slot) {
+    siftDown(heapPos[slot]);
+  }
+
+  /** Zeroes cell {@code cell} of every slot (a pane left its window). */
+  void clearCell(int cell) {
+    for (int s = 0; s < size; s++) {
+      cells[s * cellCount + cell] = 0.0;
+    }
+  }
+
+  /** Multiplies cell {@code cell} and decay {@code decay}'s admission errors by {@code factor} (a rescale). */
+  void scaleDecay(int cell, int decay, double factor) {
+    for (int s = 0; s < size; s++) {
+      cells[s * cellCount + cell] *= factor;
+      admissionError[s * decayCount + decay] *= factor;
+    }
+  }
+
+  /** Rebuilds heap and index from the slot arrays (after a bulk load). */
+  void rebuild(int newSize) {
+    size = newSize;
+    index.clear();
+    for (int s = 0; s < size; s++) {
+      heap[s] = s;
+      heapPos[s] = s;
+      index.put(keys[s], s);
+    }
+    for (int i = size / 2 - 1; i >= 0; i--) {
+      siftDown(i);
+    }
+  }
+
+  private void siftUp(int pos) {
+    int slot = heap[pos];
+    double value = count(slot);
+    while (pos > 0) {
+      int parent = (pos - 1) >>> 1;
+      int parentSlot = heap[parent];
+      if (count(parentSlot) <= value) {
+        break;
+      }
+      heap[pos] = parentSlot;
+      heapPos[parentSlot] = pos;
+      pos = parent;
+    }
+    heap[pos] = slot;
+    heapPos[slot] = pos;
+  }
+
+  private void siftDown(int pos) {
+    int slot = heap[pos];
+    double value = count(slot);
+    int half = size >>> 1;
+    while (pos < half) {
+      int child = 2 * pos + 1;
+      int childSlot = heap[child];
+      double childValue = count(childSlot);
+      int right = child + 1;
+      if (right < size) {
+        int rightSlot = heap[right];
+        double rightValue = count(rightSlot);
+        if (rightValue < childValue) {
+          child = right;
+          childSlot = rightSlot;
+          childValue = rightValue;
+        }
+      }
+      if (value <= childValue) {
+        break;
+      }
+      heap[pos] = childSlot;
+      heapPos[childSlot] = pos;
+      pos = child;
+    }
+    heap[pos] = slot;
+    heapPos[slot] = pos;
+  }
+
+  /** Heap bytes of the fixed arrays plus the labels currently held (estimated as compact strings). */
+  long stateBytes() {
+    long bytes = 8L * keys.length * 4 // keys, hashA, hashB, admittedAtMillis
+        + 8L * cells.length + 8L * admissionPane.length + 8L * admissionError.length
+        + 4L * heap.length * 2 // heap, heapPos
+        + 2L * 4 * capacity // label references (compressed oops)
+        + (long) index.keys.length * 12; // hppc index: long keys + int values
+    for (int s = 0; s < size; s++) {
+      bytes += labelBytes(labelA[s]) + labelBytes(labelB[s]);
+    }
+    return bytes;
+  }
+
+  private static long labelBytes(String label) {
+    return label == null ? 0 : 40L + label.length();
+  }
+
+  /** True when the heap property holds (for assertions in tests). */
+  boolean heapValid() {
+    for (int i = 1; i < size; i++) {
+      if (count(heap[(i - 1) >>> 1]) > count(heap[i])) {
+        return false;
+      }
+    }
+    for (int s = 0; s < size; s++) {
+      if (heap[heapPos[s]] != s || index.getOrDefault(keys[s], -1) != s) {
+        return false;
+      }
+    }
+    return true;
+  }
+}

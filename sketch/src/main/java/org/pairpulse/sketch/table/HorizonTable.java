@@ -1,0 +1,31 @@
+package org.pairpulse.sketch.table;
+
+import java.util.Collections;
+import java.util.List;
+import java.util.Map;
+import org.pairpulse.sketch.stats.Estimate;
+
+/**
+ * One horizon's part of a pair table: N, the tracked items' counts, every tracked pair's statistics
+ * (sorted by the table's measure, best first) and each item's neighbours in that order.
+ *
+ * @param name the horizon
+ * @param baskets N in basket units as of the watermark
+ * @param pairs all published pairs, best first
+ * @param neighbours for each item, the published pairs that contain it, best first
+ * @param itemCounts n_a of every tracked item
+ */
+public record HorizonTable(String name, double baskets, List<PairStats> pairs, Map<String, List<PairStats>> neighbours,
+    Map<String, Estimate> itemCounts) {
+
+  public HorizonTable {
+    pairs = Collections.unmodifiableList(pairs);
+    neighbours = Collections.unmodifiableMap(neighbours);
+    itemCounts = Collections.unmodifiableMap(itemCounts);
+  }
+
+  /** The neighbours of {@code item}, best first; empty for unknown items. */
+  public List<PairStats> neighboursOf(String item) {
+    return neighbours.getOrDefault(item, List.of());
+  }
+}

@@ -1,0 +1,104 @@
+package org.pairpulse.sketch.table;
+
+import java.util.List;
+import java.util.Map;
+import java.util.Optional;
+import org.pairpulse.sketch.stats.Estimate;
+import org.pairpulse.sketch.stats.Measure;
+
+/**
+ * The immutable result of a refresh: statistics of every tracked pair per horizon, plus each item's
+ * neighbours sorted by the table's measure. Safe to share between threads; never changes.
+ */
+public final class PairTable {
+  private static final PairTable EMPTY = new PairTable(0, 0, Long.MIN_VALUE, Measure.SHRUNK_LIFT, Map.of(), List.of());
+
+  private final long version;
+  private final long publishedAtMillis;
+  private final long watermarkMillis;
+  private final Measure sortMeasure;
+  private final Map<String, HorizonTable> horizons;
+  private final List<String> horizonNames;
+
+  /**
+   * @param version increasing publication number (0 only for the empty table)
+   * @param publishedAtMillis wall-clock time of the refresh
+   * @param watermarkMillis event time the counts are as of
+   * @param sortMeasure the measure that orders pairs and neighbours
+   * @param horizons the horizon tables by name
+   * @param horizonNames horizon names in configuration order
+   */
+  public PairTable(long version, long publishedAtMillis, long watermarkMillis, Measure sortMeasure,
+      Map<String, HorizonTable> horizons, List<String> horizonNames) {
+    this.version = version;
+    this.publishedAtMillis = publishedAtMillis;
+    this.watermarkMillis = watermarkMillis;
+    this.sortMeasure = sortMeasure;
+    this.horizons = Map.copyOf(horizons);
+    this.horizonNames = List.copyOf(horizonNames);
+  }
+
+  /** The table before any refresh: no horizons, no pairs, version 0. */
+  public static PairTable empty() {
+    return EMPTY;
+  }
+
+  public long version() {
+    return version;
+  }
+
+  public long publishedAtMillis() {
+    return publishedAtMillis;
+  }
+
+  public long watermarkMillis() {
+    return watermarkMillis;
+  }
+
+  public Measure sortMeasure() {
+    return sortMeasure;
+  }
+
+  /** Horizon names in configuration order. */
+  public List<String> horizonNames() {
+    return horizonNames;
+  }
+
+  /** The horizon's table, if the horizon exists. */
+  public Optional<HorizonTable> horizon(String name) {
+    return Optional.ofNullable(horizons.get(name));
+  }
+
+  /** All published pairs of a horizon, best first (empty for an unknown horizon). */
+  public List<PairStats> pairs(String horizon) {
+    HorizonTable table = horizons.get(horizon);
+    return table == null ? List.of() : table.pairs();
+  }
+
+  /** Neighbours of an item in a horizon, best first (empty when unknown). */
+  public List<PairStats> neighbours(String item, String horizon) {
+    HorizonTable table = horizons.get(horizon);
+    return table == null ? List.of() : table.neighboursOf(item);
+  }
+
+  /** The pair {a, b} in a horizon, if tracked. */
+  public Optional<PairStats> pair(String itemA, String itemB, String horizon) {
+    for (PairStats stats : neighbours(itemA, horizon)) {
+      if (stats.other(itemA).equals(itemB)) {
+        return Optional.of(stats);
+      }
+    }
+    return Optional.empty();
+  }
+
+  /** n_a of a tracked item in a horizon. */
+  public Optional<Estimate> itemCount(String item, String horizon) {
+    HorizonTable table = horizons.get(horizon);
+    return table == null ? Optional.empty() : Optional.ofNullable(table.itemCounts().get(item));
+  }
+
+  /** Tracked pairs published (the same in every horizon). */
+  public int pairCount() {
+    return horizonNames.isEmpty() ? 0 : pairs(horizonNames.get(0)).size();
+  }
+}
