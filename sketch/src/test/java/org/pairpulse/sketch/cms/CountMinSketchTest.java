@@ -1,0 +1,166 @@
+package org.pairpulse.sketch.cms;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.util.HashMap;
+import java.util.Map;
+import java.util.SplittableRandom;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.EnumSource;
+import org.junit.jupiter.api.Test;
+
+/** Count-min sketches against exact maps and against stream-lib's sketches at equal (ε, δ). */
+class CountMinSketchTest {
+
+  /** Zipf-like keys: key k with probability ∝ 1/k (a seeded stream with a heavy head and a long tail). */
+  private static Map<Long, Long> zipfStream(long seed, int distinct, int length, java.util.function.BiConsumer<Long, Long> sink) {
+    SplittableRandom random = new SplittableRandom(seed);
+    double[] cumulative = new double[distinct];
+    double sum = 0;
+    for (int i = 0; i < distinct; i++) {
+      sum += 1.0 / (i + 1);
+      cumulative[i] = sum;
+    }
+    Map<Long, Long> exact = new HashMap<>();
+    for (int n = 0; n < length; n++) {
+      double u = random.nextDouble() * sum;
+      int lo = 0;
+      int hi = distinct - 1;
+      while (lo < hi) {
+        int mid = (lo + hi) >>> 1;
+        if (cumulative[mid] < u) {
+          lo = mid + 1;
+        } else {
+          hi = mid;
+        }
+      }
+      long key = 0x1234_5678L * (lo + 1) + 17; // distinct, non-sequential keys
+      long weight = 1 + random.nextInt(3);
+      exact.merge(key, weight, Long::sum);
+      sink.accept(key, weight);
+    }
+    return exact;
+  }
+
+  @Test
+  void sizingFollowsCormodeMuthukrishnan() {
+    // width ⌈e/ε⌉ rounded up to a power of two, depth ⌈ln 1/δ⌉ (Cormode and Muthukrishnan 2005, §3)
+    assertEquals(4096, CountMinSketch.widthFor(0.001)); // e/0.001 = 2718.3 → 4096
+    assertEquals(2048, CountMinSketch.widthFor(0.0014)); // e/0.0014 = 1941.6 → 2048
+    assertEquals(4, CountMinSketch.depthFor(0.02)); // ln 50 = 3.91 → 4
+    assertEquals(5, CountMinSketch.depthFor(0.01)); // ln 100 = 4.61 → 5
+    CountMinSketch sketch = CountMinSketch.forError(0.001, 0.02, UpdateRule.LINEAR, 1);
+    assertTrue(sketch.epsilon() <= 0.001 && sketch.delta() <= 0.02);
+    assertThrows(IllegalArgumentException.class, () -> CountMinSketch.widthFor(0));
+    assertThrows(IllegalArgumentException.class, () -> CountMinSketch.depthFor(1.5));
+    assertThrows(IllegalArgumentException.class, () -> new CountMinSketch(1000, 4, UpdateRule.LINEAR, 1));
+  }
+
+  @ParameterizedTest
+  @EnumSource(UpdateRule.class)
+  void neverUndercountsAndTheErrorBoundHoldsForAtLeastOneMinusDeltaOfQueries(UpdateRule rule) {
+    CountMinSketch sketch = CountMinSketch.forError(0.002, 0.05, rule, 99);
+    Map<Long, Long> exact = zipfStream(5, 50_000, 400_000, sketch::add);
+    int beyondBound = 0;
+    for (Map.Entry<Long, Long> e : exact.entrySet()) {
+      double estimate = sketch.estimate(e.getKey());
+      assertTrue(estimate >= e.getValue(), "undercount: " + estimate + " < " + e.getValue());
+      assertTrue(sketch.lowerBound(e.getKey()) <= estimate && sketch.upperBound(e.getKey()) == estimate);
+      if (estimate - e.getValue() > sketch.maxError()) {
+        beyondBound++;
+      }
+    }
+    // Cormode and Muthukrishnan 2005, Theorem 1: P[estimate > f + εW] ≤ δ for each query
+    double share = (double) beyondBound / exact.size();
+    assertTrue(share <= sketch.delta(), rule + ": " + share + " of queries beyond ε·W, δ = " + sketch.delta());
+    assertEquals(exact.values().stream().mapToLong(Long::longValue).sum(), sketch.totalWeight(), 1e-6);
+  }
+
+  @Test
+  void conservativeUpdateIsNeverWorseThanLinear() {
+    CountMinSketch linear = new CountMinSketch(1024, 4, UpdateRule.LINEAR, 3);
+    CountMinSketch conservative = new CountMinSketch(1024, 4, UpdateRule.CONSERVATIVE, 3);
+    Map<Long, Long> exact = zipfStream(8, 20_000, 100_000, (k, w) -> {
+      linear.add(k, w);
+      conservative.add(k, w);
+    });
+    double linearError = 0;
+    double conservativeError = 0;
+    for (Map.Entry<Long, Long> e : exact.entrySet()) {
+      double lin = linear.estimate(e.getKey());
+      double con = conservative.estimate(e.getKey());
+      assertTrue(con <= lin && con >= e.getValue(), "Estan and Varghese 2002: f ≤ CU ≤ linear");
+      linearError += lin - e.getValue();
+      conservativeError += con - e.getValue();
+    }
+    assertTrue(conservativeError < linearError, "conservative update must gain on a skewed stream");
+  }
+
+  @Test
+  void linearSketchesMergeSubtractAndScale() {
+    CountMinSketch a = new CountMinSketch(256, 3, UpdateRule.LINEAR, 7);
+    CountMinSketch b = new CountMinSketch(256, 3, UpdateRule.LINEAR, 7);
+    CountMinSketch union = new CountMinSketch(256, 3, UpdateRule.LINEAR, 7);
+    zipfStream(1, 1_000, 5_000, (k, w) -> {
+      a.add(k, w);
+      union.add(k, w);
+    });
+    zipfStream(2, 1_000, 5_000, (k, w) -> {
+      b.add(k, w);
+      union.add(k, w);
+    });
+    CountMinSketch merged = a.copy();
+    merged.merge(b);
+    assertTrue(merged.sameCountersAs(union), "merge of disjoint streams equals the sketch of the union");
+    merged.subtract(b);
+    assertTrue(merged.sameCountersAs(a), "subtracting a part gives back the rest (integer weights are exact)");
+    CountMinSketch doubled = a.copy();
+    doubled.scale(2.0);
+    doubled.scale(0.5);
+    assertTrue(doubled.sameCountersAs(a), "scaling by powers of two is exact");
+    CountMinSketch conservative = new CountMinSketch(256, 3, UpdateRule.CONSERVATIVE, 7);
+    assertThrows(IllegalStateException.class, () -> conservative.subtract(conservative.copy()));
+    assertThrows(IllegalArgumentException.class, () -> a.merge(new CountMinSketch(256, 3, UpdateRule.LINEAR, 8)));
+  }
+
+  /**
+   * Side by side with stream-lib (com.clearspring.analytics:stream 2.9.8) at equal (ε, δ): our mean
+   * overestimate must be no worse. stream-lib sizes width ⌈2/ε⌉ and depth ⌈−ln(1−confidence)/ln 2⌉.
+   */
+  @Test
+  void meanOverestimateNoWorseThanStreamLib() {
+    double epsilon = 0.001;
+    double delta = 0.01;
+    CountMinSketch ours = CountMinSketch.forError(epsilon, delta, UpdateRule.LINEAR, 21);
+    CountMinSketch oursConservative = CountMinSketch.forError(epsilon, delta, UpdateRule.CONSERVATIVE, 21);
+    com.clearspring.analytics.stream.frequency.CountMinSketch theirs =
+        new com.clearspring.analytics.stream.frequency.CountMinSketch(epsilon, 1 - delta, 21);
+    com.clearspring.analytics.stream.frequency.ConservativeAddSketch theirsConservative =
+        new com.clearspring.analytics.stream.frequency.ConservativeAddSketch(epsilon, 1 - delta, 21);
+    Map<Long, Long> exact = zipfStream(13, 100_000, 500_000, (k, w) -> {
+      ours.add(k, w);
+      oursConservative.add(k, w);
+      theirs.add(k, w);
+      theirsConservative.add(k, w);
+    });
+    double oursError = 0;
+    double theirsError = 0;
+    double oursCuError = 0;
+    double theirsCuError = 0;
+    for (Map.Entry<Long, Long> e : exact.entrySet()) {
+      long truth = e.getValue();
+      oursError += ours.estimate(e.getKey()) - truth;
+      theirsError += theirs.estimateCount(e.getKey()) - truth;
+      oursCuError += oursConservative.estimate(e.getKey()) - truth;
+      theirsCuError += theirsConservative.estimateCount(e.getKey()) - truth;
+      assertTrue(theirs.estimateCount(e.getKey()) >= truth, "reference sanity: stream-lib never undercounts");
+    }
+    int n = exact.size();
+    assertTrue(oursError / n <= theirsError / n,
+        "linear: ours " + oursError / n + " vs stream-lib " + theirsError / n);
+    assertTrue(oursCuError / n <= theirsCuError / n,
+        "conservative: ours " + oursCuError / n + " vs stream-lib " + theirsCuError / n);
+  }
+}
