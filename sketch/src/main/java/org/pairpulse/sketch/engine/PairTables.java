@@ -42,9 +42,9 @@ public final class PairTables {
       }
     }
 
-    /** Default settings, sorted by shrunk lift, every tracked pair with n_ab ≥ 1. */
+    /** Default settings, sorted by shrunk lift, every tracked pair with a positive n_ab. */
     public static Options of(long version, long publishedAtMillis) {
-      return new Options(version, publishedAtMillis, MeasureSettings.defaults(), Measure.SHRUNK_LIFT, 1.0);
+      return new Options(version, publishedAtMillis, MeasureSettings.defaults(), Measure.SHRUNK_LIFT, 0.0);
     }
   }
 

@@ -21,7 +21,10 @@ package org.pairpulse.sketch.stats;
  * <pre>
  *   Var(ln lift) ≈ 1/n_ab − 1/n_a − 1/n_b + (2·lift − 1)/N
  * </pre>
- * (at lift = 1 this is 1/n_ab − 1/n_a − 1/n_b + 1/N). It is floored at
+ * At lift = 1 this is 1/n_ab − 1/n_a − 1/n_b + 1/N, but that simpler form under-covers strongly
+ * associated pairs of common items (in a simulation at P(a) = P(b) = 0.5, P(ab) = 0.4, N = 20,000
+ * it is negative and a nominal 95% interval covered 29% of the time; the full form covered 95%).
+ * It is floored at
  * {@value #VARIANCE_FLOOR_FRACTION}/n_ab, a guard rather than a model, so that inconsistent
  * (overcounted, weighted) inputs or a table with every basket holding both items never give a
  * zero-width or NaN interval.

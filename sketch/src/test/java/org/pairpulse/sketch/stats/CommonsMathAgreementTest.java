@@ -60,14 +60,15 @@ class CommonsMathAgreementTest {
     @Test
     void thousandRandomTablesAgreeWithCommonsMath() {
         SplittableRandom random = new SplittableRandom(20240611L);
-        long[] cellCaps = {0, 1, 2, 3, 5, 10, 100, 10_000, 1_000_000};
+        long[] cellCaps = {1, 2, 3, 5, 10, 100, 10_000, 1_000_000};
         int comparedWithCommons = 0;
         int zeroMargins = 0;
+        int exactlyIndependent = 0;
         for (int i = 0; i < 1000; i++) {
             long[] k = new long[4];
             for (int cell = 0; cell < 4; cell++) {
                 long cap = cellCaps[random.nextInt(cellCaps.length)];
-                k[cell] = random.nextInt(4) == 0 ? 0 : random.nextLong(cap + 1); // a zero cell often
+                k[cell] = random.nextInt(8) == 0 ? 0 : random.nextLong(cap + 1); // zero cells often
             }
             String table = "table " + k[0] + " " + k[1] + " " + k[2] + " " + k[3];
             PairMeasures m = measuresOfTable(k[0], k[1], k[2], k[3]);
@@ -85,18 +86,28 @@ class CommonsMathAgreementTest {
             long[] row2 = {k[2], k[3]};
             double expectedG = G_TEST.gDataSetsComparison(row1, row2);
             Close.assertClose(expectedG, m.gSquared(), 1e-9, table + " G²");
-            assertEquals(G_TEST.rootLogLikelihoodRatio(k[0], k[1], k[2], k[3]), m.signedRootGSquared(),
-                    1e-6 * Math.max(1, Math.abs(m.signedRootGSquared())), table + " signed root");
+            if (k[0] * k[3] == k[1] * k[2]) {
+                // exact independence: commons' G² can round to a tiny negative number and its root to
+                // NaN; ours is exactly 0
+                exactlyIndependent++;
+                assertEquals(0.0, m.signedRootGSquared(), table);
+            } else {
+                assertEquals(G_TEST.rootLogLikelihoodRatio(k[0], k[1], k[2], k[3]), m.signedRootGSquared(),
+                        1e-6 * Math.max(1, Math.abs(m.signedRootGSquared())), table + " signed root");
+            }
             Close.assertClose(CHI_SQUARE_TEST.chiSquare(new long[][] {row1, row2}), m.chiSquare(), 1e-9,
                     table + " chi-square");
             // p-value: commons' G-test p-value (df = 1) and 1 − CDF of χ² with 1 degree of freedom
-            assertEquals(G_TEST.gTestDataSetsComparison(row1, row2), m.gSquaredPValue(), 1e-9, table + " p");
+            // near G² = 0 the p-value's slope is ~1/√G², so the two G² implementations' rounding shows
+            // up amplified: compare with commons' p loosely and with the CDF at our own G² tightly
+            assertEquals(G_TEST.gTestDataSetsComparison(row1, row2), m.gSquaredPValue(), 1e-6, table + " p");
             assertEquals(1.0 - CHI_SQUARED_ONE_DF.cumulativeProbability(m.gSquared()), m.gSquaredPValue(),
                     1e-9, table + " p vs CDF");
         }
         // the generator must exercise both branches
-        assertTrue(comparedWithCommons > 500, "compared " + comparedWithCommons);
+        assertTrue(comparedWithCommons > 600, "compared " + comparedWithCommons);
         assertTrue(zeroMargins > 20, "zero margins " + zeroMargins);
+        assertTrue(exactlyIndependent > 0, "exactly independent " + exactlyIndependent);
     }
 
     @Test
