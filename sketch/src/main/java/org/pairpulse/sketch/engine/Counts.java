@@ -6,10 +6,11 @@ import org.pairpulse.sketch.stats.Estimate;
 /**
  * Reads N, n_a and n_ab with bounds from an engine, as of its watermark.
  *
- * <p>A tracked key's count in a cell is exact since admission plus, for cells that existed before,
- * the count-min estimate taken at admission (an upper bound). Its lower bound subtracts the inherited
- * error: ε·W of each pane that existed at admission (windows; W only grows, so today's ε·W bounds the
- * error at admission) or the error recorded at admission (decays). An untracked key is read from the
+ * <p>A tracked key's count in a window is read pane by pane: panes newer than its admission pane are
+ * exact; the admission pane holds the count-min estimate taken at admission plus exact counts since;
+ * older panes are read from their sketches. The lower bound subtracts ε·W of each pane that is not
+ * exact (W only grows, so today's ε·W bounds the error at admission). In a decay the count is the
+ * estimate at admission plus exact counts since, less the error recorded at admission. An untracked key is read from the
  * sketches: the sum over live panes of their estimates, lower bound the sum of
  * {@code max(0, estimate − ε·W)} per pane. Each pane's bound holds with probability ≥ 1 − δ.
  */
@@ -48,16 +49,29 @@ final class Counts {
       return new Estimate(upper / scale, lower / scale, upper / scale);
     }
     long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
+    boolean pair = table == engine.pairs;
+    CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
+    long key = table.keys[slot];
     double upper = 0;
     double lower = 0;
     for (int p = 0; p < state.paneCount; p++) {
       if (!state.slotLive(p)) {
         continue;
       }
-      double count = table.cells[base + p];
-      upper += count;
-      boolean inherited = admittedPane != Long.MIN_VALUE && state.paneOfSlot[p] <= admittedPane;
-      lower += inherited ? Math.max(0, count - state.pairOrItemError(table == engine.pairs, p)) : count;
+      long pane = state.paneOfSlot[p];
+      if (admittedPane == Long.MIN_VALUE || pane > admittedPane) { // exact since admission
+        double count = table.cells[base + p];
+        upper += count;
+        lower += count;
+      } else if (pane == admittedPane) { // sketch estimate at admission + exact since
+        double count = table.cells[base + p];
+        upper += count;
+        lower += Math.max(0, count - sketches[p].maxError());
+      } else { // before admission: still in the pane's sketch
+        double estimate = sketches[p].estimate(key);
+        upper += estimate;
+        lower += Math.max(0, estimate - sketches[p].maxError());
+      }
     }
     return new Estimate(upper, Math.min(lower, upper), upper);
   }

@@ -20,7 +20,10 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
  *   <tr><td>horizons</td><td>recent, day, baseline</td><td>the time weightings kept (see {@link HorizonSpec})</td></tr>
  *   <tr><td>trackingHorizon</td><td>recent</td><td>the decay horizon whose weights rank tracked pairs and items</td></tr>
  *   <tr><td>itemEpsilon / itemDelta</td><td>0.002 / 0.02</td><td>item count-min error and failure probability</td></tr>
- *   <tr><td>pairEpsilon / pairDelta</td><td>0.001 / 0.02</td><td>pair count-min error and failure probability</td></tr>
+ *   <tr><td>pairEpsilon / pairDelta</td><td>0.001 / 0.02</td><td>pair count-min error and failure probability (each window pane)</td></tr>
+ *   <tr><td>decayPairEpsilon</td><td>0.00005</td><td>pair count-min error of a decay horizon: one sketch, not one per pane,
+ *       so it can afford to be wide; its estimates decide which pairs enter the tracked table, and a
+ *       narrow one lets the long tail churn through it</td></tr>
  *   <tr><td>trackedPairCapacity</td><td>16384</td><td>pairs for which statistics are kept (Space-Saving capacity)</td></tr>
  *   <tr><td>trackedItemCapacity</td><td>16384</td><td>items counted exactly once admitted</td></tr>
  *   <tr><td>maxPairsPerBasket</td><td>256</td><td>pairs counted per basket before sampling with inverse-probability weights</td></tr>
@@ -35,6 +38,7 @@ public record EngineConfig(
     double itemDelta,
     double pairEpsilon,
     double pairDelta,
+    double decayPairEpsilon,
     int trackedPairCapacity,
     int trackedItemCapacity,
     int maxPairsPerBasket,
@@ -69,6 +73,7 @@ public record EngineConfig(
     CountMinSketch.depthFor(itemDelta);
     CountMinSketch.widthFor(pairEpsilon);
     CountMinSketch.depthFor(pairDelta);
+    CountMinSketch.widthFor(decayPairEpsilon);
     requireRange("trackedPairCapacity", trackedPairCapacity, 2, MAX_CAPACITY);
     requireRange("trackedItemCapacity", trackedItemCapacity, 2, MAX_CAPACITY);
     requireRange("maxPairsPerBasket", maxPairsPerBasket, 1, 1 << 20);
@@ -94,7 +99,7 @@ public record EngineConfig(
 
   public Builder toBuilder() {
     return new Builder().horizons(horizons).trackingHorizon(trackingHorizon)
-        .itemError(itemEpsilon, itemDelta).pairError(pairEpsilon, pairDelta)
+        .itemError(itemEpsilon, itemDelta).pairError(pairEpsilon, pairDelta).decayPairEpsilon(decayPairEpsilon)
         .trackedPairCapacity(trackedPairCapacity).trackedItemCapacity(trackedItemCapacity)
         .maxPairsPerBasket(maxPairsPerBasket).updateRule(updateRule).seed(seed);
   }
@@ -112,6 +117,7 @@ public record EngineConfig(
     private double itemDelta = 0.02;
     private double pairEpsilon = 0.001;
     private double pairDelta = 0.02;
+    private double decayPairEpsilon = 0.00005;
     private int trackedPairCapacity = 16_384;
     private int trackedItemCapacity = 16_384;
     private int maxPairsPerBasket = 256;
@@ -137,6 +143,11 @@ public record EngineConfig(
     public Builder pairError(double epsilon, double delta) {
       this.pairEpsilon = epsilon;
       this.pairDelta = delta;
+      return this;
+    }
+
+    public Builder decayPairEpsilon(double value) {
+      this.decayPairEpsilon = value;
       return this;
     }
 
@@ -167,7 +178,7 @@ public record EngineConfig(
 
     public EngineConfig build() {
       return new EngineConfig(horizons, trackingHorizon, itemEpsilon, itemDelta, pairEpsilon, pairDelta,
-          trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed);
+          decayPairEpsilon, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed);
     }
   }
 }

@@ -143,6 +143,14 @@ final class EngineMerge {
       mine.hashA[s] = e.hashA;
       mine.hashB[s] = e.hashB;
       mine.admittedAtMillis[s] = e.admittedAtMillis;
+      for (HorizonState state : into.horizons) { // panes before admission are read from the merged sketches
+        long admitted = state.isWindow() ? e.admissionPane[state.kindOrdinal] : Long.MIN_VALUE;
+        for (int p = 0; admitted != Long.MIN_VALUE && p < state.paneCount; p++) {
+          if (state.paneOfSlot[p] < admitted) {
+            e.cells[state.cellOffset + p] = 0;
+          }
+        }
+      }
       System.arraycopy(e.cells, 0, mine.cells, s * mine.cellCount, mine.cellCount);
       System.arraycopy(e.admissionPane, 0, mine.admissionPane, s * mine.windowCount, mine.windowCount);
       System.arraycopy(e.admissionError, 0, mine.admissionError, s * mine.decayCount, mine.decayCount);
@@ -153,7 +161,11 @@ final class EngineMerge {
     mine.rebuild(keep);
   }
 
-  /** Copies slot s of {@code table} (owned by {@code owner}) into an entry laid out for {@code into}. */
+  /**
+   * Copies slot s of {@code table} (owned by {@code owner}) into an entry laid out for {@code into}, with
+   * every live window pane materialised: panes before the slot's admission pane read from the owner's
+   * sketches, the rest from its cells.
+   */
   private static Entry copyOut(TrackedTable table, int s, PairEngine into, PairEngine owner, double[] scale) {
     Entry e = new Entry();
     e.key = table.keys[s];
@@ -165,20 +177,25 @@ final class EngineMerge {
     e.cells = new double[table.cellCount];
     e.admissionPane = new long[table.windowCount];
     e.admissionError = new double[table.decayCount];
-    for (int w = 0; w < table.windowCount; w++) {
-      e.admissionPane[w] = table.admissionPane[s * table.windowCount + w];
-    }
+    boolean pair = table == owner.pairs;
     for (HorizonState state : into.horizons) {
       HorizonState source = owner.horizons[state.index];
-      for (int p = 0; p < state.paneCount; p++) {
-        boolean live = owner == into ? (!state.isWindow() || state.slotLive(p)) : otherPaneLive(state, source, p);
-        if (live) {
-          double factor = scale == null || state.isWindow() ? 1.0 : scale[state.index];
-          e.cells[state.cellOffset + p] = table.cells[s * table.cellCount + state.cellOffset + p] * factor;
+      if (state.isWindow()) {
+        long admitted = table.admissionPane[s * table.windowCount + state.kindOrdinal];
+        e.admissionPane[state.kindOrdinal] = admitted;
+        for (int p = 0; p < state.paneCount; p++) {
+          boolean live = owner == into ? state.slotLive(p) : otherPaneLive(state, source, p);
+          if (!live) {
+            continue;
+          }
+          long pane = source.paneOfSlot[p];
+          e.cells[state.cellOffset + p] = admitted != Long.MIN_VALUE && pane < admitted
+              ? (pair ? source.pairSketch[p] : source.itemSketch[p]).estimate(e.key)
+              : table.cells[s * table.cellCount + state.cellOffset + p];
         }
-      }
-      if (!state.isWindow()) {
+      } else {
         double factor = scale == null ? 1.0 : scale[state.index];
+        e.cells[state.cellOffset] = table.cells[s * table.cellCount + state.cellOffset] * factor;
         e.admissionError[state.kindOrdinal] = table.admissionError[s * table.decayCount + state.kindOrdinal] * factor;
       }
     }

@@ -53,7 +53,7 @@ final class HorizonState {
     this.halfLifeMillis = spec.halfLifeMillis();
     int itemWidth = CountMinSketch.widthFor(config.itemEpsilon());
     int itemDepth = CountMinSketch.depthFor(config.itemDelta());
-    int pairWidth = CountMinSketch.widthFor(config.pairEpsilon());
+    int pairWidth = CountMinSketch.widthFor(spec.isWindow() ? config.pairEpsilon() : config.decayPairEpsilon());
     int pairDepth = CountMinSketch.depthFor(config.pairDelta());
     this.itemSketch = new CountMinSketch[paneCount];
     this.pairSketch = new CountMinSketch[paneCount];
@@ -113,11 +113,6 @@ final class HorizonState {
   /** Divide stored decay values by this to get values as of {@code asOfMillis}. */
   double scaleAt(long asOfMillis) {
     return landmarkMillis == Long.MIN_VALUE ? 1.0 : decayWeight(asOfMillis);
-  }
-
-  /** ε·W of pane {@code slot}'s pair sketch (pairs) or item sketch (items). */
-  double pairOrItemError(boolean pair, int slot) {
-    return pair ? pairSketch[slot].maxError() : itemSketch[slot].maxError();
   }
 
   long stateBytes() {

@@ -57,6 +57,8 @@ public final class PairEngine {
   private String[] itemScratch = new String[64];
   private final int[] cellOfHorizon;
   private final double[] weightOfHorizon;
+  private final long[] eventPaneOfHorizon;
+  private final boolean[] lateOfHorizon;
 
   public PairEngine(EngineConfig config) {
     this.config = Objects.requireNonNull(config, "config");
@@ -83,6 +85,8 @@ public final class PairEngine {
     this.sampling = new PairSampling(config.maxPairsPerBasket());
     this.cellOfHorizon = new int[horizons.length];
     this.weightOfHorizon = new double[horizons.length];
+    this.eventPaneOfHorizon = new long[horizons.length];
+    this.lateOfHorizon = new boolean[horizons.length];
   }
 
   public EngineConfig config() {
@@ -165,7 +169,7 @@ public final class PairEngine {
       int base = slot * cellCount;
       for (int h = 0; h < horizons.length; h++) {
         int cell = cellOfHorizon[h];
-        if (cell >= 0) {
+        if (cell >= 0 && !(lateOfHorizon[h] && beforeAdmission(table, slot, h))) {
           table.cells[base + cell] += multiplier * weightOfHorizon[h];
         }
       }
@@ -200,18 +204,30 @@ public final class PairEngine {
     table.placed(slot);
   }
 
-  /** Fills a newly admitted slot from the count-min sketches (upper bounds) and records their error. */
+  /**
+   * A late basket (not in the newest pane) whose pane is older than the slot's admission pane: that
+   * pane is read from the sketches, which already hold it, so the tracked cell must not count it too.
+   */
+  private boolean beforeAdmission(TrackedTable table, int slot, int h) {
+    HorizonState state = horizons[h];
+    long admitted = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
+    return admitted != Long.MIN_VALUE && eventPaneOfHorizon[h] < admitted;
+  }
+
+  /**
+   * Fills a newly admitted slot from the count-min sketches (upper bounds) and records their error.
+   * Windows: only the newest pane's cell starts from its sketch estimate; older panes stay in the
+   * sketches and are read from there at query time (see {@link Counts}), so admission costs one
+   * estimate per horizon, not one per pane.
+   */
   private void initialiseFromSketches(TrackedTable table, int slot, boolean pair, long key, double trackingStart,
       double trackingEstimate) {
     int base = slot * cellCount;
     for (HorizonState state : horizons) {
       CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
       if (state.isWindow()) {
-        for (int p = 0; p < state.paneCount; p++) {
-          if (state.slotLive(p)) {
-            table.cells[base + state.cellOffset + p] = sketches[p].estimate(key);
-          }
-        }
+        int newest = state.slotOf(state.newestPane);
+        table.cells[base + state.cellOffset + newest] = sketches[newest].estimate(key);
         table.admissionPane[slot * table.windowCount + state.kindOrdinal] = state.newestPane;
       } else if (state.index == trackingHorizon) {
         double lower = Math.min(trackingStart, Math.max(0, trackingEstimate - sketches[0].maxError()));
@@ -234,6 +250,8 @@ public final class PairEngine {
         if (state.newestPane == Long.MIN_VALUE || pane > state.newestPane) {
           advanceWindow(state, pane);
         }
+        eventPaneOfHorizon[h] = pane;
+        lateOfHorizon[h] = pane < state.newestPane;
         if (pane < state.oldestLivePane()) {
           expiredWindowUpdates++;
           cellOfHorizon[h] = -1;

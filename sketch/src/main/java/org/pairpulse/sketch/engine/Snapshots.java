@@ -33,7 +33,7 @@ import org.pairpulse.sketch.snapshot.SnapshotFormatException;
  * payload:
  *   config    horizonCount:int, per horizon {name:utf, kind:byte, lengthMillis:long, paneCount:int,
  *             halfLifeMillis:long}, trackingHorizon:utf, itemEpsilon, itemDelta, pairEpsilon,
- *             pairDelta:double, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket:int,
+ *             pairDelta, decayPairEpsilon:double, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket:int,
  *             updateRule:byte, seed:long
  *   counters  watermarkMillis, baskets, pairUpdates, expiredWindowUpdates, cappedBaskets,
  *             pairsSkippedByCap:long
@@ -178,6 +178,7 @@ public final class Snapshots {
     out.writeDouble(config.itemDelta());
     out.writeDouble(config.pairEpsilon());
     out.writeDouble(config.pairDelta());
+    out.writeDouble(config.decayPairEpsilon());
     out.writeInt(config.trackedPairCapacity());
     out.writeInt(config.trackedItemCapacity());
     out.writeInt(config.maxPairsPerBasket());
@@ -204,6 +205,7 @@ public final class Snapshots {
     double itemDelta = in.readDouble();
     double pairEpsilon = in.readDouble();
     double pairDelta = in.readDouble();
+    double decayPairEpsilon = in.readDouble();
     int pairCapacity = in.readInt();
     int itemCapacity = in.readInt();
     int maxPairs = in.readInt();
@@ -211,7 +213,7 @@ public final class Snapshots {
     if (rule < 0 || rule >= UpdateRule.values().length) {
       throw new SnapshotFormatException("snapshot has unknown update rule " + rule);
     }
-    return new EngineConfig(horizons, tracking, itemEpsilon, itemDelta, pairEpsilon, pairDelta, pairCapacity,
+    return new EngineConfig(horizons, tracking, itemEpsilon, itemDelta, pairEpsilon, pairDelta, decayPairEpsilon, pairCapacity,
         itemCapacity, maxPairs, UpdateRule.values()[rule], in.readLong());
   }
 

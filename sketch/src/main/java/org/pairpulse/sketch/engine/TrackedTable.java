@@ -11,10 +11,13 @@ import java.util.Arrays;
  * <pre>
  *   slot s in [0, capacity):  keys[s], labelA[s], labelB[s], hashA[s], hashB[s], admittedAtMillis[s]
  *   cells[s * cellCount + c]            count of the key in cell c (a pane of a window, or a decay)
- *   admissionPane[s * windowCount + w]  newest pane of window w when s was admitted (counts of panes up
- *                                       to it began as count-min estimates); Long.MIN_VALUE if exact
+ *   admissionPane[s * windowCount + w]  newest pane of window w when s was admitted; Long.MIN_VALUE if
+ *                                       the key was counted exactly from its first occurrence. Older
+ *                                       panes are read from the pane sketches; the admission pane's cell
+ *                                       began as its sketch estimate; newer panes are exact.
  *   admissionError[s * decayCount + d]  overcount bound inherited at admission in decay d (forward units)
- *   heap[i]  slot at heap position i (min-heap on cells[s * cellCount + trackingCell]); heapPos[s] = i
+ *   trackCount[s]  copy of cells[s * cellCount + trackingCell], dense for the heap
+ *   heap[i]  slot at heap position i (min-heap on trackCount); heapPos[s] = i
  * </pre>
  *
  * <h2>Space-Saving with an admission test</h2>
@@ -45,6 +48,8 @@ final class TrackedTable {
   final double[] cells;
   final long[] admissionPane;
   final double[] admissionError;
+  /** Copy of each slot's tracking cell, kept dense so the heap's comparisons stay in cache. */
+  private final double[] trackCount;
 
   private final int[] heap;
   private final int[] heapPos;
@@ -70,9 +75,10 @@ final class TrackedTable {
     this.cells = new double[capacity * cellCount];
     this.admissionPane = new long[capacity * Math.max(windowCount, 1)];
     this.admissionError = new double[capacity * Math.max(decayCount, 1)];
+    this.trackCount = new double[capacity];
     this.heap = new int[capacity];
     this.heapPos = new int[capacity];
-    this.index = new LongIntHashMap(capacity);
+    this.index = new LongIntHashMap(capacity, 0.5); // low load: evictions remove keys often, and removal shifts clusters
   }
 
   int size() {
@@ -90,7 +96,7 @@ final class TrackedTable {
 
   /** The tracking count of {@code slot}. */
   double count(int slot) {
-    return cells[slot * cellCount + trackingCell];
+    return trackCount[slot];
   }
 
   /** The smallest tracking count (0 when empty). */
@@ -134,6 +140,7 @@ final class TrackedTable {
 
   /** Restores heap order after {@code slot}'s tracking count was set at admission. */
   void placed(int slot) {
+    trackCount[slot] = cells[slot * cellCount + trackingCell];
     int pos = heapPos[slot];
     siftUp(pos);
     siftDown(heapPos[slot]);
@@ -141,6 +148,7 @@ final class TrackedTable {
 
   /** Restores heap order after {@code slot}'s tracking count grew. */
   void increased(int slot) {
+    trackCount[slot] = cells[slot * cellCount + trackingCell];
     siftDown(heapPos[slot]);
   }
 
@@ -157,6 +165,11 @@ final class TrackedTable {
       cells[s * cellCount + cell] *= factor;
       admissionError[s * decayCount + decay] *= factor;
     }
+    if (cell == trackingCell) {
+      for (int s = 0; s < size; s++) {
+        trackCount[s] *= factor;
+      }
+    }
   }
 
   /** Rebuilds heap and index from the slot arrays (after a bulk load). */
@@ -166,6 +179,7 @@ final class TrackedTable {
     for (int s = 0; s < size; s++) {
       heap[s] = s;
       heapPos[s] = s;
+      trackCount[s] = cells[s * cellCount + trackingCell];
       index.put(keys[s], s);
     }
     for (int i = size / 2 - 1; i >= 0; i--) {
@@ -223,6 +237,7 @@ final class TrackedTable {
   long stateBytes() {
     long bytes = 8L * keys.length * 4 // keys, hashA, hashB, admittedAtMillis
         + 8L * cells.length + 8L * admissionPane.length + 8L * admissionError.length
+        + 8L * trackCount.length
         + 4L * heap.length * 2 // heap, heapPos
         + 2L * 4 * capacity // label references (compressed oops)
         + (long) index.keys.length * 12; // hppc index: long keys + int values

@@ -13,45 +13,45 @@ package org.pairpulse.sketch.stats;
  */
 public record Estimate(double value, double lower, double upper) {
 
-    /**
-     * @throws IllegalArgumentException if a number is NaN, infinite or negative, or the three are
-     *     not ordered {@code lower <= value <= upper}
-     */
-    public Estimate {
-        requireCount("value", value);
-        requireCount("lower", lower);
-        requireCount("upper", upper);
-        if (lower > value || value > upper) {
-            throw new IllegalArgumentException(
-                    "need lower <= value <= upper, got lower=" + lower + ", value=" + value + ", upper=" + upper);
-        }
+  /**
+   * @throws IllegalArgumentException if a number is NaN, infinite or negative, or the three are
+   *     not ordered {@code lower <= value <= upper}
+   */
+  public Estimate {
+    requireCount("value", value);
+    requireCount("lower", lower);
+    requireCount("upper", upper);
+    if (lower > value || value > upper) {
+      throw new IllegalArgumentException(
+          "need lower <= value <= upper, got lower=" + lower + ", value=" + value + ", upper=" + upper);
     }
+  }
 
-    /** A count known exactly: both bounds equal the value. */
-    public static Estimate exact(double value) {
-        return new Estimate(value, value, value);
-    }
+  /** A count known exactly: both bounds equal the value. */
+  public static Estimate exact(double value) {
+    return new Estimate(value, value, value);
+  }
 
-    /** Whether both bounds equal the value. */
-    public boolean isExact() {
-        return lower == value && value == upper;
-    }
+  /** Whether both bounds equal the value. */
+  public boolean isExact() {
+    return lower == value && value == upper;
+  }
 
-    /**
-     * This estimate with value and bounds multiplied by {@code factor} (e.g. to renormalise
-     * forward-decayed counts to a new landmark).
-     *
-     * @throws IllegalArgumentException if {@code factor} is NaN, infinite or negative, or the
-     *     product overflows
-     */
-    public Estimate scaledBy(double factor) {
-        requireCount("factor", factor);
-        return new Estimate(value * factor, lower * factor, upper * factor);
-    }
+  /**
+   * This estimate with value and bounds multiplied by {@code factor} (e.g. to renormalise
+   * forward-decayed counts to a new landmark).
+   *
+   * @throws IllegalArgumentException if {@code factor} is NaN, infinite or negative, or the
+   *     product overflows
+   */
+  public Estimate scaledBy(double factor) {
+    requireCount("factor", factor);
+    return new Estimate(value * factor, lower * factor, upper * factor);
+  }
 
-    static void requireCount(String name, double count) {
-        if (!(count >= 0.0) || count == Double.POSITIVE_INFINITY) {
-            throw new IllegalArgumentException(name + " must be finite and >= 0, got " + count);
-        }
+  static void requireCount(String name, double count) {
+    if (!(count >= 0.0) || count == Double.POSITIVE_INFINITY) {
+      throw new IllegalArgumentException(name + " must be finite and >= 0, got " + count);
     }
+  }
 }

@@ -41,56 +41,56 @@ package org.pairpulse.sketch.stats;
  */
 record LiftInterval(double lower, double upper) {
 
-    /** Floor of Var(ln lift) as a fraction of 1/n_ab. */
-    static final double VARIANCE_FLOOR_FRACTION = 0.01;
+  /** Floor of Var(ln lift) as a fraction of 1/n_ab. */
+  static final double VARIANCE_FLOOR_FRACTION = 0.01;
 
-    private static final LiftInterval UNDEFINED = new LiftInterval(Double.NaN, Double.NaN);
+  private static final LiftInterval UNDEFINED = new LiftInterval(Double.NaN, Double.NaN);
 
-    static LiftInterval of(PairCounts counts, ClampedCounts point, MeasureSettings settings) {
-        double pointLift = point.lift();
-        if (Double.isNaN(pointLift)) {
-            return UNDEFINED;
-        }
-        double baskets = counts.baskets();
-        double lowerA = Math.min(counts.countA().lower(), baskets);
-        double lowerB = Math.min(counts.countB().lower(), baskets);
-        double upperA = Math.min(counts.countA().upper(), baskets);
-        double upperB = Math.min(counts.countB().upper(), baskets);
-
-        if (point.countAB() == 0) {
-            double zeroEventsUpperCount = -Math.log((1.0 - settings.confidenceLevel()) / 2.0);
-            double upperCountAB = counts.countAB().upper() + zeroEventsUpperCount;
-            return new LiftInterval(0.0, supremumLift(baskets, upperCountAB, lowerA, lowerB));
-        }
-        // point counts are positive here, so upperA >= point.countA() > 0 and likewise for b
-        double sketchLower = baskets * Math.min(counts.countAB().lower(), Math.min(upperA, upperB))
-                / (upperA * upperB);
-        double sketchUpper = supremumLift(baskets, counts.countAB().upper(), lowerA, lowerB);
-        double samplingFactor = Math.exp(settings.zScore() * Math.sqrt(logLiftVariance(point, pointLift)));
-        return new LiftInterval(sketchLower / samplingFactor, sketchUpper * samplingFactor);
+  static LiftInterval of(PairCounts counts, ClampedCounts point, MeasureSettings settings) {
+    double pointLift = point.lift();
+    if (Double.isNaN(pointLift)) {
+      return UNDEFINED;
     }
+    double baskets = counts.baskets();
+    double lowerA = Math.min(counts.countA().lower(), baskets);
+    double lowerB = Math.min(counts.countB().lower(), baskets);
+    double upperA = Math.min(counts.countA().upper(), baskets);
+    double upperB = Math.min(counts.countB().upper(), baskets);
 
-    /** sup of N·x/(y·z) over x ≤ upperAB, y ≥ lowerA, z ≥ lowerB, x ≤ min(y, z). */
-    static double supremumLift(double baskets, double upperAB, double lowerA, double lowerB) {
-        if (upperAB == 0) {
-            return 0.0;
-        }
-        if (lowerA == 0 && lowerB == 0) {
-            return Double.POSITIVE_INFINITY;
-        }
-        if (lowerA == 0) {
-            return baskets / lowerB; // x = y → 0: confidence a ⇒ b reaches 1
-        }
-        if (lowerB == 0) {
-            return baskets / lowerA;
-        }
-        return baskets * Math.min(upperAB, Math.min(lowerA, lowerB)) / (lowerA * lowerB);
+    if (point.countAB() == 0) {
+      double zeroEventsUpperCount = -Math.log((1.0 - settings.confidenceLevel()) / 2.0);
+      double upperCountAB = counts.countAB().upper() + zeroEventsUpperCount;
+      return new LiftInterval(0.0, supremumLift(baskets, upperCountAB, lowerA, lowerB));
     }
+    // point counts are positive here, so upperA >= point.countA() > 0 and likewise for b
+    double sketchLower = baskets * Math.min(counts.countAB().lower(), Math.min(upperA, upperB))
+        / (upperA * upperB);
+    double sketchUpper = supremumLift(baskets, counts.countAB().upper(), lowerA, lowerB);
+    double samplingFactor = Math.exp(settings.zScore() * Math.sqrt(logLiftVariance(point, pointLift)));
+    return new LiftInterval(sketchLower / samplingFactor, sketchUpper * samplingFactor);
+  }
 
-    /** Delta-method Var(ln lift) under multinomial sampling, floored (see the class doc). */
-    static double logLiftVariance(ClampedCounts point, double lift) {
-        double variance = 1.0 / point.countAB() - 1.0 / point.countA() - 1.0 / point.countB()
-                + (2.0 * lift - 1.0) / point.baskets();
-        return Math.max(variance, VARIANCE_FLOOR_FRACTION / point.countAB());
+  /** sup of N·x/(y·z) over x ≤ upperAB, y ≥ lowerA, z ≥ lowerB, x ≤ min(y, z). */
+  static double supremumLift(double baskets, double upperAB, double lowerA, double lowerB) {
+    if (upperAB == 0) {
+      return 0.0;
     }
+    if (lowerA == 0 && lowerB == 0) {
+      return Double.POSITIVE_INFINITY;
+    }
+    if (lowerA == 0) {
+      return baskets / lowerB; // x = y → 0: confidence a ⇒ b reaches 1
+    }
+    if (lowerB == 0) {
+      return baskets / lowerA;
+    }
+    return baskets * Math.min(upperAB, Math.min(lowerA, lowerB)) / (lowerA * lowerB);
+  }
+
+  /** Delta-method Var(ln lift) under multinomial sampling, floored (see the class doc). */
+  static double logLiftVariance(ClampedCounts point, double lift) {
+    double variance = 1.0 / point.countAB() - 1.0 / point.countA() - 1.0 / point.countB()
+        + (2.0 * lift - 1.0) / point.baskets();
+    return Math.max(variance, VARIANCE_FLOOR_FRACTION / point.countAB());
+  }
 }

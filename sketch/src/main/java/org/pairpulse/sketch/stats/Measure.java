@@ -11,47 +11,47 @@ import java.util.stream.Collectors;
  * the larger of the two directions, so every measure is a property of the unordered pair.
  */
 public enum Measure {
-    SUPPORT("support", PairMeasures::support),
-    CONFIDENCE("confidence", m -> Math.max(m.confidenceAB(), m.confidenceBA())),
-    LIFT("lift", PairMeasures::lift),
-    SHRUNK_LIFT("shrunk_lift", PairMeasures::shrunkLift),
-    LIFT_LOWER("lift_lower", PairMeasures::liftLower),
-    LEVERAGE("leverage", PairMeasures::leverage),
-    CONVICTION("conviction", m -> Math.max(m.convictionAB(), m.convictionBA())),
-    KULCZYNSKI("kulczynski", PairMeasures::kulczynski),
-    SIGNED_ROOT_G2("signed_root_g2", PairMeasures::signedRootGSquared);
+  SUPPORT("support", PairMeasures::support),
+  CONFIDENCE("confidence", m -> Math.max(m.confidenceAB(), m.confidenceBA())),
+  LIFT("lift", PairMeasures::lift),
+  SHRUNK_LIFT("shrunk_lift", PairMeasures::shrunkLift),
+  LIFT_LOWER("lift_lower", PairMeasures::liftLower),
+  LEVERAGE("leverage", PairMeasures::leverage),
+  CONVICTION("conviction", m -> Math.max(m.convictionAB(), m.convictionBA())),
+  KULCZYNSKI("kulczynski", PairMeasures::kulczynski),
+  SIGNED_ROOT_G2("signed_root_g2", PairMeasures::signedRootGSquared);
 
-    private final String wireName;
-    private final ToDoubleFunction<PairMeasures> reader;
+  private final String wireName;
+  private final ToDoubleFunction<PairMeasures> reader;
 
-    Measure(String wireName, ToDoubleFunction<PairMeasures> reader) {
-        this.wireName = wireName;
-        this.reader = reader;
+  Measure(String wireName, ToDoubleFunction<PairMeasures> reader) {
+    this.wireName = wireName;
+    this.reader = reader;
+  }
+
+  /** This measure's value in {@code measures} (NaN if either direction of a directed one is NaN). */
+  public double of(PairMeasures measures) {
+    return reader.applyAsDouble(Objects.requireNonNull(measures, "measures"));
+  }
+
+  /** The stable lower-case name used on the wire, e.g. {@code "shrunk_lift"}. */
+  public String wireName() {
+    return wireName;
+  }
+
+  /**
+   * The measure with this exact wire name.
+   *
+   * @throws IllegalArgumentException if no measure has that name; the message lists the valid
+   *     names
+   */
+  public static Measure fromWireName(String wireName) {
+    for (Measure measure : values()) {
+      if (measure.wireName.equals(wireName)) {
+        return measure;
+      }
     }
-
-    /** This measure's value in {@code measures} (NaN if either direction of a directed one is NaN). */
-    public double of(PairMeasures measures) {
-        return reader.applyAsDouble(Objects.requireNonNull(measures, "measures"));
-    }
-
-    /** The stable lower-case name used on the wire, e.g. {@code "shrunk_lift"}. */
-    public String wireName() {
-        return wireName;
-    }
-
-    /**
-     * The measure with this exact wire name.
-     *
-     * @throws IllegalArgumentException if no measure has that name; the message lists the valid
-     *     names
-     */
-    public static Measure fromWireName(String wireName) {
-        for (Measure measure : values()) {
-            if (measure.wireName.equals(wireName)) {
-                return measure;
-            }
-        }
-        throw new IllegalArgumentException("unknown measure '" + wireName + "'; valid measures: "
-                + Arrays.stream(values()).map(Measure::wireName).collect(Collectors.joining(", ")));
-    }
+    throw new IllegalArgumentException("unknown measure '" + wireName + "'; valid measures: "
+        + Arrays.stream(values()).map(Measure::wireName).collect(Collectors.joining(", ")));
+  }
 }

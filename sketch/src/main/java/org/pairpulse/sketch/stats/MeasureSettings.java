@@ -13,37 +13,37 @@ import org.apache.commons.math3.special.Erf;
  */
 public record MeasureSettings(double confidenceLevel, double shrinkPriorBaskets, double bundleConfidence) {
 
-    public static final double DEFAULT_CONFIDENCE_LEVEL = 0.95;
-    public static final double DEFAULT_SHRINK_PRIOR_BASKETS = 10.0;
-    public static final double DEFAULT_BUNDLE_CONFIDENCE = 0.95;
+  public static final double DEFAULT_CONFIDENCE_LEVEL = 0.95;
+  public static final double DEFAULT_SHRINK_PRIOR_BASKETS = 10.0;
+  public static final double DEFAULT_BUNDLE_CONFIDENCE = 0.95;
 
-    private static final MeasureSettings DEFAULTS = new MeasureSettings(
-            DEFAULT_CONFIDENCE_LEVEL, DEFAULT_SHRINK_PRIOR_BASKETS, DEFAULT_BUNDLE_CONFIDENCE);
+  private static final MeasureSettings DEFAULTS = new MeasureSettings(
+      DEFAULT_CONFIDENCE_LEVEL, DEFAULT_SHRINK_PRIOR_BASKETS, DEFAULT_BUNDLE_CONFIDENCE);
 
-    /** @throws IllegalArgumentException if a setting is outside its range (see the record doc) */
-    public MeasureSettings {
-        if (!(confidenceLevel > 0.0 && confidenceLevel < 1.0)) {
-            throw new IllegalArgumentException("confidenceLevel must be in (0, 1), got " + confidenceLevel);
-        }
-        if (!(shrinkPriorBaskets >= 0.0) || shrinkPriorBaskets == Double.POSITIVE_INFINITY) {
-            throw new IllegalArgumentException(
-                    "shrinkPriorBaskets must be finite and >= 0, got " + shrinkPriorBaskets);
-        }
-        if (!(bundleConfidence > 0.0 && bundleConfidence <= 1.0)) {
-            throw new IllegalArgumentException("bundleConfidence must be in (0, 1], got " + bundleConfidence);
-        }
+  /** @throws IllegalArgumentException if a setting is outside its range (see the record doc) */
+  public MeasureSettings {
+    if (!(confidenceLevel > 0.0 && confidenceLevel < 1.0)) {
+      throw new IllegalArgumentException("confidenceLevel must be in (0, 1), got " + confidenceLevel);
     }
-
-    /** Level 0.95, prior weight 10 baskets, bundle confidence 0.95. */
-    public static MeasureSettings defaults() {
-        return DEFAULTS;
+    if (!(shrinkPriorBaskets >= 0.0) || shrinkPriorBaskets == Double.POSITIVE_INFINITY) {
+      throw new IllegalArgumentException(
+          "shrinkPriorBaskets must be finite and >= 0, got " + shrinkPriorBaskets);
     }
-
-    /**
-     * The two-sided standard-normal quantile z for {@link #confidenceLevel()}:
-     * {@code Φ⁻¹((1 + level) / 2) = √2 · erf⁻¹(level)} (1.959964 for 0.95).
-     */
-    public double zScore() {
-        return Math.sqrt(2.0) * Erf.erfInv(confidenceLevel);
+    if (!(bundleConfidence > 0.0 && bundleConfidence <= 1.0)) {
+      throw new IllegalArgumentException("bundleConfidence must be in (0, 1], got " + bundleConfidence);
     }
+  }
+
+  /** Level 0.95, prior weight 10 baskets, bundle confidence 0.95. */
+  public static MeasureSettings defaults() {
+    return DEFAULTS;
+  }
+
+  /**
+   * The two-sided standard-normal quantile z for {@link #confidenceLevel()}:
+   * {@code Φ⁻¹((1 + level) / 2) = √2 · erf⁻¹(level)} (1.959964 for 0.95).
+   */
+  public double zScore() {
+    return Math.sqrt(2.0) * Erf.erfInv(confidenceLevel);
+  }
 }

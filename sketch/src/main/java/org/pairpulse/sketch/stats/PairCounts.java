@@ -22,26 +22,26 @@ import java.util.Objects;
  */
 public record PairCounts(double baskets, Estimate countA, Estimate countB, Estimate countAB) {
 
-    /**
-     * @throws IllegalArgumentException if {@code baskets} is NaN, infinite or negative
-     * @throws NullPointerException if an estimate is null
-     */
-    public PairCounts {
-        Estimate.requireCount("baskets", baskets);
-        Objects.requireNonNull(countA, "countA");
-        Objects.requireNonNull(countB, "countB");
-        Objects.requireNonNull(countAB, "countAB");
-    }
+  /**
+   * @throws IllegalArgumentException if {@code baskets} is NaN, infinite or negative
+   * @throws NullPointerException if an estimate is null
+   */
+  public PairCounts {
+    Estimate.requireCount("baskets", baskets);
+    Objects.requireNonNull(countA, "countA");
+    Objects.requireNonNull(countB, "countB");
+    Objects.requireNonNull(countAB, "countAB");
+  }
 
-    /** Counts known exactly (no sketch error). */
-    public static PairCounts exact(double baskets, double countA, double countB, double countAB) {
-        return new PairCounts(baskets, Estimate.exact(countA), Estimate.exact(countB), Estimate.exact(countAB));
-    }
+  /** Counts known exactly (no sketch error). */
+  public static PairCounts exact(double baskets, double countA, double countB, double countAB) {
+    return new PairCounts(baskets, Estimate.exact(countA), Estimate.exact(countB), Estimate.exact(countAB));
+  }
 
-    /** These counts, every value and bound multiplied by {@code factor}. */
-    public PairCounts scaledBy(double factor) {
-        Estimate.requireCount("factor", factor);
-        return new PairCounts(baskets * factor, countA.scaledBy(factor), countB.scaledBy(factor),
-                countAB.scaledBy(factor));
-    }
+  /** These counts, every value and bound multiplied by {@code factor}. */
+  public PairCounts scaledBy(double factor) {
+    Estimate.requireCount("factor", factor);
+    return new PairCounts(baskets * factor, countA.scaledBy(factor), countB.scaledBy(factor),
+        countAB.scaledBy(factor));
+  }
 }

@@ -64,176 +64,176 @@ import java.util.Objects;
  */
 public final class PairMeasures {
 
-    private final double support;
-    private final double confidenceAB;
-    private final double confidenceBA;
-    private final double lift;
-    private final double liftLower;
-    private final double liftUpper;
-    private final double shrunkLift;
-    private final double leverage;
-    private final double convictionAB;
-    private final double convictionBA;
-    private final double kulczynski;
-    private final double imbalanceRatio;
-    private final double gSquared;
-    private final double signedRootGSquared;
-    private final double gSquaredPValue;
-    private final double chiSquare;
-    private final boolean bundle;
-    private final boolean repelling;
+  private final double support;
+  private final double confidenceAB;
+  private final double confidenceBA;
+  private final double lift;
+  private final double liftLower;
+  private final double liftUpper;
+  private final double shrunkLift;
+  private final double leverage;
+  private final double convictionAB;
+  private final double convictionBA;
+  private final double kulczynski;
+  private final double imbalanceRatio;
+  private final double gSquared;
+  private final double signedRootGSquared;
+  private final double gSquaredPValue;
+  private final double chiSquare;
+  private final boolean bundle;
+  private final boolean repelling;
 
-    private PairMeasures(PairCounts counts, MeasureSettings settings) {
-        ClampedCounts point = ClampedCounts.pointValuesOf(counts);
-        double baskets = point.baskets();
-        double supportA = point.countA() / baskets;
-        double supportB = point.countB() / baskets;
+  private PairMeasures(PairCounts counts, MeasureSettings settings) {
+    ClampedCounts point = ClampedCounts.pointValuesOf(counts);
+    double baskets = point.baskets();
+    double supportA = point.countA() / baskets;
+    double supportB = point.countB() / baskets;
 
-        support = point.countAB() / baskets;
-        confidenceAB = point.countAB() / point.countA();
-        confidenceBA = point.countAB() / point.countB();
-        lift = point.lift();
-        leverage = support - supportA * supportB;
-        convictionAB = conviction(confidenceAB, supportB);
-        convictionBA = conviction(confidenceBA, supportA);
-        kulczynski = (confidenceAB + confidenceBA) / 2.0;
-        imbalanceRatio = Math.abs(point.countA() - point.countB())
-                / (point.countA() + point.countB() - point.countAB());
-        double prior = settings.shrinkPriorBaskets();
-        shrunkLift = (point.countAB() + prior) / (point.expectedCountAB() + prior);
+    support = point.countAB() / baskets;
+    confidenceAB = point.countAB() / point.countA();
+    confidenceBA = point.countAB() / point.countB();
+    lift = point.lift();
+    leverage = support - supportA * supportB;
+    convictionAB = conviction(confidenceAB, supportB);
+    convictionBA = conviction(confidenceBA, supportA);
+    kulczynski = (confidenceAB + confidenceBA) / 2.0;
+    imbalanceRatio = Math.abs(point.countA() - point.countB())
+        / (point.countA() + point.countB() - point.countAB());
+    double prior = settings.shrinkPriorBaskets();
+    shrunkLift = (point.countAB() + prior) / (point.expectedCountAB() + prior);
 
-        LiftInterval interval = LiftInterval.of(counts, point, settings);
-        liftLower = interval.lower();
-        liftUpper = interval.upper();
+    LiftInterval interval = LiftInterval.of(counts, point, settings);
+    liftLower = interval.lower();
+    liftUpper = interval.upper();
 
-        TwoByTwoTable table = TwoByTwoTable.of(point);
-        gSquared = table.gSquared();
-        signedRootGSquared = table.signedRootGSquared();
-        gSquaredPValue = TwoByTwoTable.chiSquareOneDfPValue(gSquared);
-        chiSquare = table.chiSquare();
+    TwoByTwoTable table = TwoByTwoTable.of(point);
+    gSquared = table.gSquared();
+    signedRootGSquared = table.signedRootGSquared();
+    gSquaredPValue = TwoByTwoTable.chiSquareOneDfPValue(gSquared);
+    chiSquare = table.chiSquare();
 
-        bundle = confidenceAB >= settings.bundleConfidence() && confidenceBA >= settings.bundleConfidence();
-        repelling = liftUpper < 1.0;
+    bundle = confidenceAB >= settings.bundleConfidence() && confidenceBA >= settings.bundleConfidence();
+    repelling = liftUpper < 1.0;
+  }
+
+  /** The measures of {@code counts} under {@code settings}. */
+  public static PairMeasures of(PairCounts counts, MeasureSettings settings) {
+    return new PairMeasures(Objects.requireNonNull(counts, "counts"), Objects.requireNonNull(settings, "settings"));
+  }
+
+  /** The measures of {@code counts} under {@link MeasureSettings#defaults()}. */
+  public static PairMeasures of(PairCounts counts) {
+    return of(counts, MeasureSettings.defaults());
+  }
+
+  /** (1 − support(consequent)) / (1 − confidence); +∞ at confidence 1, NaN at 0/0. */
+  private static double conviction(double confidence, double consequentSupport) {
+    double numerator = 1.0 - consequentSupport;
+    double denominator = 1.0 - confidence;
+    if (denominator == 0.0) {
+      return numerator > 0.0 ? Double.POSITIVE_INFINITY : Double.NaN;
     }
+    return numerator / denominator;
+  }
 
-    /** The measures of {@code counts} under {@code settings}. */
-    public static PairMeasures of(PairCounts counts, MeasureSettings settings) {
-        return new PairMeasures(Objects.requireNonNull(counts, "counts"), Objects.requireNonNull(settings, "settings"));
-    }
+  /** n_ab / N. */
+  public double support() {
+    return support;
+  }
 
-    /** The measures of {@code counts} under {@link MeasureSettings#defaults()}. */
-    public static PairMeasures of(PairCounts counts) {
-        return of(counts, MeasureSettings.defaults());
-    }
+  /** Confidence of a ⇒ b: n_ab / n_a. */
+  public double confidenceAB() {
+    return confidenceAB;
+  }
 
-    /** (1 − support(consequent)) / (1 − confidence); +∞ at confidence 1, NaN at 0/0. */
-    private static double conviction(double confidence, double consequentSupport) {
-        double numerator = 1.0 - consequentSupport;
-        double denominator = 1.0 - confidence;
-        if (denominator == 0.0) {
-            return numerator > 0.0 ? Double.POSITIVE_INFINITY : Double.NaN;
-        }
-        return numerator / denominator;
-    }
+  /** Confidence of b ⇒ a: n_ab / n_b. */
+  public double confidenceBA() {
+    return confidenceBA;
+  }
 
-    /** n_ab / N. */
-    public double support() {
-        return support;
-    }
+  /** N·n_ab / (n_a·n_b). */
+  public double lift() {
+    return lift;
+  }
 
-    /** Confidence of a ⇒ b: n_ab / n_a. */
-    public double confidenceAB() {
-        return confidenceAB;
-    }
+  /** Lower end of the two-sided lift interval (sketch and sampling error). */
+  public double liftLower() {
+    return liftLower;
+  }
 
-    /** Confidence of b ⇒ a: n_ab / n_b. */
-    public double confidenceBA() {
-        return confidenceBA;
-    }
+  /** Upper end of the two-sided lift interval (sketch and sampling error); may be +∞. */
+  public double liftUpper() {
+    return liftUpper;
+  }
 
-    /** N·n_ab / (n_a·n_b). */
-    public double lift() {
-        return lift;
-    }
+  /** (n_ab + k) / (n_a·n_b/N + k): lift pulled toward 1 when evidence is thin. */
+  public double shrunkLift() {
+    return shrunkLift;
+  }
 
-    /** Lower end of the two-sided lift interval (sketch and sampling error). */
-    public double liftLower() {
-        return liftLower;
-    }
+  /** n_ab/N − (n_a/N)(n_b/N). */
+  public double leverage() {
+    return leverage;
+  }
 
-    /** Upper end of the two-sided lift interval (sketch and sampling error); may be +∞. */
-    public double liftUpper() {
-        return liftUpper;
-    }
+  /** Conviction of a ⇒ b: (1 − n_b/N) / (1 − confidenceAB); +∞ when confidenceAB is 1. */
+  public double convictionAB() {
+    return convictionAB;
+  }
 
-    /** (n_ab + k) / (n_a·n_b/N + k): lift pulled toward 1 when evidence is thin. */
-    public double shrunkLift() {
-        return shrunkLift;
-    }
+  /** Conviction of b ⇒ a: (1 − n_a/N) / (1 − confidenceBA); +∞ when confidenceBA is 1. */
+  public double convictionBA() {
+    return convictionBA;
+  }
 
-    /** n_ab/N − (n_a/N)(n_b/N). */
-    public double leverage() {
-        return leverage;
-    }
+  /** Mean of the two confidences (null-invariant). */
+  public double kulczynski() {
+    return kulczynski;
+  }
 
-    /** Conviction of a ⇒ b: (1 − n_b/N) / (1 − confidenceAB); +∞ when confidenceAB is 1. */
-    public double convictionAB() {
-        return convictionAB;
-    }
+  /** |n_a − n_b| / (n_a + n_b − n_ab): 0 balanced, toward 1 lopsided. */
+  public double imbalanceRatio() {
+    return imbalanceRatio;
+  }
 
-    /** Conviction of b ⇒ a: (1 − n_a/N) / (1 − confidenceBA); +∞ when confidenceBA is 1. */
-    public double convictionBA() {
-        return convictionBA;
-    }
+  /** Dunning's G² of the 2×2 table. */
+  public double gSquared() {
+    return gSquared;
+  }
 
-    /** Mean of the two confidences (null-invariant). */
-    public double kulczynski() {
-        return kulczynski;
-    }
+  /** √G², positive when n_ab is above n_a·n_b/N and negative when below. */
+  public double signedRootGSquared() {
+    return signedRootGSquared;
+  }
 
-    /** |n_a − n_b| / (n_a + n_b − n_ab): 0 balanced, toward 1 lopsided. */
-    public double imbalanceRatio() {
-        return imbalanceRatio;
-    }
+  /** P(χ²₁ ≥ G²): the p-value of independence by the G-test. */
+  public double gSquaredPValue() {
+    return gSquaredPValue;
+  }
 
-    /** Dunning's G² of the 2×2 table. */
-    public double gSquared() {
-        return gSquared;
-    }
+  /** Pearson's χ² of the 2×2 table (no continuity correction), for reference. */
+  public double chiSquare() {
+    return chiSquare;
+  }
 
-    /** √G², positive when n_ab is above n_a·n_b/N and negative when below. */
-    public double signedRootGSquared() {
-        return signedRootGSquared;
-    }
+  /** Both confidences at or above {@link MeasureSettings#bundleConfidence()}. */
+  public boolean isBundle() {
+    return bundle;
+  }
 
-    /** P(χ²₁ ≥ G²): the p-value of independence by the G-test. */
-    public double gSquaredPValue() {
-        return gSquaredPValue;
-    }
+  /** The lift's upper bound is below 1: significantly below independence. */
+  public boolean isRepelling() {
+    return repelling;
+  }
 
-    /** Pearson's χ² of the 2×2 table (no continuity correction), for reference. */
-    public double chiSquare() {
-        return chiSquare;
-    }
-
-    /** Both confidences at or above {@link MeasureSettings#bundleConfidence()}. */
-    public boolean isBundle() {
-        return bundle;
-    }
-
-    /** The lift's upper bound is below 1: significantly below independence. */
-    public boolean isRepelling() {
-        return repelling;
-    }
-
-    @Override
-    public String toString() {
-        return "PairMeasures[support=" + support + ", confidenceAB=" + confidenceAB + ", confidenceBA="
-                + confidenceBA + ", lift=" + lift + " [" + liftLower + ", " + liftUpper + "], shrunkLift="
-                + shrunkLift + ", leverage=" + leverage + ", convictionAB=" + convictionAB + ", convictionBA="
-                + convictionBA + ", kulczynski=" + kulczynski + ", imbalanceRatio=" + imbalanceRatio
-                + ", gSquared=" + gSquared + ", signedRootGSquared=" + signedRootGSquared + ", gSquaredPValue="
-                + gSquaredPValue + ", chiSquare=" + chiSquare + ", bundle=" + bundle + ", repelling=" + repelling
-                + "]";
-    }
+  @Override
+  public String toString() {
+    return "PairMeasures[support=" + support + ", confidenceAB=" + confidenceAB + ", confidenceBA="
+        + confidenceBA + ", lift=" + lift + " [" + liftLower + ", " + liftUpper + "], shrunkLift="
+        + shrunkLift + ", leverage=" + leverage + ", convictionAB=" + convictionAB + ", convictionBA="
+        + convictionBA + ", kulczynski=" + kulczynski + ", imbalanceRatio=" + imbalanceRatio
+        + ", gSquared=" + gSquared + ", signedRootGSquared=" + signedRootGSquared + ", gSquaredPValue="
+        + gSquaredPValue + ", chiSquare=" + chiSquare + ", bundle=" + bundle + ", repelling=" + repelling
+        + "]";
+  }
 }

@@ -85,7 +85,7 @@ class SnapshotTest {
   static EngineConfig fixtureConfig() {
     return EngineConfig.builder()
         .horizons(List.of(HorizonSpec.decay("recent", Duration.ofHours(1)), HorizonSpec.window("day", Duration.ofHours(2), 2)))
-        .trackingHorizon("recent").itemError(0.1, 0.2).pairError(0.1, 0.2)
+        .trackingHorizon("recent").itemError(0.1, 0.2).pairError(0.1, 0.2).decayPairEpsilon(0.1)
         .trackedPairCapacity(8).trackedItemCapacity(8).build();
   }
 
