@@ -132,6 +132,32 @@ public final class CountMinSketch {
     return min;
   }
 
+  /**
+   * A less biased point estimate for keys in the tail: each row's counter less the row's expected
+   * share of everybody else's weight, {@code c − (W − c)/(width − 1)}, the median over rows, clamped to
+   * [{@link #lowerBound}, {@link #upperBound}] (the count-mean-min estimate of Deng and Rafiei 2007,
+   * "New estimation algorithms for streaming data: Count-min can do more"). May undercount: use it as a
+   * point value, never as a bound. For a conservative-update sketch it returns {@link #estimate}, since
+   * its counters do not carry the additive noise the correction assumes.
+   */
+  public double debiasedEstimate(long key) {
+    long h = ItemHash.mix64(key ^ seed);
+    int h1 = (int) h;
+    int h2 = (int) (h >>> 32) | 1;
+    double upper = minOf(h1, h2);
+    if (rule != UpdateRule.LINEAR) {
+      return upper;
+    }
+    double[] rows = new double[depth];
+    for (int row = 0, base = 0; row < depth; row++, base += width) {
+      double counter = counters[base + ((h1 + row * h2) & mask)];
+      rows[row] = counter - (totalWeight - counter) / (width - 1);
+    }
+    Arrays.sort(rows);
+    double median = (depth & 1) == 1 ? rows[depth / 2] : 0.5 * (rows[depth / 2 - 1] + rows[depth / 2]);
+    return Math.max(Math.max(0, upper - maxError()), Math.min(upper, median));
+  }
+
   /** Same as {@link #estimate}: the count-min estimate is an upper bound. */
   public double upperBound(long key) {
     return estimate(key);

@@ -42,11 +42,13 @@ final class Counts {
 
   static Estimate tracked(PairEngine engine, TrackedTable table, int slot, HorizonState state) {
     int base = slot * table.cellCount + state.cellOffset;
+    double bias = table.admissionBias[slot * table.horizonCount + state.index];
     if (!state.isWindow()) {
       double scale = state.scaleAt(engine.watermarkMillis);
       double upper = table.cells[base];
       double lower = Math.max(0, upper - table.admissionError[slot * table.decayCount + state.kindOrdinal]);
-      return new Estimate(upper / scale, lower / scale, upper / scale);
+      double value = Math.max(lower, upper - bias);
+      return new Estimate(value / scale, lower / scale, upper / scale);
     }
     long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
     boolean pair = table == engine.pairs;
@@ -54,6 +56,7 @@ final class Counts {
     long key = table.keys[slot];
     double upper = 0;
     double lower = 0;
+    double value = 0;
     for (int p = 0; p < state.paneCount; p++) {
       if (!state.slotLive(p)) {
         continue;
@@ -63,17 +66,22 @@ final class Counts {
         double count = table.cells[base + p];
         upper += count;
         lower += count;
+        value += count;
       } else if (pane == admittedPane) { // sketch estimate at admission + exact since
         double count = table.cells[base + p];
+        double paneLower = Math.max(0, count - sketches[p].maxError());
         upper += count;
-        lower += Math.max(0, count - sketches[p].maxError());
+        lower += paneLower;
+        value += Math.max(paneLower, count - bias);
       } else { // before admission: still in the pane's sketch
         double estimate = sketches[p].estimate(key);
         upper += estimate;
         lower += Math.max(0, estimate - sketches[p].maxError());
+        value += sketches[p].debiasedEstimate(key);
       }
     }
-    return new Estimate(upper, Math.min(lower, upper), upper);
+    lower = Math.min(lower, upper);
+    return new Estimate(Math.min(upper, Math.max(lower, value)), lower, upper);
   }
 
   static Estimate sketched(PairEngine engine, CountMinSketch[] sketches, HorizonState state, long key) {
@@ -81,17 +89,21 @@ final class Counts {
       double scale = state.scaleAt(engine.watermarkMillis);
       double upper = sketches[0].estimate(key);
       double lower = Math.max(0, upper - sketches[0].maxError());
-      return new Estimate(upper / scale, lower / scale, upper / scale);
+      double value = sketches[0].debiasedEstimate(key);
+      return new Estimate(value / scale, lower / scale, upper / scale);
     }
     double upper = 0;
     double lower = 0;
+    double value = 0;
     for (int p = 0; p < state.paneCount; p++) {
       if (state.slotLive(p)) {
         double estimate = sketches[p].estimate(key);
         upper += estimate;
         lower += Math.max(0, estimate - sketches[p].maxError());
+        value += sketches[p].debiasedEstimate(key);
       }
     }
-    return new Estimate(upper, lower, upper);
+    lower = Math.min(lower, upper);
+    return new Estimate(Math.min(upper, Math.max(lower, value)), lower, upper);
   }
 }

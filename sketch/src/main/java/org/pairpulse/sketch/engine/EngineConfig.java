@@ -18,10 +18,14 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
  *   <caption>Settings</caption>
  *   <tr><th>setting</th><th>default</th><th>meaning</th></tr>
  *   <tr><td>horizons</td><td>recent, day, baseline</td><td>the time weightings kept (see {@link HorizonSpec})</td></tr>
- *   <tr><td>trackingHorizon</td><td>recent</td><td>the decay horizon whose weights rank tracked pairs and items</td></tr>
+ *   <tr><td>burstHorizon</td><td>recent</td><td>a decay horizon: a key heavier than W/capacity in it enters the
+ *       tracked table at once (a new pair enters within its first burst)</td></tr>
+ *   <tr><td>trackingHalfLifeMillis</td><td>7 days</td><td>half-life of the weights that rank tracked keys
+ *       (Space-Saving); long enough that pairs that matter in the long window stay, short enough that stale ones
+ *       leave</td></tr>
  *   <tr><td>itemEpsilon / itemDelta</td><td>0.002 / 0.02</td><td>item count-min error and failure probability</td></tr>
  *   <tr><td>pairEpsilon / pairDelta</td><td>0.001 / 0.02</td><td>pair count-min error and failure probability (each window pane)</td></tr>
- *   <tr><td>decayPairEpsilon</td><td>0.00005</td><td>pair count-min error of a decay horizon: one sketch, not one per pane,
+ *   <tr><td>decayPairEpsilon</td><td>0.0001</td><td>pair count-min error of a decay horizon: one sketch, not one per pane,
  *       so it can afford to be wide; its estimates decide which pairs enter the tracked table, and a
  *       narrow one lets the long tail churn through it</td></tr>
  *   <tr><td>trackedPairCapacity</td><td>16384</td><td>pairs for which statistics are kept (Space-Saving capacity)</td></tr>
@@ -33,7 +37,8 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
  */
 public record EngineConfig(
     List<HorizonSpec> horizons,
-    String trackingHorizon,
+    String burstHorizon,
+    long trackingHalfLifeMillis,
     double itemEpsilon,
     double itemDelta,
     double pairEpsilon,
@@ -44,6 +49,9 @@ public record EngineConfig(
     int maxPairsPerBasket,
     UpdateRule updateRule,
     long seed) {
+
+  /** Name of the internal decay that ranks tracked keys (not published, reserved). */
+  public static final String TRACKING_HORIZON_NAME = "tracking";
 
   /** Largest tracked capacity: keeps slot arithmetic in int range for every layout. */
   public static final int MAX_CAPACITY = 1 << 22;
@@ -56,18 +64,24 @@ public record EngineConfig(
       throw new IllegalArgumentException("at least one horizon is needed");
     }
     Set<String> names = new HashSet<>();
-    int cells = 0;
+    int cells = 1; // the tracking decay
     for (HorizonSpec h : horizons) {
       if (!names.add(h.name())) {
         throw new IllegalArgumentException("duplicate horizon name '" + h.name() + "'");
       }
       cells += h.paneCount();
     }
-    HorizonSpec tracking = horizons.stream().filter(h -> h.name().equals(trackingHorizon)).findFirst()
-        .orElseThrow(() -> new IllegalArgumentException("trackingHorizon '" + trackingHorizon
+    if (names.contains(TRACKING_HORIZON_NAME)) {
+      throw new IllegalArgumentException("horizon name '" + TRACKING_HORIZON_NAME + "' is reserved for the tracked tables");
+    }
+    HorizonSpec burst = horizons.stream().filter(h -> h.name().equals(burstHorizon)).findFirst()
+        .orElseThrow(() -> new IllegalArgumentException("burstHorizon '" + burstHorizon
             + "' is not one of the horizons " + names));
-    if (tracking.kind() != HorizonKind.DECAY) {
-      throw new IllegalArgumentException("trackingHorizon '" + trackingHorizon + "' must be a decay horizon");
+    if (burst.kind() != HorizonKind.DECAY) {
+      throw new IllegalArgumentException("burstHorizon '" + burstHorizon + "' must be a decay horizon");
+    }
+    if (trackingHalfLifeMillis < 1000) {
+      throw new IllegalArgumentException("trackingHalfLifeMillis must be >= 1000, got " + trackingHalfLifeMillis);
     }
     CountMinSketch.widthFor(itemEpsilon);
     CountMinSketch.depthFor(itemDelta);
@@ -98,26 +112,27 @@ public record EngineConfig(
   }
 
   public Builder toBuilder() {
-    return new Builder().horizons(horizons).trackingHorizon(trackingHorizon)
+    return new Builder().horizons(horizons).burstHorizon(burstHorizon).trackingHalfLifeMillis(trackingHalfLifeMillis)
         .itemError(itemEpsilon, itemDelta).pairError(pairEpsilon, pairDelta).decayPairEpsilon(decayPairEpsilon)
         .trackedPairCapacity(trackedPairCapacity).trackedItemCapacity(trackedItemCapacity)
         .maxPairsPerBasket(maxPairsPerBasket).updateRule(updateRule).seed(seed);
   }
 
-  /** Number of panes over all horizons (a decay horizon counts as one). */
-  public int totalCells() {
-    return horizons.stream().mapToInt(HorizonSpec::paneCount).sum();
+  /** The internal decay horizon that ranks tracked keys. */
+  public HorizonSpec trackingSpec() {
+    return HorizonSpec.decay(TRACKING_HORIZON_NAME, java.time.Duration.ofMillis(trackingHalfLifeMillis));
   }
 
   /** Builder with the defaults preset. */
   public static final class Builder {
     private List<HorizonSpec> horizons = HorizonSpec.defaults();
-    private String trackingHorizon = HorizonSpec.RECENT.name();
+    private String burstHorizon = HorizonSpec.RECENT.name();
+    private long trackingHalfLifeMillis = java.time.Duration.ofDays(7).toMillis();
     private double itemEpsilon = 0.002;
     private double itemDelta = 0.02;
     private double pairEpsilon = 0.001;
     private double pairDelta = 0.02;
-    private double decayPairEpsilon = 0.00005;
+    private double decayPairEpsilon = 0.0001;
     private int trackedPairCapacity = 16_384;
     private int trackedItemCapacity = 16_384;
     private int maxPairsPerBasket = 256;
@@ -129,8 +144,18 @@ public record EngineConfig(
       return this;
     }
 
+    public Builder burstHorizon(String value) {
+      this.burstHorizon = value;
+      return this;
+    }
+
+    /** Same as {@link #burstHorizon}. */
     public Builder trackingHorizon(String value) {
-      this.trackingHorizon = value;
+      return burstHorizon(value);
+    }
+
+    public Builder trackingHalfLifeMillis(long value) {
+      this.trackingHalfLifeMillis = value;
       return this;
     }
 
@@ -177,7 +202,7 @@ public record EngineConfig(
     }
 
     public EngineConfig build() {
-      return new EngineConfig(horizons, trackingHorizon, itemEpsilon, itemDelta, pairEpsilon, pairDelta,
+      return new EngineConfig(horizons, burstHorizon, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta,
           decayPairEpsilon, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed);
     }
   }

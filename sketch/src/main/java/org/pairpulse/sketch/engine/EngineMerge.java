@@ -106,6 +106,13 @@ final class EngineMerge {
     double[] cells;
     long[] admissionPane;
     double[] admissionError;
+    /** Per horizon: estimate − debiased estimate of the sketch-based part of the admission pane / decay. */
+    double[] bias;
+  }
+
+  /** Bias of a merged window whose admission pane is {@code merged}: a side contributes only if its own admission pane is it. */
+  private static double mergedBias(long merged, long admittedA, double biasA, long admittedB, double biasB) {
+    return (admittedA == merged ? biasA : 0) + (admittedB == merged ? biasB : 0);
   }
 
   private static void mergeTable(PairEngine into, PairEngine other, TrackedTable mine, TrackedTable theirs,
@@ -154,6 +161,7 @@ final class EngineMerge {
       System.arraycopy(e.cells, 0, mine.cells, s * mine.cellCount, mine.cellCount);
       System.arraycopy(e.admissionPane, 0, mine.admissionPane, s * mine.windowCount, mine.windowCount);
       System.arraycopy(e.admissionError, 0, mine.admissionError, s * mine.decayCount, mine.decayCount);
+      System.arraycopy(e.bias, 0, mine.admissionBias, s * mine.horizonCount, mine.horizonCount);
     }
     mine.admissions += theirs.admissions;
     mine.evictions += theirs.evictions + evicted;
@@ -177,12 +185,14 @@ final class EngineMerge {
     e.cells = new double[table.cellCount];
     e.admissionPane = new long[table.windowCount];
     e.admissionError = new double[table.decayCount];
+    e.bias = new double[table.horizonCount];
     boolean pair = table == owner.pairs;
     for (HorizonState state : into.horizons) {
       HorizonState source = owner.horizons[state.index];
       if (state.isWindow()) {
         long admitted = table.admissionPane[s * table.windowCount + state.kindOrdinal];
         e.admissionPane[state.kindOrdinal] = admitted;
+        e.bias[state.index] = table.admissionBias[s * table.horizonCount + state.index];
         for (int p = 0; p < state.paneCount; p++) {
           boolean live = owner == into ? state.slotLive(p) : otherPaneLive(state, source, p);
           if (!live) {
@@ -197,6 +207,7 @@ final class EngineMerge {
         double factor = scale == null ? 1.0 : scale[state.index];
         e.cells[state.cellOffset] = table.cells[s * table.cellCount + state.cellOffset] * factor;
         e.admissionError[state.kindOrdinal] = table.admissionError[s * table.decayCount + state.kindOrdinal] * factor;
+        e.bias[state.index] = table.admissionBias[s * table.horizonCount + state.index] * factor;
       }
     }
     return e;
@@ -211,8 +222,15 @@ final class EngineMerge {
     for (int d = 0; d < e.admissionError.length; d++) {
       e.admissionError[d] += add.admissionError[d];
     }
-    for (int w = 0; w < e.admissionPane.length; w++) {
-      e.admissionPane[w] = Math.max(e.admissionPane[w], add.admissionPane[w]);
+    for (HorizonState state : into.horizons) {
+      if (state.isWindow()) {
+        int w = state.kindOrdinal;
+        long merged = Math.max(e.admissionPane[w], add.admissionPane[w]);
+        e.bias[state.index] = mergedBias(merged, e.admissionPane[w], e.bias[state.index], add.admissionPane[w], add.bias[state.index]);
+        e.admissionPane[w] = merged;
+      } else {
+        e.bias[state.index] += add.bias[state.index];
+      }
     }
     e.admittedAtMillis = Math.min(e.admittedAtMillis, add.admittedAtMillis);
   }
@@ -234,7 +252,15 @@ final class EngineMerge {
             e.cells[state.cellOffset + p] += sketches[p].estimate(e.key);
           }
         }
-        e.admissionPane[state.kindOrdinal] = Math.max(e.admissionPane[state.kindOrdinal], state.newestPane);
+        int w = state.kindOrdinal;
+        long sidePane = state.newestPane; // all of the side's contribution is sketch estimates
+        int newestSlot = state.slotOf(state.newestPane);
+        boolean newestLive = sideEngine == into ? state.slotLive(newestSlot) : otherPaneLive(state, source, newestSlot);
+        double sideBias = newestLive
+            ? sketches[newestSlot].estimate(e.key) - sketches[newestSlot].debiasedEstimate(e.key) : 0;
+        long merged = Math.max(e.admissionPane[w], sidePane);
+        e.bias[state.index] = mergedBias(merged, e.admissionPane[w], e.bias[state.index], sidePane, sideBias);
+        e.admissionPane[w] = merged;
       } else if (source.landmarkMillis != Long.MIN_VALUE) {
         double factor = scale == null ? 1.0 : scale[state.index];
         double estimate = sketches[0].estimate(e.key);
@@ -243,6 +269,7 @@ final class EngineMerge {
         }
         e.cells[state.cellOffset] += estimate * factor;
         e.admissionError[state.kindOrdinal] += estimate * factor;
+        e.bias[state.index] += (estimate - Math.min(estimate, sketches[0].debiasedEstimate(e.key))) * factor;
       }
     }
   }

@@ -42,7 +42,12 @@ public final class PairEngine {
   private final EngineConfig config;
   final HorizonState[] horizons;
   final int cellCount;
+  /** Index of the internal decay that ranks tracked keys (the last horizon). */
   final int trackingHorizon;
+  /** Index of the decay whose heavy keys enter the tracked tables at once. */
+  final int burstHorizon;
+  /** Horizons published in pair tables: the configured ones, without the internal tracking decay. */
+  final int publishedHorizons;
   final TrackedTable items;
   final TrackedTable pairs;
   private final PairSampling sampling;
@@ -62,26 +67,29 @@ public final class PairEngine {
 
   public PairEngine(EngineConfig config) {
     this.config = Objects.requireNonNull(config, "config");
-    List<HorizonSpec> specs = config.horizons();
+    List<HorizonSpec> specs = new java.util.ArrayList<>(config.horizons());
+    specs.add(config.trackingSpec()); // internal: ranks the tracked tables, never published
+    this.publishedHorizons = config.horizons().size();
     this.horizons = new HorizonState[specs.size()];
     int offset = 0;
     int windows = 0;
     int decays = 0;
-    int tracking = -1;
+    int burst = -1;
     for (int h = 0; h < specs.size(); h++) {
       HorizonSpec spec = specs.get(h);
       int ordinal = spec.isWindow() ? windows++ : decays++;
       horizons[h] = new HorizonState(spec, h, offset, ordinal, config);
-      if (spec.name().equals(config.trackingHorizon())) {
-        tracking = h;
+      if (spec.name().equals(config.burstHorizon())) {
+        burst = h;
       }
       offset += spec.paneCount();
     }
     this.cellCount = offset;
-    this.trackingHorizon = tracking;
-    int trackingCell = horizons[tracking].cellOffset;
-    this.items = new TrackedTable(config.trackedItemCapacity(), cellCount, trackingCell, windows, decays);
-    this.pairs = new TrackedTable(config.trackedPairCapacity(), cellCount, trackingCell, windows, decays);
+    this.trackingHorizon = specs.size() - 1;
+    this.burstHorizon = burst;
+    int trackingCell = horizons[trackingHorizon].cellOffset;
+    this.items = new TrackedTable(config.trackedItemCapacity(), cellCount, trackingCell, windows, decays, horizons.length);
+    this.pairs = new TrackedTable(config.trackedPairCapacity(), cellCount, trackingCell, windows, decays, horizons.length);
     this.sampling = new PairSampling(config.maxPairsPerBasket());
     this.cellOfHorizon = new int[horizons.length];
     this.weightOfHorizon = new double[horizons.length];
@@ -194,7 +202,7 @@ public final class PairEngine {
     }
     double estimate = trackingSketch.estimate(key);
     double min = table.minCount();
-    if (!(estimate > min)) {
+    if (!(estimate > min) && !burstHeavy(table, pair, key)) {
       table.rejections++;
       return;
     }
@@ -202,6 +210,17 @@ public final class PairEngine {
     slot = table.admit(key, a, b, ha, hb, eventMillis);
     initialiseFromSketches(table, slot, pair, key, start, estimate);
     table.placed(slot);
+  }
+
+  /**
+   * True when the key weighs more than W / capacity in the burst horizon: it enters the table at once,
+   * although its long-horizon weight may not beat the minimum yet. Its starting rank is still at most
+   * {@code min + w}, so the Space-Saving bound on the tracking weights is kept.
+   */
+  private boolean burstHeavy(TrackedTable table, boolean pair, long key) {
+    HorizonState burst = horizons[burstHorizon];
+    CountMinSketch sketch = pair ? burst.pairSketch[0] : burst.itemSketch[0];
+    return sketch.estimate(key) > sketch.totalWeight() / table.capacity;
   }
 
   /**
@@ -225,18 +244,23 @@ public final class PairEngine {
     int base = slot * cellCount;
     for (HorizonState state : horizons) {
       CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
+      int biasIndex = slot * table.horizonCount + state.index;
       if (state.isWindow()) {
         int newest = state.slotOf(state.newestPane);
-        table.cells[base + state.cellOffset + newest] = sketches[newest].estimate(key);
+        double estimate = sketches[newest].estimate(key);
+        table.cells[base + state.cellOffset + newest] = estimate;
         table.admissionPane[slot * table.windowCount + state.kindOrdinal] = state.newestPane;
+        table.admissionBias[biasIndex] = estimate - sketches[newest].debiasedEstimate(key);
       } else if (state.index == trackingHorizon) {
         double lower = Math.min(trackingStart, Math.max(0, trackingEstimate - sketches[0].maxError()));
         table.cells[base + state.cellOffset] = trackingStart;
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = trackingStart - lower;
+        table.admissionBias[biasIndex] = trackingStart - Math.min(trackingStart, sketches[0].debiasedEstimate(key));
       } else {
         double estimate = sketches[0].estimate(key);
         table.cells[base + state.cellOffset] = estimate;
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = Math.min(estimate, sketches[0].maxError());
+        table.admissionBias[biasIndex] = estimate - sketches[0].debiasedEstimate(key);
       }
     }
   }
@@ -299,8 +323,8 @@ public final class PairEngine {
     state.itemSketch[0].scale(factor);
     state.pairSketch[0].scale(factor);
     state.basketWeight[0] *= factor;
-    items.scaleDecay(state.cellOffset, state.kindOrdinal, factor);
-    pairs.scaleDecay(state.cellOffset, state.kindOrdinal, factor);
+    items.scaleDecay(state.cellOffset, state.kindOrdinal, state.index, factor);
+    pairs.scaleDecay(state.cellOffset, state.kindOrdinal, state.index, factor);
     state.landmarkMillis = newLandmarkMillis;
   }
 
@@ -409,6 +433,34 @@ public final class PairEngine {
   /** n_ab with bounds, as of the watermark: tracked counts if the pair is tracked, else the sketches. */
   public Estimate pairCount(String itemA, String itemB, String horizon) {
     return Counts.pair(this, horizon(horizon), ItemHash.pairKey(ItemHash.of(itemA), ItemHash.of(itemB)));
+  }
+
+  /**
+   * ε·W of pair counts in {@code horizon} as of the watermark: the most a pair count read from the
+   * count-min sketches may overcount (each pane's bound holding with probability ≥ 1 − δ). A window sums
+   * its live panes' ε·W; a decay gives its sketch's ε·W in basket units. For metrics and health pages.
+   */
+  public double pairErrorBound(String horizon) {
+    return errorBound(horizon(horizon), true);
+  }
+
+  /** ε·W of item counts in {@code horizon} as of the watermark; see {@link #pairErrorBound}. */
+  public double itemErrorBound(String horizon) {
+    return errorBound(horizon(horizon), false);
+  }
+
+  private double errorBound(HorizonState state, boolean pair) {
+    CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
+    if (!state.isWindow()) {
+      return sketches[0].maxError() / state.scaleAt(watermarkMillis);
+    }
+    double sum = 0;
+    for (int p = 0; p < state.paneCount; p++) {
+      if (state.slotLive(p)) {
+        sum += sketches[p].maxError();
+      }
+    }
+    return sum;
   }
 
   /** True when {@code {a, b}} is in the tracked-pair table. */

@@ -51,7 +51,8 @@ public final class PairTables {
   static PairTable build(PairEngine engine, Options options) {
     Map<String, HorizonTable> tables = new LinkedHashMap<>();
     List<String> names = new ArrayList<>();
-    for (HorizonState state : engine.horizons) {
+    for (int h = 0; h < engine.publishedHorizons; h++) {
+      HorizonState state = engine.horizons[h];
       tables.put(state.spec.name(), horizonTable(engine, state, options));
       names.add(state.spec.name());
     }

@@ -32,7 +32,7 @@ import org.pairpulse.sketch.snapshot.SnapshotFormatException;
  *
  * payload:
  *   config    horizonCount:int, per horizon {name:utf, kind:byte, lengthMillis:long, paneCount:int,
- *             halfLifeMillis:long}, trackingHorizon:utf, itemEpsilon, itemDelta, pairEpsilon,
+ *             halfLifeMillis:long}, burstHorizon:utf, trackingHalfLifeMillis:long, itemEpsilon, itemDelta, pairEpsilon,
  *             pairDelta, decayPairEpsilon:double, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket:int,
  *             updateRule:byte, seed:long
  *   counters  watermarkMillis, baskets, pairUpdates, expiredWindowUpdates, cappedBaskets,
@@ -42,7 +42,9 @@ import org.pairpulse.sketch.snapshot.SnapshotFormatException;
  *             pair sketch {same}}}
  *   tables    items then pairs, each {size:int, admissions, evictions, rejections:long, per slot
  *             {key:long, labelA:nullable-utf, labelB:nullable-utf, hashA, hashB, admittedAtMillis:long,
- *             cells:double[cellCount], admissionPane:long[windows], admissionError:double[decays]}}
+ *             cells:double[cellCount], admissionPane:long[windows], admissionError:double[decays],
+ *             admissionBias:double[horizons]}}
+ *   (horizons here include the internal tracking decay, written last)
  * </pre>
  *
  * A reader checks magic, version, length and checksum before it parses anything, and builds a new
@@ -173,7 +175,8 @@ public final class Snapshots {
       out.writeInt(spec.paneCount());
       out.writeLong(spec.halfLifeMillis());
     }
-    out.writeUTF(config.trackingHorizon());
+    out.writeUTF(config.burstHorizon());
+    out.writeLong(config.trackingHalfLifeMillis());
     out.writeDouble(config.itemEpsilon());
     out.writeDouble(config.itemDelta());
     out.writeDouble(config.pairEpsilon());
@@ -200,7 +203,8 @@ public final class Snapshots {
       }
       horizons.add(new HorizonSpec(name, HorizonKind.values()[kind], in.readLong(), in.readInt(), in.readLong()));
     }
-    String tracking = in.readUTF();
+    String burst = in.readUTF();
+    long trackingHalfLifeMillis = in.readLong();
     double itemEpsilon = in.readDouble();
     double itemDelta = in.readDouble();
     double pairEpsilon = in.readDouble();
@@ -213,7 +217,7 @@ public final class Snapshots {
     if (rule < 0 || rule >= UpdateRule.values().length) {
       throw new SnapshotFormatException("snapshot has unknown update rule " + rule);
     }
-    return new EngineConfig(horizons, tracking, itemEpsilon, itemDelta, pairEpsilon, pairDelta, decayPairEpsilon, pairCapacity,
+    return new EngineConfig(horizons, burst, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta, decayPairEpsilon, pairCapacity,
         itemCapacity, maxPairs, UpdateRule.values()[rule], in.readLong());
   }
 
@@ -237,6 +241,9 @@ public final class Snapshots {
       }
       for (int d = 0; d < table.decayCount; d++) {
         out.writeDouble(table.admissionError[s * table.decayCount + d]);
+      }
+      for (int h = 0; h < table.horizonCount; h++) {
+        out.writeDouble(table.admissionBias[s * table.horizonCount + h]);
       }
     }
   }
@@ -264,6 +271,9 @@ public final class Snapshots {
       }
       for (int d = 0; d < table.decayCount; d++) {
         table.admissionError[s * table.decayCount + d] = in.readDouble();
+      }
+      for (int h = 0; h < table.horizonCount; h++) {
+        table.admissionBias[s * table.horizonCount + h] = in.readDouble();
       }
     }
     table.rebuild(size);

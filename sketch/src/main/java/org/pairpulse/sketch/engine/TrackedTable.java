@@ -16,6 +16,7 @@ import java.util.Arrays;
  *                                       panes are read from the pane sketches; the admission pane's cell
  *                                       began as its sketch estimate; newer panes are exact.
  *   admissionError[s * decayCount + d]  overcount bound inherited at admission in decay d (forward units)
+ *   admissionBias[s * horizonCount + h] estimate − debiased estimate at admission (point value correction)
  *   trackCount[s]  copy of cells[s * cellCount + trackingCell], dense for the heap
  *   heap[i]  slot at heap position i (min-heap on trackCount); heapPos[s] = i
  * </pre>
@@ -48,6 +49,9 @@ final class TrackedTable {
   final double[] cells;
   final long[] admissionPane;
   final double[] admissionError;
+  /** Per slot and horizon: how far the admission estimate lies above its debiased value (point value = upper − bias). */
+  final double[] admissionBias;
+  final int horizonCount;
   /** Copy of each slot's tracking cell, kept dense so the heap's comparisons stay in cache. */
   private final double[] trackCount;
 
@@ -60,8 +64,10 @@ final class TrackedTable {
   long evictions;
   long rejections;
 
-  TrackedTable(int capacity, int cellCount, int trackingCell, int windowCount, int decayCount) {
+  TrackedTable(int capacity, int cellCount, int trackingCell, int windowCount, int decayCount, int horizonCount) {
     this.capacity = capacity;
+    this.horizonCount = horizonCount;
+    this.admissionBias = new double[capacity * horizonCount];
     this.cellCount = cellCount;
     this.trackingCell = trackingCell;
     this.windowCount = windowCount;
@@ -134,6 +140,7 @@ final class TrackedTable {
     if (decayCount > 0) {
       Arrays.fill(admissionError, slot * decayCount, slot * decayCount + decayCount, 0.0);
     }
+    Arrays.fill(admissionBias, slot * horizonCount, slot * horizonCount + horizonCount, 0.0);
     index.put(key, slot);
     return slot;
   }
@@ -160,10 +167,11 @@ final class TrackedTable {
   }
 
   /** Multiplies cell {@code cell} and decay {@code decay}'s admission errors by {@code factor} (a rescale). */
-  void scaleDecay(int cell, int decay, double factor) {
+  void scaleDecay(int cell, int decay, int horizon, double factor) {
     for (int s = 0; s < size; s++) {
       cells[s * cellCount + cell] *= factor;
       admissionError[s * decayCount + decay] *= factor;
+      admissionBias[s * horizonCount + horizon] *= factor;
     }
     if (cell == trackingCell) {
       for (int s = 0; s < size; s++) {
@@ -236,7 +244,7 @@ final class TrackedTable {
   /** Heap bytes of the fixed arrays plus the labels currently held (estimated as compact strings). */
   long stateBytes() {
     long bytes = 8L * keys.length * 4 // keys, hashA, hashB, admittedAtMillis
-        + 8L * cells.length + 8L * admissionPane.length + 8L * admissionError.length
+        + 8L * cells.length + 8L * admissionPane.length + 8L * admissionError.length + 8L * admissionBias.length
         + 8L * trackCount.length
         + 4L * heap.length * 2 // heap, heapPos
         + 2L * 4 * capacity // label references (compressed oops)

@@ -108,7 +108,7 @@ class EngineOracleTest {
     PairEngine engine = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
     feed(engine, oracle, new Streams(11, 1_000, 1.1), 30_000, 6, 20);
-    HorizonSpec tracking = config.horizons().stream().filter(h -> h.name().equals(config.trackingHorizon())).findFirst().orElseThrow();
+    HorizonSpec tracking = config.trackingSpec(); // the internal decay that ranks tracked keys
     Map<String, Double> pairWeights = oracle.pairCounts(tracking);
     double total = pairWeights.values().stream().mapToDouble(Double::doubleValue).sum();
     double threshold = total / capacity;

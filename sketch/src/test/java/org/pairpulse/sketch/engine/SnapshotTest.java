@@ -166,7 +166,7 @@ class SnapshotTest {
     assertEquals(union.stats().pairUpdates(), merged.stats().pairUpdates());
 
     // tracked table: the mergeable-summary guarantee and upper bounds on the union's exact counts
-    HorizonSpec tracking = config.horizons().get(0);
+    HorizonSpec tracking = config.trackingSpec();
     Map<String, Double> weights = oracle.pairCounts(tracking);
     double total = weights.values().stream().mapToDouble(Double::doubleValue).sum();
     int heavy = 0;

@@ -1,0 +1,22 @@
+package org.pairpulse.ops;
+
+import java.util.concurrent.Callable;
+import org.pairpulse.ops.bench.SketchBenchCommand;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.Spec;
+
+/** {@code pairpulse bench}: the benchmarks, one subcommand each. */
+@Command(name = "bench", mixinStandardHelpOptions = true,
+    description = "Runs a benchmark and prints its progress and a final RESULT line.",
+    subcommands = {SketchBenchCommand.class},
+    commandListHeading = "%nBenchmarks:%n")
+final class BenchCommand implements Callable<Integer> {
+  @Spec
+  CommandSpec spec;
+
+  @Override
+  public Integer call() {
+    throw Main.missingSubcommand(spec);
+  }
+}
