@@ -29,7 +29,8 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
  *       so it can afford to be wide; its estimates decide which pairs enter the tracked table, and a
  *       narrow one lets the long tail churn through it</td></tr>
  *   <tr><td>trackedPairCapacity</td><td>16384</td><td>pairs for which statistics are kept (Space-Saving capacity)</td></tr>
- *   <tr><td>trackedItemCapacity</td><td>16384</td><td>items counted exactly once admitted</td></tr>
+ *   <tr><td>trackedItemCapacity</td><td>8192</td><td>items counted exactly once admitted (every item in more than
+ *       W/8192 of the item occurrences is tracked; the rest are read from the sketches)</td></tr>
  *   <tr><td>maxPairsPerBasket</td><td>256</td><td>pairs counted per basket before sampling with inverse-probability weights</td></tr>
  *   <tr><td>updateRule</td><td>LINEAR</td><td>count-min update rule; LINEAR keeps partitions mergeable</td></tr>
  *   <tr><td>seed</td><td>0x5EED</td><td>hash seed; equal seeds are needed to merge</td></tr>
@@ -134,7 +135,7 @@ public record EngineConfig(
     private double pairDelta = 0.02;
     private double decayPairEpsilon = 0.0001;
     private int trackedPairCapacity = 16_384;
-    private int trackedItemCapacity = 16_384;
+    private int trackedItemCapacity = 8_192;
     private int maxPairsPerBasket = 256;
     private UpdateRule updateRule = UpdateRule.LINEAR;
     private long seed = 0x5EEDL;

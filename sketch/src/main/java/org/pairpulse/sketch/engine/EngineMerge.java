@@ -103,7 +103,10 @@ final class EngineMerge {
     long hashA;
     long hashB;
     long admittedAtMillis;
-    double[] cells;
+    /** Window pane counts, materialised (panes before admission read from the owner's sketches). */
+    double[] panes;
+    /** Decay counts (forward units of the merged landmark). */
+    double[] decays;
     long[] admissionPane;
     double[] admissionError;
     /** Per horizon: estimate − debiased estimate of the sketch-based part of the admission pane / decay. */
@@ -138,8 +141,8 @@ final class EngineMerge {
       }
       entries.add(entry);
     }
-    int tracking = mine.trackingCell;
-    entries.sort(Comparator.comparingDouble((Entry e) -> e.cells[tracking]).reversed());
+    int tracking = mine.trackingDecay;
+    entries.sort(Comparator.comparingDouble((Entry e) -> e.decays[tracking]).reversed());
     int keep = Math.min(entries.size(), mine.capacity);
     long evicted = entries.size() - keep;
     for (int s = 0; s < keep; s++) {
@@ -154,11 +157,14 @@ final class EngineMerge {
         long admitted = state.isWindow() ? e.admissionPane[state.kindOrdinal] : Long.MIN_VALUE;
         for (int p = 0; admitted != Long.MIN_VALUE && p < state.paneCount; p++) {
           if (state.paneOfSlot[p] < admitted) {
-            e.cells[state.cellOffset + p] = 0;
+            e.panes[state.paneCellOffset + p] = 0;
           }
         }
       }
-      System.arraycopy(e.cells, 0, mine.cells, s * mine.cellCount, mine.cellCount);
+      for (int c = 0; c < mine.paneCells; c++) {
+        mine.panes[s * mine.paneCells + c] = (int) Math.min(Math.round(e.panes[c]), Integer.MAX_VALUE);
+      }
+      System.arraycopy(e.decays, 0, mine.decays, s * mine.decayCount, mine.decayCount);
       System.arraycopy(e.admissionPane, 0, mine.admissionPane, s * mine.windowCount, mine.windowCount);
       System.arraycopy(e.admissionError, 0, mine.admissionError, s * mine.decayCount, mine.decayCount);
       System.arraycopy(e.bias, 0, mine.admissionBias, s * mine.horizonCount, mine.horizonCount);
@@ -182,7 +188,8 @@ final class EngineMerge {
     e.hashA = table.hashA[s];
     e.hashB = table.hashB[s];
     e.admittedAtMillis = table.admittedAtMillis[s];
-    e.cells = new double[table.cellCount];
+    e.panes = new double[table.paneCells];
+    e.decays = new double[table.decayCount];
     e.admissionPane = new long[table.windowCount];
     e.admissionError = new double[table.decayCount];
     e.bias = new double[table.horizonCount];
@@ -199,13 +206,13 @@ final class EngineMerge {
             continue;
           }
           long pane = source.paneOfSlot[p];
-          e.cells[state.cellOffset + p] = admitted != Long.MIN_VALUE && pane < admitted
+          e.panes[state.paneCellOffset + p] = admitted != Long.MIN_VALUE && pane < admitted
               ? (pair ? source.pairSketch[p] : source.itemSketch[p]).estimate(e.key)
-              : table.cells[s * table.cellCount + state.cellOffset + p];
+              : table.panes[s * table.paneCells + state.paneCellOffset + p];
         }
       } else {
         double factor = scale == null ? 1.0 : scale[state.index];
-        e.cells[state.cellOffset] = table.cells[s * table.cellCount + state.cellOffset] * factor;
+        e.decays[state.kindOrdinal] = table.decays[s * table.decayCount + state.kindOrdinal] * factor;
         e.admissionError[state.kindOrdinal] = table.admissionError[s * table.decayCount + state.kindOrdinal] * factor;
         e.bias[state.index] = table.admissionBias[s * table.horizonCount + state.index] * factor;
       }
@@ -216,8 +223,11 @@ final class EngineMerge {
   /** Adds the other side's tracked counts for the same key. */
   private static void addTracked(Entry e, TrackedTable theirs, int t, PairEngine into, PairEngine other, double[] scale) {
     Entry add = copyOut(theirs, t, into, other, scale);
-    for (int c = 0; c < e.cells.length; c++) {
-      e.cells[c] += add.cells[c];
+    for (int c = 0; c < e.panes.length; c++) {
+      e.panes[c] += add.panes[c];
+    }
+    for (int d = 0; d < e.decays.length; d++) {
+      e.decays[d] += add.decays[d];
     }
     for (int d = 0; d < e.admissionError.length; d++) {
       e.admissionError[d] += add.admissionError[d];
@@ -249,7 +259,7 @@ final class EngineMerge {
         for (int p = 0; p < state.paneCount; p++) {
           boolean live = sideEngine == into ? state.slotLive(p) : otherPaneLive(state, source, p);
           if (live) {
-            e.cells[state.cellOffset + p] += sketches[p].estimate(e.key);
+            e.panes[state.paneCellOffset + p] += sketches[p].estimate(e.key);
           }
         }
         int w = state.kindOrdinal;
@@ -264,10 +274,10 @@ final class EngineMerge {
       } else if (source.landmarkMillis != Long.MIN_VALUE) {
         double factor = scale == null ? 1.0 : scale[state.index];
         double estimate = sketches[0].estimate(e.key);
-        if (state.cellOffset == side.trackingCell) {
+        if (state.kindOrdinal == side.trackingDecay) {
           estimate = Math.min(estimate, sideMin);
         }
-        e.cells[state.cellOffset] += estimate * factor;
+        e.decays[state.kindOrdinal] += estimate * factor;
         e.admissionError[state.kindOrdinal] += estimate * factor;
         e.bias[state.index] += (estimate - Math.min(estimate, sketches[0].debiasedEstimate(e.key))) * factor;
       }

@@ -27,7 +27,8 @@ final class HorizonState {
 
   final HorizonSpec spec;
   final int index;
-  final int cellOffset;
+  /** Windows: offset of this window's panes among all window panes (tracked tables' pane cells). */
+  final int paneCellOffset;
   final int paneCount;
   final long paneMillis;
   final long halfLifeMillis;
@@ -43,10 +44,10 @@ final class HorizonState {
   /** Window: ordinal among windows; decay: ordinal among decays. */
   final int kindOrdinal;
 
-  HorizonState(HorizonSpec spec, int index, int cellOffset, int kindOrdinal, EngineConfig config) {
+  HorizonState(HorizonSpec spec, int index, int paneCellOffset, int kindOrdinal, EngineConfig config) {
     this.spec = spec;
     this.index = index;
-    this.cellOffset = cellOffset;
+    this.paneCellOffset = paneCellOffset;
     this.kindOrdinal = kindOrdinal;
     this.paneCount = spec.paneCount();
     this.paneMillis = spec.paneMillis();

@@ -41,7 +41,8 @@ import org.pairpulse.sketch.stats.Estimate;
 public final class PairEngine {
   private final EngineConfig config;
   final HorizonState[] horizons;
-  final int cellCount;
+  /** Window panes over all windows: the tracked tables' pane cells per key. */
+  final int paneCells;
   /** Index of the internal decay that ranks tracked keys (the last horizon). */
   final int trackingHorizon;
   /** Index of the decay whose heavy keys enter the tracked tables at once. */
@@ -60,7 +61,8 @@ public final class PairEngine {
   // per-basket scratch, reused (no allocation per basket for baskets of up to 64 items)
   private long[] hashScratch = new long[64];
   private String[] itemScratch = new String[64];
-  private final int[] cellOfHorizon;
+  /** Per horizon, the ring slot of the current basket's pane (0 for a decay, −1 if it left the window). */
+  private final int[] paneOfHorizon;
   private final double[] weightOfHorizon;
   private final long[] eventPaneOfHorizon;
   private final boolean[] lateOfHorizon;
@@ -78,20 +80,22 @@ public final class PairEngine {
     for (int h = 0; h < specs.size(); h++) {
       HorizonSpec spec = specs.get(h);
       int ordinal = spec.isWindow() ? windows++ : decays++;
-      horizons[h] = new HorizonState(spec, h, offset, ordinal, config);
+      horizons[h] = new HorizonState(spec, h, spec.isWindow() ? offset : -1, ordinal, config);
       if (spec.name().equals(config.burstHorizon())) {
         burst = h;
       }
-      offset += spec.paneCount();
+      if (spec.isWindow()) {
+        offset += spec.paneCount();
+      }
     }
-    this.cellCount = offset;
+    this.paneCells = offset;
     this.trackingHorizon = specs.size() - 1;
     this.burstHorizon = burst;
-    int trackingCell = horizons[trackingHorizon].cellOffset;
-    this.items = new TrackedTable(config.trackedItemCapacity(), cellCount, trackingCell, windows, decays, horizons.length);
-    this.pairs = new TrackedTable(config.trackedPairCapacity(), cellCount, trackingCell, windows, decays, horizons.length);
+    int trackingDecay = horizons[trackingHorizon].kindOrdinal;
+    this.items = new TrackedTable(config.trackedItemCapacity(), paneCells, trackingDecay, windows, decays, horizons.length);
+    this.pairs = new TrackedTable(config.trackedPairCapacity(), paneCells, trackingDecay, windows, decays, horizons.length);
     this.sampling = new PairSampling(config.maxPairsPerBasket());
-    this.cellOfHorizon = new int[horizons.length];
+    this.paneOfHorizon = new int[horizons.length];
     this.weightOfHorizon = new double[horizons.length];
     this.eventPaneOfHorizon = new long[horizons.length];
     this.lateOfHorizon = new boolean[horizons.length];
@@ -118,9 +122,9 @@ public final class PairEngine {
     }
     placeInHorizons(eventMillis);
     for (int h = 0; h < horizons.length; h++) {
-      int cell = cellOfHorizon[h];
-      if (cell >= 0) {
-        horizons[h].basketWeight[cell - horizons[h].cellOffset] += weightOfHorizon[h];
+      int pane = paneOfHorizon[h];
+      if (pane >= 0) {
+        horizons[h].basketWeight[pane] += weightOfHorizon[h];
       }
     }
     for (int i = 0; i < distinct; i++) {
@@ -161,10 +165,10 @@ public final class PairEngine {
 
   private void addToSketches(long key, double multiplier, boolean pair) {
     for (int h = 0; h < horizons.length; h++) {
-      int cell = cellOfHorizon[h];
-      if (cell >= 0) {
+      int pane = paneOfHorizon[h];
+      if (pane >= 0) {
         HorizonState state = horizons[h];
-        CountMinSketch sketch = pair ? state.pairSketch[cell - state.cellOffset] : state.itemSketch[cell - state.cellOffset];
+        CountMinSketch sketch = pair ? state.pairSketch[pane] : state.itemSketch[pane];
         sketch.add(key, multiplier * weightOfHorizon[h]);
       }
     }
@@ -174,11 +178,16 @@ public final class PairEngine {
       double multiplier, long eventMillis) {
     int slot = table.find(key);
     if (slot >= 0) {
-      int base = slot * cellCount;
       for (int h = 0; h < horizons.length; h++) {
-        int cell = cellOfHorizon[h];
-        if (cell >= 0 && !(lateOfHorizon[h] && beforeAdmission(table, slot, h))) {
-          table.cells[base + cell] += multiplier * weightOfHorizon[h];
+        int pane = paneOfHorizon[h];
+        if (pane < 0) {
+          continue;
+        }
+        HorizonState state = horizons[h];
+        if (!state.isWindow()) {
+          table.decays[slot * table.decayCount + state.kindOrdinal] += multiplier * weightOfHorizon[h];
+        } else if (!(lateOfHorizon[h] && beforeAdmission(table, slot, h))) {
+          table.addToPane(slot, state.paneCellOffset + pane, multiplier);
         }
       }
       table.increased(slot);
@@ -189,12 +198,17 @@ public final class PairEngine {
     double add = multiplier * weightOfHorizon[trackingHorizon];
     if (!table.isFull()) {
       // never full so far: nothing was ever evicted or refused, so this key was never seen: exact start
-      slot = table.admit(key, a, b, ha, hb, eventMillis);
-      int base = slot * cellCount;
+      slot = table.admit(key, canonical(pair, a, ha), canonical(pair, b, hb), ha, hb, eventMillis);
       for (int h = 0; h < horizons.length; h++) {
-        int cell = cellOfHorizon[h];
-        if (cell >= 0) {
-          table.cells[base + cell] = multiplier * weightOfHorizon[h];
+        int pane = paneOfHorizon[h];
+        if (pane < 0) {
+          continue;
+        }
+        HorizonState state = horizons[h];
+        if (state.isWindow()) {
+          table.addToPane(slot, state.paneCellOffset + pane, multiplier);
+        } else {
+          table.decays[slot * table.decayCount + state.kindOrdinal] = multiplier * weightOfHorizon[h];
         }
       }
       table.placed(slot);
@@ -207,9 +221,18 @@ public final class PairEngine {
       return;
     }
     double start = Math.min(estimate, min + add);
-    slot = table.admit(key, a, b, ha, hb, eventMillis);
+    slot = table.admit(key, canonical(pair, a, ha), canonical(pair, b, hb), ha, hb, eventMillis);
     initialiseFromSketches(table, slot, pair, key, start, estimate);
     table.placed(slot);
+  }
+
+  /** A pair's item label: the tracked item's own String when there is one, so labels are held once. */
+  private String canonical(boolean pair, String label, long itemHash) {
+    if (!pair) {
+      return label;
+    }
+    int itemSlot = items.find(itemHash);
+    return itemSlot >= 0 ? items.labelA[itemSlot] : label;
   }
 
   /**
@@ -241,24 +264,23 @@ public final class PairEngine {
    */
   private void initialiseFromSketches(TrackedTable table, int slot, boolean pair, long key, double trackingStart,
       double trackingEstimate) {
-    int base = slot * cellCount;
     for (HorizonState state : horizons) {
       CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
       int biasIndex = slot * table.horizonCount + state.index;
       if (state.isWindow()) {
         int newest = state.slotOf(state.newestPane);
         double estimate = sketches[newest].estimate(key);
-        table.cells[base + state.cellOffset + newest] = estimate;
+        table.panes[slot * table.paneCells + state.paneCellOffset + newest] = (int) Math.min(estimate, Integer.MAX_VALUE);
         table.admissionPane[slot * table.windowCount + state.kindOrdinal] = state.newestPane;
         table.admissionBias[biasIndex] = estimate - sketches[newest].debiasedEstimate(key);
       } else if (state.index == trackingHorizon) {
         double lower = Math.min(trackingStart, Math.max(0, trackingEstimate - sketches[0].maxError()));
-        table.cells[base + state.cellOffset] = trackingStart;
+        table.decays[slot * table.decayCount + state.kindOrdinal] = trackingStart;
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = trackingStart - lower;
         table.admissionBias[biasIndex] = trackingStart - Math.min(trackingStart, sketches[0].debiasedEstimate(key));
       } else {
         double estimate = sketches[0].estimate(key);
-        table.cells[base + state.cellOffset] = estimate;
+        table.decays[slot * table.decayCount + state.kindOrdinal] = estimate;
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = Math.min(estimate, sketches[0].maxError());
         table.admissionBias[biasIndex] = estimate - sketches[0].debiasedEstimate(key);
       }
@@ -278,10 +300,10 @@ public final class PairEngine {
         lateOfHorizon[h] = pane < state.newestPane;
         if (pane < state.oldestLivePane()) {
           expiredWindowUpdates++;
-          cellOfHorizon[h] = -1;
+          paneOfHorizon[h] = -1;
           weightOfHorizon[h] = 0;
         } else {
-          cellOfHorizon[h] = state.cellOffset + state.slotOf(pane);
+          paneOfHorizon[h] = state.slotOf(pane);
           weightOfHorizon[h] = 1.0;
         }
       } else {
@@ -290,7 +312,7 @@ public final class PairEngine {
         } else if (state.needsRescale(eventMillis)) {
           moveLandmark(state, state.landmarkFor(eventMillis));
         }
-        cellOfHorizon[h] = state.cellOffset;
+        paneOfHorizon[h] = 0;
         weightOfHorizon[h] = state.decayWeight(eventMillis);
       }
     }
@@ -304,8 +326,8 @@ public final class PairEngine {
     for (long q = first; q <= newPane; q++) {
       int slot = state.slotOf(q);
       state.clearSlot(slot, q);
-      items.clearCell(state.cellOffset + slot);
-      pairs.clearCell(state.cellOffset + slot);
+      items.clearPane(state.paneCellOffset + slot);
+      pairs.clearPane(state.paneCellOffset + slot);
     }
     state.newestPane = newPane;
   }
@@ -323,8 +345,8 @@ public final class PairEngine {
     state.itemSketch[0].scale(factor);
     state.pairSketch[0].scale(factor);
     state.basketWeight[0] *= factor;
-    items.scaleDecay(state.cellOffset, state.kindOrdinal, state.index, factor);
-    pairs.scaleDecay(state.cellOffset, state.kindOrdinal, state.index, factor);
+    items.scaleDecay(state.kindOrdinal, state.index, factor);
+    pairs.scaleDecay(state.kindOrdinal, state.index, factor);
     state.landmarkMillis = newLandmarkMillis;
   }
 
@@ -481,7 +503,7 @@ public final class PairEngine {
 
   /** Heap bytes of the state: sketches and tracked tables. Fixed by the configuration (labels aside). */
   public long stateBytes() {
-    long bytes = items.stateBytes() + pairs.stateBytes();
+    long bytes = items.stateBytes(null) + pairs.stateBytes(items);
     for (HorizonState state : horizons) {
       bytes += state.stateBytes();
     }

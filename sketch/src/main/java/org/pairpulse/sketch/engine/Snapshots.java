@@ -42,7 +42,7 @@ import org.pairpulse.sketch.snapshot.SnapshotFormatException;
  *             pair sketch {same}}}
  *   tables    items then pairs, each {size:int, admissions, evictions, rejections:long, per slot
  *             {key:long, labelA:nullable-utf, labelB:nullable-utf, hashA, hashB, admittedAtMillis:long,
- *             cells:double[cellCount], admissionPane:long[windows], admissionError:double[decays],
+ *             panes:int[window panes], decays:double[decays], admissionPane:long[windows], admissionError:double[decays],
  *             admissionBias:double[horizons]}}
  *   (horizons here include the internal tracking decay, written last)
  * </pre>
@@ -233,8 +233,11 @@ public final class Snapshots {
       out.writeLong(table.hashA[s]);
       out.writeLong(table.hashB[s]);
       out.writeLong(table.admittedAtMillis[s]);
-      for (int c = 0; c < table.cellCount; c++) {
-        out.writeDouble(table.cells[s * table.cellCount + c]);
+      for (int c = 0; c < table.paneCells; c++) {
+        out.writeInt(table.panes[s * table.paneCells + c]);
+      }
+      for (int d = 0; d < table.decayCount; d++) {
+        out.writeDouble(table.decays[s * table.decayCount + d]);
       }
       for (int w = 0; w < table.windowCount; w++) {
         out.writeLong(table.admissionPane[s * table.windowCount + w]);
@@ -263,8 +266,11 @@ public final class Snapshots {
       table.hashA[s] = in.readLong();
       table.hashB[s] = in.readLong();
       table.admittedAtMillis[s] = in.readLong();
-      for (int c = 0; c < table.cellCount; c++) {
-        table.cells[s * table.cellCount + c] = in.readDouble();
+      for (int c = 0; c < table.paneCells; c++) {
+        table.panes[s * table.paneCells + c] = in.readInt();
+      }
+      for (int d = 0; d < table.decayCount; d++) {
+        table.decays[s * table.decayCount + d] = in.readDouble();
       }
       for (int w = 0; w < table.windowCount; w++) {
         table.admissionPane[s * table.windowCount + w] = in.readLong();

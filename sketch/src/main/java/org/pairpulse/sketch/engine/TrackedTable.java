@@ -4,20 +4,23 @@ import com.carrotsearch.hppc.LongIntHashMap;
 import java.util.Arrays;
 
 /**
- * A bounded table of tracked keys (items or pairs) with per-cell counts, ranked by a Space-Saving
- * min-heap on the count of one cell (the tracking horizon's decayed weight).
+ * A bounded table of tracked keys (items or pairs) with counts per window pane and per decay, ranked
+ * by a Space-Saving min-heap on one decay (the internal tracking decay).
  *
  * <h2>Layout</h2>
  * <pre>
  *   slot s in [0, capacity):  keys[s], labelA[s], labelB[s], hashA[s], hashB[s], admittedAtMillis[s]
- *   cells[s * cellCount + c]            count of the key in cell c (a pane of a window, or a decay)
+ *   panes[s * paneCells + c]            count of the key in window pane c (panes of all windows, one
+ *                                       after the other): an int, since window weights are integers
+ *                                       (1, or the pair cap's step k); saturates at Integer.MAX_VALUE
+ *   decays[s * decayCount + d]          count of the key in decay d (forward-decay units)
  *   admissionPane[s * windowCount + w]  newest pane of window w when s was admitted; Long.MIN_VALUE if
  *                                       the key was counted exactly from its first occurrence. Older
  *                                       panes are read from the pane sketches; the admission pane's cell
  *                                       began as its sketch estimate; newer panes are exact.
  *   admissionError[s * decayCount + d]  overcount bound inherited at admission in decay d (forward units)
  *   admissionBias[s * horizonCount + h] estimate − debiased estimate at admission (point value correction)
- *   trackCount[s]  copy of cells[s * cellCount + trackingCell], dense for the heap
+ *   trackCount[s]  copy of decays[s * decayCount + trackingDecay], dense for the heap
  *   heap[i]  slot at heap position i (min-heap on trackCount); heapPos[s] = i
  * </pre>
  *
@@ -35,8 +38,8 @@ import java.util.Arrays;
  */
 final class TrackedTable {
   final int capacity;
-  final int cellCount;
-  final int trackingCell;
+  final int paneCells;
+  final int trackingDecay;
   final int windowCount;
   final int decayCount;
 
@@ -46,7 +49,8 @@ final class TrackedTable {
   final long[] hashA;
   final long[] hashB;
   final long[] admittedAtMillis;
-  final double[] cells;
+  final int[] panes;
+  final double[] decays;
   final long[] admissionPane;
   final double[] admissionError;
   /** Per slot and horizon: how far the admission estimate lies above its debiased value (point value = upper − bias). */
@@ -64,12 +68,12 @@ final class TrackedTable {
   long evictions;
   long rejections;
 
-  TrackedTable(int capacity, int cellCount, int trackingCell, int windowCount, int decayCount, int horizonCount) {
+  TrackedTable(int capacity, int paneCells, int trackingDecay, int windowCount, int decayCount, int horizonCount) {
     this.capacity = capacity;
     this.horizonCount = horizonCount;
     this.admissionBias = new double[capacity * horizonCount];
-    this.cellCount = cellCount;
-    this.trackingCell = trackingCell;
+    this.paneCells = paneCells;
+    this.trackingDecay = trackingDecay;
     this.windowCount = windowCount;
     this.decayCount = decayCount;
     this.keys = new long[capacity];
@@ -78,7 +82,8 @@ final class TrackedTable {
     this.hashA = new long[capacity];
     this.hashB = new long[capacity];
     this.admittedAtMillis = new long[capacity];
-    this.cells = new double[capacity * cellCount];
+    this.panes = new int[capacity * Math.max(paneCells, 1)];
+    this.decays = new double[capacity * decayCount];
     this.admissionPane = new long[capacity * Math.max(windowCount, 1)];
     this.admissionError = new double[capacity * Math.max(decayCount, 1)];
     this.trackCount = new double[capacity];
@@ -133,7 +138,8 @@ final class TrackedTable {
     hashA[slot] = ha;
     hashB[slot] = hb;
     admittedAtMillis[slot] = eventMillis;
-    Arrays.fill(cells, slot * cellCount, slot * cellCount + cellCount, 0.0);
+    Arrays.fill(panes, slot * paneCells, slot * paneCells + paneCells, 0);
+    Arrays.fill(decays, slot * decayCount, slot * decayCount + decayCount, 0.0);
     if (windowCount > 0) {
       Arrays.fill(admissionPane, slot * windowCount, slot * windowCount + windowCount, Long.MIN_VALUE);
     }
@@ -147,7 +153,7 @@ final class TrackedTable {
 
   /** Restores heap order after {@code slot}'s tracking count was set at admission. */
   void placed(int slot) {
-    trackCount[slot] = cells[slot * cellCount + trackingCell];
+    trackCount[slot] = decays[slot * decayCount + trackingDecay];
     int pos = heapPos[slot];
     siftUp(pos);
     siftDown(heapPos[slot]);
@@ -155,25 +161,31 @@ final class TrackedTable {
 
   /** Restores heap order after {@code slot}'s tracking count grew. */
   void increased(int slot) {
-    trackCount[slot] = cells[slot * cellCount + trackingCell];
+    trackCount[slot] = decays[slot * decayCount + trackingDecay];
     siftDown(heapPos[slot]);
   }
 
-  /** Zeroes cell {@code cell} of every slot (a pane left its window). */
-  void clearCell(int cell) {
+  /** Zeroes window pane cell {@code paneCell} of every slot (a pane left its window). */
+  void clearPane(int paneCell) {
     for (int s = 0; s < size; s++) {
-      cells[s * cellCount + cell] = 0.0;
+      panes[s * paneCells + paneCell] = 0;
     }
   }
 
-  /** Multiplies cell {@code cell} and decay {@code decay}'s admission errors by {@code factor} (a rescale). */
-  void scaleDecay(int cell, int decay, int horizon, double factor) {
+  /** Adds an integer window weight to a pane cell, saturating at Integer.MAX_VALUE. */
+  void addToPane(int slot, int paneCell, double weight) {
+    int index = slot * paneCells + paneCell;
+    panes[index] = (int) Math.min((long) panes[index] + (long) weight, Integer.MAX_VALUE);
+  }
+
+  /** Multiplies decay {@code decay}'s counts, admission errors and biases by {@code factor} (a rescale). */
+  void scaleDecay(int decay, int horizon, double factor) {
     for (int s = 0; s < size; s++) {
-      cells[s * cellCount + cell] *= factor;
+      decays[s * decayCount + decay] *= factor;
       admissionError[s * decayCount + decay] *= factor;
       admissionBias[s * horizonCount + horizon] *= factor;
     }
-    if (cell == trackingCell) {
+    if (decay == trackingDecay) {
       for (int s = 0; s < size; s++) {
         trackCount[s] *= factor;
       }
@@ -187,7 +199,7 @@ final class TrackedTable {
     for (int s = 0; s < size; s++) {
       heap[s] = s;
       heapPos[s] = s;
-      trackCount[s] = cells[s * cellCount + trackingCell];
+      trackCount[s] = decays[s * decayCount + trackingDecay];
       index.put(keys[s], s);
     }
     for (int i = size / 2 - 1; i >= 0; i--) {
@@ -241,22 +253,34 @@ final class TrackedTable {
     heapPos[slot] = pos;
   }
 
-  /** Heap bytes of the fixed arrays plus the labels currently held (estimated as compact strings). */
-  long stateBytes() {
+  /**
+   * Heap bytes of the fixed arrays plus the labels held; a label that is the same String as a tracked
+   * item's in {@code shared} is counted there, not again.
+   */
+  long stateBytes(TrackedTable shared) {
     long bytes = 8L * keys.length * 4 // keys, hashA, hashB, admittedAtMillis
-        + 8L * cells.length + 8L * admissionPane.length + 8L * admissionError.length + 8L * admissionBias.length
-        + 8L * trackCount.length
+        + 4L * panes.length + 8L * decays.length + 8L * admissionPane.length + 8L * admissionError.length
+        + 8L * admissionBias.length + 8L * trackCount.length
         + 4L * heap.length * 2 // heap, heapPos
         + 2L * 4 * capacity // label references (compressed oops)
         + (long) index.keys.length * 12; // hppc index: long keys + int values
     for (int s = 0; s < size; s++) {
-      bytes += labelBytes(labelA[s]) + labelBytes(labelB[s]);
+      bytes += labelBytes(labelA[s], hashA[s], shared) + labelBytes(labelB[s], hashB[s], shared);
     }
     return bytes;
   }
 
-  private static long labelBytes(String label) {
-    return label == null ? 0 : 40L + label.length();
+  private static long labelBytes(String label, long hash, TrackedTable shared) {
+    if (label == null) {
+      return 0;
+    }
+    if (shared != null) {
+      int slot = shared.find(hash);
+      if (slot >= 0 && shared.labelA[slot] == label) {
+        return 0;
+      }
+    }
+    return 40L + label.length();
   }
 
   /** True when the heap property holds (for assertions in tests). */
