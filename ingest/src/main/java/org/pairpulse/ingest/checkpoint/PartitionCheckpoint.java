@@ -1,0 +1,119 @@
+package org.pairpulse.ingest.checkpoint;
+
+import java.nio.ByteBuffer;
+import java.nio.charset.StandardCharsets;
+import java.util.Objects;
+import java.util.zip.CRC32C;
+import org.pairpulse.sketch.snapshot.SnapshotFormatException;
+
+/**
+ * A checkpoint of one input partition: the state (front and engine snapshot) and the offset it covers.
+ * Restoring it and reading on from {@code nextOffset} gives the state an uninterrupted run would have.
+ *
+ * <pre>
+ * offset  bytes  field
+ * ------  -----  ----------------------------------------------------------------------
+ *   0       4    MAGIC           0x50 0x50 0x43 0x4B ("PPCK")
+ *   4       1    FORMAT_VERSION  1
+ *   5       3    reserved        0
+ *   8       8    PAYLOAD_BYTES   length L of the payload (big-endian)
+ *  16       4    PAYLOAD_CRC     CRC32C of the payload
+ *  20       4    reserved        0
+ *  24       L    payload:
+ *                  topicLength:int, topic:UTF-8 bytes, partition:int, nextOffset:long,
+ *                  checkpointId:long, createdAtMillis:long,
+ *                  frontLength:int, front bytes   (see PartitionFront#encode)
+ *                  engineLength:int, engine bytes (see sketch's Snapshots)
+ * </pre>
+ *
+ * @param topic input topic
+ * @param partition input partition
+ * @param nextOffset the first offset not covered: reading resumes here
+ * @param checkpointId grows by one per checkpoint of this partition
+ * @param createdAtMillis wall-clock time the checkpoint was taken
+ * @param front the partition front's state
+ * @param engine the engine snapshot
+ */
+public record PartitionCheckpoint(String topic, int partition, long nextOffset, long checkpointId, long createdAtMillis,
+    byte[] front, byte[] engine) {
+  static final int MAGIC = 0x5050_434B;
+  static final byte FORMAT_VERSION = 1;
+  static final int OFFSET_VERSION = 4;
+  static final int OFFSET_PAYLOAD_BYTES = 8;
+  static final int OFFSET_CRC = 16;
+  static final int HEADER_BYTES = 24;
+
+  public PartitionCheckpoint {
+    Objects.requireNonNull(topic, "topic");
+    Objects.requireNonNull(front, "front");
+    Objects.requireNonNull(engine, "engine");
+  }
+
+  /** The encoded checkpoint (the byte table above). */
+  public byte[] encode() {
+    byte[] topicBytes = topic.getBytes(StandardCharsets.UTF_8);
+    int payload = 4 + topicBytes.length + 4 + 8 + 8 + 8 + 4 + front.length + 4 + engine.length;
+    ByteBuffer out = ByteBuffer.allocate(HEADER_BYTES + payload);
+    out.putInt(MAGIC).put(FORMAT_VERSION).put(new byte[3]).putLong(payload).putInt(0).putInt(0);
+    out.putInt(topicBytes.length).put(topicBytes).putInt(partition).putLong(nextOffset).putLong(checkpointId)
+        .putLong(createdAtMillis).putInt(front.length).put(front).putInt(engine.length).put(engine);
+    byte[] bytes = out.array();
+    CRC32C crc = new CRC32C();
+    crc.update(bytes, HEADER_BYTES, payload);
+    ByteBuffer.wrap(bytes).putInt(OFFSET_CRC, (int) crc.getValue());
+    return bytes;
+  }
+
+  /** Decodes {@link #encode}'s bytes; a {@link SnapshotFormatException} for anything unreadable. */
+  public static PartitionCheckpoint decode(byte[] bytes) {
+    if (bytes == null || bytes.length < HEADER_BYTES) {
+      throw new SnapshotFormatException("partition checkpoint truncated: " + (bytes == null ? 0 : bytes.length) + " bytes");
+    }
+    ByteBuffer in = ByteBuffer.wrap(bytes);
+    if (in.getInt(0) != MAGIC) {
+      throw new SnapshotFormatException("not a pairpulse partition checkpoint (bad magic)");
+    }
+    if (bytes[OFFSET_VERSION] != FORMAT_VERSION) {
+      throw new SnapshotFormatException("partition checkpoint format " + bytes[OFFSET_VERSION]
+          + " is not supported; this build reads " + FORMAT_VERSION);
+    }
+    long payload = in.getLong(OFFSET_PAYLOAD_BYTES);
+    if (payload != bytes.length - HEADER_BYTES) {
+      throw new SnapshotFormatException("partition checkpoint truncated or padded: header says " + payload
+          + " payload bytes, found " + (bytes.length - HEADER_BYTES));
+    }
+    CRC32C crc = new CRC32C();
+    crc.update(bytes, HEADER_BYTES, bytes.length - HEADER_BYTES);
+    if ((int) crc.getValue() != in.getInt(OFFSET_CRC)) {
+      throw new SnapshotFormatException("partition checkpoint corrupt: checksum mismatch");
+    }
+    try {
+      in.position(HEADER_BYTES);
+      byte[] topicBytes = new byte[in.getInt()];
+      in.get(topicBytes);
+      int partition = in.getInt();
+      long nextOffset = in.getLong();
+      long checkpointId = in.getLong();
+      long createdAt = in.getLong();
+      byte[] front = new byte[in.getInt()];
+      in.get(front);
+      byte[] engine = new byte[in.getInt()];
+      in.get(engine);
+      if (in.hasRemaining()) {
+        throw new SnapshotFormatException("partition checkpoint has " + in.remaining() + " trailing bytes");
+      }
+      return new PartitionCheckpoint(new String(topicBytes, StandardCharsets.UTF_8), partition, nextOffset, checkpointId,
+          createdAt, front, engine);
+    } catch (RuntimeException e) {
+      if (e instanceof SnapshotFormatException s) {
+        throw s;
+      }
+      throw new SnapshotFormatException("partition checkpoint unreadable: " + e, e);
+    }
+  }
+
+  /** Bytes of the encoded checkpoint. */
+  public long encodedBytes() {
+    return HEADER_BYTES + 4L + topic.getBytes(StandardCharsets.UTF_8).length + 28 + 4 + front.length + 4 + engine.length;
+  }
+}

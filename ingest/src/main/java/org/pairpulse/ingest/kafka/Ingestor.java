@@ -1,0 +1,747 @@
+package org.pairpulse.ingest.kafka;
+
+import io.micrometer.core.instrument.MeterRegistry;
+import java.nio.file.Path;
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.Collection;
+import java.util.HashMap;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Objects;
+import java.util.Optional;
+import java.util.Set;
+import java.util.UUID;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.ConcurrentLinkedQueue;
+import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.ExecutionException;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.TimeoutException;
+import org.apache.kafka.clients.admin.Admin;
+import org.apache.kafka.clients.admin.AdminClientConfig;
+import org.apache.kafka.clients.admin.Config;
+import org.apache.kafka.clients.admin.ConfigEntry;
+import org.apache.kafka.clients.admin.NewTopic;
+import org.apache.kafka.clients.admin.TopicDescription;
+import org.apache.kafka.clients.consumer.CloseOptions;
+import org.apache.kafka.clients.consumer.Consumer;
+import org.apache.kafka.clients.consumer.ConsumerConfig;
+import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.ConsumerRecords;
+import org.apache.kafka.clients.consumer.CooperativeStickyAssignor;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
+import org.apache.kafka.clients.consumer.OffsetAndMetadata;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.Producer;
+import org.apache.kafka.clients.producer.ProducerConfig;
+import org.apache.kafka.common.KafkaException;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.config.ConfigResource;
+import org.apache.kafka.common.config.TopicConfig;
+import org.apache.kafka.common.errors.AuthorizationException;
+import org.apache.kafka.common.errors.FencedInstanceIdException;
+import org.apache.kafka.common.errors.OutOfOrderSequenceException;
+import org.apache.kafka.common.errors.ProducerFencedException;
+import org.apache.kafka.common.errors.TopicExistsException;
+import org.apache.kafka.common.errors.UnsupportedVersionException;
+import org.apache.kafka.common.serialization.ByteArrayDeserializer;
+import org.apache.kafka.common.serialization.ByteArraySerializer;
+import org.pairpulse.ingest.checkpoint.LocalDirectoryStore;
+import org.pairpulse.ingest.checkpoint.PartitionCheckpoint;
+import org.pairpulse.ingest.event.BasketEvent;
+import org.pairpulse.ingest.event.DeadLetterReason;
+import org.pairpulse.ingest.event.EventDecoder;
+import org.pairpulse.ingest.event.InvalidEventException;
+import org.pairpulse.ingest.event.LineItem;
+import org.pairpulse.ingest.front.FrontSettings;
+import org.pairpulse.ingest.front.PartitionFront;
+import org.pairpulse.ingest.metrics.IngestMetrics;
+import org.pairpulse.ingest.worker.BasketBatch;
+import org.pairpulse.ingest.worker.EngineWorker;
+import org.pairpulse.sketch.engine.EngineConfig;
+import org.pairpulse.sketch.engine.PairEngine;
+import org.pairpulse.sketch.engine.Snapshots;
+import org.pairpulse.sketch.table.PairTable;
+import org.pairpulse.sketch.table.PairTableHolder;
+import org.pairpulse.sketch.table.PairTableSource;
+import org.pairpulse.sketch.time.EventClock;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * Reads basket events from Kafka into per-partition state: the ingest of pairpulse.
+ *
+ * <h2>Use</h2>
+ * <pre>{@code
+ * IngestConfig config = new IngestConfig(Map.of("bootstrap.servers", "host:9092", "topics", "baskets"));
+ * try (Ingestor ingestor = new Ingestor(config, EngineConfig.defaults(), registry, EventClock.system())) {
+ *   ingestor.start().installShutdownHook();
+ *   PairTableSource tables = ingestor.pairTables(); // a new table every refresh.interval.ms
+ *   ...
+ * }
+ * }</pre>
+ *
+ * <h2>What happens to a record</h2>
+ * The poll loop decodes it ({@link EventDecoder}); an unusable record goes to the dead-letter topic with
+ * its reason and processing goes on. A decoded event passes its partition's {@link PartitionFront}
+ * (lateness, dedupe, line-item assembly); the baskets that come out are counted by the partition's engine
+ * on the engine thread ({@link EngineWorker}). State is per input partition, so partitions move freely
+ * between instances of one consumer group.
+ *
+ * <h2>Checkpoints</h2>
+ * Every {@code checkpoint.interval.ms} or {@code checkpoint.interval.baskets}, when partitions are revoked,
+ * and at shutdown, the dirty partitions are checkpointed (front + engine + next offset). In group mode
+ * ({@code checkpoint.store=kafka}) the checkpoint chunks, the dead letters and the consumer offsets of the
+ * interval form one Kafka transaction: after a crash the group resumes from the last checkpoint and
+ * neither loses nor double-counts a basket. With {@code local} the checkpoints are files (single node);
+ * with {@code none} there are none.
+ *
+ * <h2>Threading</h2>
+ * {@link #start()} starts the poll thread, which owns the Kafka clients and the fronts; the engine thread
+ * owns the engines. The public methods may be called from any thread; requests that need the state
+ * ({@link #view()}) are handed to the poll thread and answered through a future. {@link #close()} stops
+ * the loop, takes the final checkpoint, commits and closes the clients (bounded by
+ * {@code shutdown.timeout.ms}).
+ */
+public final class Ingestor implements AutoCloseable {
+  private static final Logger LOG = LoggerFactory.getLogger(Ingestor.class);
+
+  private final IngestConfig config;
+  private final EngineConfig engineConfig;
+  private final EventClock clock;
+  private final IngestMetrics metrics;
+  private final IngestConfig.Store store;
+  private final String instanceId;
+  private final FrontSettings frontSettings;
+  private final long pollTimeoutMs;
+  private final long checkpointIntervalMs;
+  private final long checkpointIntervalBaskets;
+  private final long refreshIntervalMs;
+  private final PairTableHolder tables = new PairTableHolder();
+
+  // poll thread only
+  private Consumer<byte[], byte[]> consumer;
+  private Producer<byte[], byte[]> producer;
+  private Consumer<byte[], byte[]> stateReader;
+  private EngineWorker worker;
+  private EventDecoder decoder;
+  private DeadLetters deadLetters;
+  private StateTopicStore stateStore;
+  private LocalDirectoryStore localStore;
+  private final Map<TopicPartition, Slot> slots = new HashMap<>();
+  private long basketsSinceCheckpoint;
+  private long lastCheckpointMillis;
+  private long lastRefreshMillis;
+  private long lastTickMillis;
+  private long tableVersion;
+  private CompletableFuture<?> pendingRefresh = CompletableFuture.completedFuture(null);
+  private boolean failed;
+
+  private final Thread pollThread;
+  private final ConcurrentLinkedQueue<Runnable> tasks = new ConcurrentLinkedQueue<>();
+  private final Map<TopicPartition, Long> positions = new ConcurrentHashMap<>();
+  private final CountDownLatch started = new CountDownLatch(1);
+  private final CountDownLatch stopped = new CountDownLatch(1);
+  private volatile boolean running;
+  private volatile Throwable failure;
+  private volatile Set<TopicPartition> assignment = Set.of();
+
+  /** Per-partition state on the poll thread. */
+  private static final class Slot {
+    final PartitionFront front;
+    long nextOffset = -1;
+    /** Where this state began reading when no checkpoint existed (so a rewind can go back there); −1 otherwise. */
+    long startOffset = -1;
+    long checkpointId;
+    boolean dirty;
+
+    Slot(PartitionFront front) {
+      this.front = front;
+    }
+  }
+
+  public Ingestor(IngestConfig config, EngineConfig engineConfig, MeterRegistry registry, EventClock clock) {
+    this.config = Objects.requireNonNull(config, "config");
+    this.engineConfig = Objects.requireNonNull(engineConfig, "engineConfig");
+    this.clock = Objects.requireNonNull(clock, "clock");
+    this.metrics = new IngestMetrics(registry, clock);
+    this.store = config.store();
+    String id = config.getString(IngestConfig.INSTANCE_ID);
+    this.instanceId = id.isEmpty() ? UUID.randomUUID().toString().substring(0, 8) : id;
+    this.frontSettings = config.frontSettings();
+    this.pollTimeoutMs = config.getLong(IngestConfig.POLL_TIMEOUT_MS);
+    this.checkpointIntervalMs = config.getLong(IngestConfig.CHECKPOINT_INTERVAL_MS);
+    this.checkpointIntervalBaskets = config.getLong(IngestConfig.CHECKPOINT_INTERVAL_BASKETS);
+    this.refreshIntervalMs = config.getLong(IngestConfig.REFRESH_INTERVAL_MS);
+    this.pollThread = new Thread(this::runLoop, "pairpulse-ingest-" + instanceId);
+  }
+
+  /** Starts the poll loop and waits until the clients are set up (or setup failed). */
+  public Ingestor start() {
+    running = true;
+    pollThread.start();
+    try {
+      started.await();
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+    }
+    Throwable t = failure;
+    if (t != null) {
+      throw new IllegalStateException("ingest failed to start: " + t.getMessage(), t);
+    }
+    return this;
+  }
+
+  /** Closes the ingestor cleanly (checkpoint, commit, close) when the JVM is asked to stop (SIGTERM, Ctrl-C). */
+  public Ingestor installShutdownHook() {
+    Runtime.getRuntime().addShutdownHook(new Thread(this::close, "pairpulse-ingest-shutdown"));
+    return this;
+  }
+
+  /** The pair tables of this instance's partitions, refreshed every {@code refresh.interval.ms}. */
+  public PairTableSource pairTables() {
+    return tables;
+  }
+
+  public IngestMetrics metrics() {
+    return metrics;
+  }
+
+  public String instanceId() {
+    return instanceId;
+  }
+
+  /** The partitions this instance owns now. */
+  public Set<TopicPartition> assignment() {
+    return assignment;
+  }
+
+  /** For each owned partition, the next offset the poll loop will read (records before it are handled). */
+  public Map<TopicPartition, Long> positions() {
+    return Map.copyOf(positions);
+  }
+
+  /** The exception that stopped the ingestor, or null while it runs or after a clean stop. */
+  public Throwable failure() {
+    return failure;
+  }
+
+  public boolean isRunning() {
+    return running && stopped.getCount() > 0;
+  }
+
+  /** A merged copy of this instance's partition engines, after everything read so far is counted. */
+  public CompletableFuture<PairEngine> view() {
+    CompletableFuture<PairEngine> result = new CompletableFuture<>();
+    tasks.add(() -> worker.mergedCopy().whenComplete((engine, error) -> {
+      if (error != null) {
+        result.completeExceptionally(error);
+      } else {
+        result.complete(engine);
+      }
+    }));
+    return result;
+  }
+
+  // ------------------------------------------------------------------ the poll loop
+
+  private void runLoop() {
+    try {
+      open();
+      started.countDown();
+      while (running) {
+        runTasks();
+        ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(pollTimeoutMs));
+        if (!records.isEmpty()) {
+          process(records);
+        }
+        long now = clock.millis();
+        if (basketsSinceCheckpoint >= checkpointIntervalBaskets || now - lastCheckpointMillis >= checkpointIntervalMs) {
+          checkpoint(slots.keySet());
+        }
+        if (refreshIntervalMs > 0 && now - lastRefreshMillis >= refreshIntervalMs && pendingRefresh.isDone()) {
+          refresh(now);
+        }
+        if (now - lastTickMillis >= 1000) {
+          tick(now);
+        }
+      }
+      runTasks();
+      checkpoint(slots.keySet());
+    } catch (Throwable t) {
+      failed = true;
+      failure = t;
+      LOG.error("ingest instance {} stopped on an error; nothing after its last checkpoint is committed", instanceId, t);
+    } finally {
+      started.countDown();
+      closeClients();
+      running = false;
+      stopped.countDown();
+    }
+  }
+
+  private void runTasks() {
+    Runnable task;
+    while ((task = tasks.poll()) != null) {
+      task.run();
+    }
+  }
+
+  private void open() throws ExecutionException, InterruptedException, TimeoutException {
+    decoder = new EventDecoder(config.eventLimits(clock));
+    worker = new EngineWorker(engineConfig, metrics, config.getBoolean(IngestConfig.ENGINE_THREAD),
+        config.getInt(IngestConfig.ENGINE_QUEUE_BATCHES));
+    int statePartitions;
+    int chunkBytes = 0;
+    try (Admin admin = Admin.create(adminProps())) {
+      int inputPartitions = 1;
+      Map<String, TopicDescription> inputs = admin.describeTopics(config.topics()).allTopicNames().get(60, TimeUnit.SECONDS);
+      for (TopicDescription d : inputs.values()) {
+        inputPartitions = Math.max(inputPartitions, d.partitions().size());
+      }
+      boolean create = config.getBoolean(IngestConfig.TOPICS_CREATE);
+      String deadLetterTopic = config.getString(IngestConfig.DEAD_LETTER_TOPIC);
+      if (create) {
+        ensureTopic(admin, deadLetterTopic, inputPartitions, Map.of());
+      }
+      statePartitions = inputPartitions;
+      if (store == IngestConfig.Store.KAFKA) {
+        String stateTopic = config.getString(IngestConfig.STATE_TOPIC);
+        if (create) {
+          ensureTopic(admin, stateTopic, inputPartitions, Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
+        }
+        TopicDescription state = retrying("describe " + stateTopic,
+            () -> admin.describeTopics(List.of(stateTopic)).allTopicNames().get(10, TimeUnit.SECONDS).get(stateTopic));
+        statePartitions = state.partitions().size();
+        ConfigResource resource = new ConfigResource(ConfigResource.Type.TOPIC, stateTopic);
+        Config topicConfig = retrying("describe the configs of " + stateTopic,
+            () -> admin.describeConfigs(List.of(resource)).all().get(10, TimeUnit.SECONDS).get(resource));
+        ConfigEntry cleanup = topicConfig.get(TopicConfig.CLEANUP_POLICY_CONFIG);
+        if (cleanup != null && !cleanup.value().contains(TopicConfig.CLEANUP_POLICY_COMPACT)) {
+          LOG.warn("state topic {} has cleanup.policy={}; use compact or old checkpoints are deleted only by retention",
+              stateTopic, cleanup.value());
+        }
+        ConfigEntry maxMessage = topicConfig.get(TopicConfig.MAX_MESSAGE_BYTES_CONFIG);
+        int topicLimit = maxMessage == null ? 1_048_588 : Integer.parseInt(maxMessage.value());
+        Object requestSize = config.producerOverrides().get(ProducerConfig.MAX_REQUEST_SIZE_CONFIG);
+        int producerLimit = requestSize == null ? 1_048_576 : Integer.parseInt(requestSize.toString());
+        chunkBytes = Math.min(topicLimit, producerLimit) - 4096;
+        int configured = config.getInt(IngestConfig.STATE_CHUNK_BYTES);
+        if (configured > 0) {
+          chunkBytes = Math.min(chunkBytes, configured);
+        }
+      }
+    }
+    producer = new KafkaProducer<>(producerProps());
+    deadLetters = new DeadLetters(producer, config.getString(IngestConfig.DEAD_LETTER_TOPIC), metrics);
+    if (store == IngestConfig.Store.KAFKA) {
+      producer.initTransactions();
+      producer.beginTransaction();
+      stateReader = new KafkaConsumer<>(stateReaderProps());
+      stateStore = new StateTopicStore(config.getString(IngestConfig.STATE_TOPIC), config.groupId(), statePartitions,
+          chunkBytes, producer, stateReader, Duration.ofMillis(Math.max(60_000, config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS))));
+    } else if (store == IngestConfig.Store.LOCAL) {
+      localStore = new LocalDirectoryStore(Path.of(config.getString(IngestConfig.CHECKPOINT_DIR)));
+    }
+    consumer = new KafkaConsumer<>(consumerProps());
+    consumer.subscribe(config.topics(), new Rebalance());
+    long now = clock.millis();
+    lastCheckpointMillis = now;
+    lastRefreshMillis = now;
+    lastTickMillis = now;
+    LOG.info("ingest instance {} reading {} in group {} (checkpoints: {})", instanceId, config.topics(), config.groupId(),
+        store.name().toLowerCase(java.util.Locale.ROOT));
+  }
+
+  private interface AdminCall<T> {
+    T call() throws ExecutionException, InterruptedException, TimeoutException;
+  }
+
+  /** Retries an admin call for up to 30 s while a topic just created is not yet known everywhere. */
+  private static <T> T retrying(String what, AdminCall<T> call) throws InterruptedException, ExecutionException, TimeoutException {
+    long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(30);
+    while (true) {
+      try {
+        return call.call();
+      } catch (ExecutionException e) {
+        if (!(e.getCause() instanceof org.apache.kafka.common.errors.RetriableException) || System.nanoTime() > deadline) {
+          throw new ExecutionException("cannot " + what + ": " + e.getCause(), e.getCause());
+        }
+        Thread.sleep(100); // back-off between retries of a retriable admin error
+      }
+    }
+  }
+
+  private static void ensureTopic(Admin admin, String topic, int partitions, Map<String, String> configs)
+      throws InterruptedException, TimeoutException, ExecutionException {
+    if (admin.listTopics().names().get(60, TimeUnit.SECONDS).contains(topic)) {
+      return;
+    }
+    try {
+      admin.createTopics(List.of(new NewTopic(topic, Optional.of(partitions), Optional.empty()).configs(configs)))
+          .all().get(60, TimeUnit.SECONDS);
+      LOG.info("created topic {} ({} partitions{})", topic, partitions, configs.isEmpty() ? "" : ", " + configs);
+    } catch (ExecutionException e) {
+      if (!(e.getCause() instanceof TopicExistsException)) {
+        throw e;
+      }
+    }
+  }
+
+  private void process(ConsumerRecords<byte[], byte[]> records) throws InterruptedException {
+    for (TopicPartition tp : records.partitions()) {
+      Slot slot = slots.get(tp);
+      if (slot == null) {
+        continue; // not ours any more (cannot happen inside one poll, kept defensive)
+      }
+      List<ConsumerRecord<byte[], byte[]>> list = records.records(tp);
+      BasketBatch batch = new BasketBatch(list.size());
+      for (ConsumerRecord<byte[], byte[]> record : list) {
+        BasketEvent event;
+        try {
+          event = decoder.decode(record.value(), record.headers());
+        } catch (InvalidEventException e) {
+          deadLetters.send(record, e.reason(), e.detail());
+          continue;
+        }
+        switch (slot.front.accept(event, batch)) {
+          case ACCEPTED:
+            break;
+          case DUPLICATE:
+            metrics.duplicate(event instanceof LineItem);
+            break;
+          case LATE:
+            deadLetters.send(record, DeadLetterReason.LATE, "event time " + event.eventMillis()
+                + " is before the partition watermark " + slot.front.watermarkMillis());
+            break;
+          case OVERSIZED:
+            deadLetters.send(record, DeadLetterReason.OVERSIZED_BASKET, "basket '" + event.basketId()
+                + "' would exceed max.basket.items");
+            break;
+          default:
+            throw new IllegalStateException("unknown outcome");
+        }
+      }
+      metrics.records(list.size());
+      slot.nextOffset = list.get(list.size() - 1).offset() + 1;
+      slot.dirty = true;
+      positions.put(tp, slot.nextOffset);
+      basketsSinceCheckpoint += batch.size();
+      worker.apply(tp, batch);
+    }
+  }
+
+  private void tick(long now) {
+    lastTickMillis = now;
+    metrics.tick();
+    for (TopicPartition tp : slots.keySet()) {
+      consumer.currentLag(tp).ifPresent(lag -> metrics.lag(tp.topic(), tp.partition(), lag));
+    }
+  }
+
+  private void refresh(long now) {
+    lastRefreshMillis = now;
+    pendingRefresh = worker.refresh(++tableVersion, now).thenAccept(tables::publish);
+  }
+
+  // ------------------------------------------------------------------ checkpoints
+
+  /** Checkpoints the dirty partitions among {@code candidates} (group mode: all dirty ones, one transaction). */
+  private void checkpoint(Collection<TopicPartition> candidates) {
+    long now = clock.millis();
+    List<TopicPartition> dirty = new ArrayList<>();
+    for (TopicPartition tp : (store == IngestConfig.Store.KAFKA ? slots.keySet() : candidates)) {
+      Slot slot = slots.get(tp);
+      if (slot != null && slot.dirty) {
+        dirty.add(tp);
+      }
+    }
+    if (dirty.isEmpty() || store == IngestConfig.Store.NONE) {
+      dirty.forEach(tp -> slots.get(tp).dirty = false);
+      basketsSinceCheckpoint = 0;
+      lastCheckpointMillis = now;
+      return;
+    }
+    long startNanos = System.nanoTime();
+    Map<TopicPartition, byte[]> engines = worker.snapshot(dirty).join();
+    List<PartitionCheckpoint> checkpoints = new ArrayList<>(dirty.size());
+    for (TopicPartition tp : dirty) {
+      Slot slot = slots.get(tp);
+      checkpoints.add(new PartitionCheckpoint(tp.topic(), tp.partition(), slot.nextOffset, slot.checkpointId + 1, now,
+          slot.front.encode(), engines.get(tp)));
+    }
+    long bytes = 0;
+    if (store == IngestConfig.Store.LOCAL) {
+      Map<TopicPartition, OffsetAndMetadata> offsets = new HashMap<>();
+      for (PartitionCheckpoint cp : checkpoints) {
+        bytes += localStore.save(cp);
+        offsets.put(new TopicPartition(cp.topic(), cp.partition()), new OffsetAndMetadata(cp.nextOffset()));
+      }
+      try {
+        consumer.commitSync(offsets); // for lag tools only: the files are the truth
+      } catch (KafkaException e) {
+        LOG.warn("offset commit after a local checkpoint failed ({}); the checkpoint files stand", e.toString());
+      }
+    } else {
+      try {
+        StateTopicStore.Written written = stateStore.write(checkpoints);
+        producer.sendOffsetsToTransaction(written.offsets(), consumer.groupMetadata());
+        producer.commitTransaction();
+        bytes = written.bytes();
+      } catch (ProducerFencedException | FencedInstanceIdException | OutOfOrderSequenceException
+          | AuthorizationException | UnsupportedVersionException e) {
+        throw e; // fatal: another instance took over this transactional id, or the cluster refuses us
+      } catch (KafkaException e) {
+        metrics.checkpointFailed();
+        LOG.warn("checkpoint of {} failed ({}); aborting and rereading from the last checkpoint", dirty, e.toString());
+        producer.abortTransaction();
+        producer.beginTransaction();
+        rewind(new ArrayList<>(slots.keySet()));
+        return;
+      }
+      producer.beginTransaction();
+    }
+    for (PartitionCheckpoint cp : checkpoints) {
+      Slot slot = slots.get(new TopicPartition(cp.topic(), cp.partition()));
+      slot.checkpointId = cp.checkpointId();
+      slot.startOffset = -1;
+      slot.dirty = false;
+    }
+    basketsSinceCheckpoint = 0;
+    lastCheckpointMillis = now;
+    metrics.checkpointed(bytes, System.nanoTime() - startNanos);
+    LOG.debug("checkpointed {} ({} bytes)", dirty, bytes);
+  }
+
+  /** Drops the state of {@code partitions} and reloads it from their checkpoints (seeking the consumer). */
+  private void rewind(Collection<TopicPartition> partitions) {
+    Map<TopicPartition, Long> starts = new HashMap<>();
+    for (TopicPartition tp : partitions) {
+      Slot slot = slots.get(tp);
+      if (slot != null && slot.startOffset >= 0) {
+        starts.put(tp, slot.startOffset);
+      }
+    }
+    forget(partitions);
+    restore(partitions, starts);
+  }
+
+  private void restore(Collection<TopicPartition> partitions) {
+    restore(partitions, Map.of());
+  }
+
+  /**
+   * Loads the partitions' checkpoints and seeks to the offsets they cover. A partition without a checkpoint
+   * starts empty at {@code starts} (a rewind), else at its committed offset, else where the consumer's reset
+   * policy puts it; that start is remembered, so that a later rewind goes back to it.
+   */
+  private void restore(Collection<TopicPartition> partitions, Map<TopicPartition, Long> starts) {
+    if (partitions.isEmpty()) {
+      return;
+    }
+    Map<TopicPartition, OffsetAndMetadata> committed = store == IngestConfig.Store.NONE
+        ? Map.of() : consumer.committed(new HashSet<>(partitions));
+    for (TopicPartition tp : partitions) {
+      Optional<PartitionCheckpoint> checkpoint = switch (store) {
+        case KAFKA -> stateStore.load(tp, committed.get(tp));
+        case LOCAL -> localStore.load(tp.topic(), tp.partition());
+        case NONE -> Optional.empty();
+      };
+      Slot slot;
+      if (checkpoint.isPresent()) {
+        PartitionCheckpoint cp = checkpoint.get();
+        slot = new Slot(PartitionFront.decode(cp.front(), frontSettings));
+        worker.restore(tp, Snapshots.read(cp.engine())).join();
+        consumer.seek(tp, cp.nextOffset());
+        slot.nextOffset = cp.nextOffset();
+        slot.checkpointId = cp.checkpointId();
+        positions.put(tp, cp.nextOffset());
+        metrics.restored();
+        LOG.info("restored {} from checkpoint {} (next offset {})", tp, cp.checkpointId(), cp.nextOffset());
+      } else {
+        slot = new Slot(new PartitionFront(frontSettings));
+        worker.drop(List.of(tp)).join();
+        long start;
+        if (starts.containsKey(tp)) {
+          start = starts.get(tp);
+        } else if (committed.get(tp) != null) {
+          start = committed.get(tp).offset();
+          if (store != IngestConfig.Store.NONE) {
+            LOG.warn("{} has committed offset {} but no checkpoint: its earlier baskets are not in this state", tp, start);
+          }
+        } else {
+          start = consumer.position(tp);
+        }
+        consumer.seek(tp, start);
+        slot.startOffset = start;
+      }
+      slots.put(tp, slot);
+    }
+    assignment = Set.copyOf(slots.keySet());
+  }
+
+  private void forget(Collection<TopicPartition> partitions) {
+    worker.drop(partitions).join();
+    for (TopicPartition tp : partitions) {
+      slots.remove(tp);
+      positions.remove(tp);
+      metrics.forgetPartition(tp.topic(), tp.partition());
+    }
+    assignment = Set.copyOf(slots.keySet());
+  }
+
+  /** Checkpoints what is revoked (and, in group mode, everything dirty), restores what is assigned. */
+  private final class Rebalance implements ConsumerRebalanceListener {
+    @Override
+    public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
+      if (partitions.isEmpty()) {
+        return;
+      }
+      if (!failed) {
+        checkpoint(partitions);
+      }
+      forget(partitions);
+    }
+
+    @Override
+    public void onPartitionsLost(Collection<TopicPartition> partitions) {
+      LOG.warn("lost {} without a clean hand-over; their work since the last checkpoint is redone by the next owner", partitions);
+      if (store == IngestConfig.Store.KAFKA && !failed) {
+        producer.abortTransaction();
+        producer.beginTransaction();
+        forget(partitions);
+        rewind(new ArrayList<>(slots.keySet()));
+      } else {
+        forget(partitions);
+      }
+    }
+
+    @Override
+    public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
+      if (!failed) {
+        restore(partitions);
+      }
+    }
+  }
+
+  // ------------------------------------------------------------------ shutdown
+
+  /** Stops the loop, takes the final checkpoint, commits and closes; bounded by {@code shutdown.timeout.ms}. */
+  @Override
+  public void close() {
+    if (!running && stopped.getCount() > 0 && pollThread.getState() == Thread.State.NEW) {
+      return;
+    }
+    running = false;
+    try {
+      if (!stopped.await(config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS), TimeUnit.MILLISECONDS)) {
+        LOG.error("ingest instance {} did not stop within {} ms", instanceId, config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS));
+      }
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+    }
+  }
+
+  private void closeClients() {
+    if (consumer != null) {
+      try {
+        consumer.close(CloseOptions.timeout(Duration.ofSeconds(10)));
+      } catch (RuntimeException e) {
+        LOG.warn("closing the consumer: {}", e.toString());
+      }
+    }
+    if (producer != null) {
+      if (store == IngestConfig.Store.KAFKA) {
+        // after a clean stop the open transaction is empty (the final checkpoint committed everything);
+        // after a failure it holds uncommitted work. Either way abort it: a producer closed with an open
+        // transaction waits out its close timeout.
+        try {
+          producer.abortTransaction();
+        } catch (RuntimeException e) {
+          LOG.debug("abort on close: {}", e.toString());
+        }
+      }
+      try {
+        producer.close(Duration.ofSeconds(10));
+      } catch (RuntimeException e) {
+        LOG.warn("closing the producer: {}", e.toString());
+      }
+    }
+    if (stateReader != null) {
+      stateReader.close(CloseOptions.timeout(Duration.ofSeconds(5)));
+    }
+    if (worker != null) {
+      worker.close();
+    }
+  }
+
+  // ------------------------------------------------------------------ client properties
+
+  private Map<String, Object> common() {
+    Map<String, Object> props = new HashMap<>();
+    props.put(ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, String.join(",", config.bootstrapServers()));
+    return props;
+  }
+
+  private Map<String, Object> adminProps() {
+    Map<String, Object> props = common();
+    props.put(AdminClientConfig.CLIENT_ID_CONFIG, "pairpulse-" + instanceId + "-admin");
+    props.putAll(config.clientOverrides("admin"));
+    return props;
+  }
+
+  Map<String, Object> consumerProps() {
+    Map<String, Object> props = common();
+    props.put(ConsumerConfig.GROUP_ID_CONFIG, config.groupId());
+    props.put(ConsumerConfig.CLIENT_ID_CONFIG, "pairpulse-" + instanceId);
+    props.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
+    props.put(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
+    props.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+    props.put(ConsumerConfig.PARTITION_ASSIGNMENT_STRATEGY_CONFIG, CooperativeStickyAssignor.class.getName());
+    props.put(ConsumerConfig.MAX_POLL_RECORDS_CONFIG, 2000);
+    props.put(ConsumerConfig.MAX_PARTITION_FETCH_BYTES_CONFIG, 4 << 20);
+    props.putAll(config.clientOverrides("consumer"));
+    props.put(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
+    props.put(ConsumerConfig.VALUE_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
+    return props;
+  }
+
+  private Map<String, Object> stateReaderProps() {
+    Map<String, Object> props = common();
+    props.put(ConsumerConfig.CLIENT_ID_CONFIG, "pairpulse-" + instanceId + "-state");
+    props.putAll(config.clientOverrides("consumer"));
+    props.remove(ConsumerConfig.GROUP_ID_CONFIG);
+    props.remove(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG);
+    props.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
+    props.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+    props.put(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
+    props.put(ConsumerConfig.VALUE_DESERIALIZER_CLASS_CONFIG, ByteArrayDeserializer.class.getName());
+    return props;
+  }
+
+  private Map<String, Object> producerProps() {
+    Map<String, Object> props = common();
+    props.put(ProducerConfig.CLIENT_ID_CONFIG, "pairpulse-" + instanceId + "-producer");
+    props.put(ProducerConfig.ACKS_CONFIG, "all");
+    props.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
+    props.put(ProducerConfig.LINGER_MS_CONFIG, 5);
+    props.put(ProducerConfig.BATCH_SIZE_CONFIG, 256 * 1024);
+    props.put(ProducerConfig.COMPRESSION_TYPE_CONFIG, "lz4");
+    if (store == IngestConfig.Store.KAFKA) {
+      props.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, "pairpulse-" + config.groupId() + "-" + instanceId);
+    }
+    props.putAll(config.producerOverrides());
+    props.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
+    props.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
+    return props;
+  }
+
+  /** The published table of the last refresh (empty before one). */
+  PairTable currentTable() {
+    return tables.current();
+  }
+}

@@ -1,0 +1,63 @@
+package org.pairpulse.ingest.testkit;
+
+import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
+import java.io.FileReader;
+import java.io.IOException;
+import java.io.Reader;
+import java.util.HashMap;
+import java.util.Map;
+import java.util.Properties;
+import org.pairpulse.ingest.kafka.IngestConfig;
+import org.pairpulse.ingest.kafka.Ingestor;
+import org.pairpulse.sketch.time.EventClock;
+
+/**
+ * An ingest instance in a JVM of its own, so that a test can kill it like kill -9 ({@code destroyForcibly}).
+ * Argument: a properties file of ingest settings. Prints {@code at <records handled>} lines to stdout.
+ */
+public final class ChildIngest {
+  private ChildIngest() {}
+
+  public static void main(String[] args) throws IOException, InterruptedException {
+    Properties properties = new Properties();
+    try (Reader in = new FileReader(args[0], java.nio.charset.StandardCharsets.UTF_8)) {
+      properties.load(in);
+    }
+    Map<String, Object> props = new HashMap<>();
+    properties.forEach((k, v) -> props.put(k.toString(), v));
+    Ingestor ingestor = new Ingestor(new IngestConfig(props), Workload.engineConfig(), new SimpleMeterRegistry(),
+        EventClock.system()).start();
+    System.out.println("started " + ingestor.instanceId());
+    long last = -1;
+    while (ingestor.isRunning()) {
+      long at = ingestor.positions().values().stream().mapToLong(Long::longValue).sum();
+      if (at != last) {
+        System.out.println("at " + at);
+        System.out.flush();
+        last = at;
+      }
+      Thread.sleep(2); // reporting cadence
+    }
+    System.out.println("stopped " + ingestor.failure());
+  }
+
+  /** Starts a child JVM running this class with the test class path. */
+  public static Process launch(java.nio.file.Path propsFile, java.nio.file.Path log) throws IOException {
+    String classPath = System.getProperty("surefire.test.class.path", System.getProperty("java.class.path"));
+    String javaBin = java.nio.file.Path.of(System.getProperty("java.home"), "bin", "java").toString();
+    ProcessBuilder builder = new ProcessBuilder(javaBin, "-Xmx384m", "-XX:+UseSerialGC", "-XX:TieredStopAtLevel=1",
+        "-cp", classPath, ChildIngest.class.getName(), propsFile.toString());
+    builder.redirectError(log.toFile());
+    return builder.start();
+  }
+
+  /** Writes ingest settings to a properties file. */
+  public static void write(Map<String, Object> props, java.nio.file.Path file) throws IOException {
+    Properties out = new Properties();
+    props.forEach((k, v) -> out.setProperty(k, v.toString()));
+    try (java.io.Writer w = java.nio.file.Files.newBufferedWriter(file)) {
+      out.store(w, "child ingest");
+    }
+  }
+
+}
