@@ -44,6 +44,8 @@ public final class CountMinSketch {
   private final long seed;
   private final UpdateRule rule;
   private final double[] counters;
+  /** Reused by {@link #debiasedEstimate} (the sketch has one writer; readers use published tables). */
+  private final double[] scratch;
   private double totalWeight;
 
   /**
@@ -66,6 +68,7 @@ public final class CountMinSketch {
     this.seed = seed;
     this.rule = rule;
     this.counters = new double[width * depth];
+    this.scratch = new double[depth];
   }
 
   /** A sketch sized by the Cormode–Muthukrishnan formulas for error {@code epsilon} and failure {@code delta}. */
@@ -148,12 +151,17 @@ public final class CountMinSketch {
     if (rule != UpdateRule.LINEAR) {
       return upper;
     }
-    double[] rows = new double[depth];
+    double[] rows = scratch;
     for (int row = 0, base = 0; row < depth; row++, base += width) {
       double counter = counters[base + ((h1 + row * h2) & mask)];
-      rows[row] = counter - (totalWeight - counter) / (width - 1);
+      double corrected = counter - (totalWeight - counter) / (width - 1);
+      int j = row - 1; // insertion sort: depth is small
+      while (j >= 0 && rows[j] > corrected) {
+        rows[j + 1] = rows[j];
+        j--;
+      }
+      rows[j + 1] = corrected;
     }
-    Arrays.sort(rows);
     double median = (depth & 1) == 1 ? rows[depth / 2] : 0.5 * (rows[depth / 2 - 1] + rows[depth / 2]);
     return Math.max(Math.max(0, upper - maxError()), Math.min(upper, median));
   }
