@@ -1,0 +1,259 @@
+package org.pairpulse.serve;
+
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.Collections;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Objects;
+import java.util.Optional;
+import java.util.function.Predicate;
+import org.pairpulse.serve.drift.DriftSettings;
+
+/**
+ * serve's settings: every key with its type, default, validator and a one-line doc, in the manner
+ * of Kafka's config definitions. Immutable; {@link #with} returns a changed copy. README-serve.md
+ * lists the same table (a test keeps the two in step).
+ */
+public final class ServeConfig {
+  /** The types a value may have. */
+  public enum Type { STRING, INT, LONG, DOUBLE, BOOLEAN }
+
+  /**
+   * One setting.
+   *
+   * @param name the key
+   * @param type how the value is read
+   * @param defaultValue the default, as text
+   * @param rule what a valid value is (for messages)
+   * @param doc one line of documentation
+   */
+  public record Key(String name, Type type, String defaultValue, String rule, String doc, Predicate<Object> valid) {}
+
+  private static final List<Key> KEYS = new ArrayList<>();
+
+  public static final String HOST = define("serve.host", Type.STRING, "127.0.0.1", "a host name or address",
+      "address to bind; 127.0.0.1 keeps the server local, 0.0.0.0 exposes it", v -> !((String) v).isBlank());
+  public static final String PORT = define("serve.port", Type.INT, "8470", "0..65535 (0: any free port)",
+      "TCP port", v -> (int) v >= 0 && (int) v <= 65535);
+  public static final String TOKEN = define("serve.token", Type.STRING, "", "empty, or at least 16 characters",
+      "bearer token required on every endpoint but health and the dashboard's static files; empty: no token",
+      v -> ((String) v).isEmpty() || ((String) v).length() >= 16);
+  public static final String CORS_ORIGINS = define("serve.corsOrigins", Type.STRING, "",
+      "empty, or comma-separated origins", "origins allowed to call the API from a browser; empty: CORS off", v -> true);
+  public static final String MAX_BODY_BYTES = define("serve.maxBodyBytes", Type.INT, "16384", "1024..1048576",
+      "largest request body accepted (413 above)", v -> (int) v >= 1024 && (int) v <= 1 << 20);
+  public static final String MAX_BASKET_ITEMS = define("serve.maxBasketItems", Type.INT, "50", "1..1000",
+      "most items in one suggestion request", v -> (int) v >= 1 && (int) v <= 1000);
+  public static final String MAX_ID_LENGTH = define("serve.maxIdLength", Type.INT, "128", "1..1024",
+      "longest item id or segment name accepted", v -> (int) v >= 1 && (int) v <= 1024);
+  public static final String MAX_COUNT = define("serve.maxCount", Type.INT, "100", "1..10000",
+      "largest count a request may ask for", v -> (int) v >= 1 && (int) v <= 10_000);
+  public static final String COHORT_FLOOR = define("serve.cohortFloor", Type.DOUBLE, "50", ">= 0",
+      "minimum distinct baskets behind any published statistic (privacy); 0 publishes everything",
+      v -> (double) v >= 0 && !Double.isInfinite((double) v));
+  public static final String DEFAULT_HORIZON = define("serve.defaultHorizon", Type.STRING, "recent",
+      "a horizon name", "horizon used when a request names none", v -> !((String) v).isBlank());
+  public static final String CACHE_ENTRIES = define("serve.cacheEntries", Type.INT, "20000", "0..1000000 (0: off)",
+      "responses cached per table version (suggestions, rules, top and repelling pairs, items)",
+      v -> (int) v >= 0 && (int) v <= 1_000_000);
+  public static final String MAX_NEIGHBOURS = define("serve.maxNeighboursPerItem", Type.INT, "500", ">= 1",
+      "neighbours read per basket item when suggesting, best first by the table's measure", v -> (int) v >= 1);
+  public static final String WATCH_MILLIS = define("serve.watchMillis", Type.LONG, "100", "10..60000",
+      "how often serve looks for a new pair table (floored view, trend point, drift, alerts)",
+      v -> (long) v >= 10 && (long) v <= 60_000);
+  public static final String TREND_POINTS = define("serve.trend.points", Type.INT, "240", "2..10000",
+      "trend points kept per segment (one per new table version, oldest dropped)", v -> (int) v >= 2 && (int) v <= 10_000);
+  public static final String TREND_PAIRS = define("serve.trend.pairsPerPoint", Type.INT, "150", "0..10000",
+      "pairs recorded per trend point: the best by the table's measure, plus drifting and asked-for pairs",
+      v -> (int) v >= 0 && (int) v <= 10_000);
+  public static final String TREND_ITEMS = define("serve.trend.itemsPerPoint", Type.INT, "50", "0..10000",
+      "items recorded per trend point: the most frequent, plus asked-for items", v -> (int) v >= 0 && (int) v <= 10_000);
+  public static final String TREND_PINNED = define("serve.trend.pinned", Type.INT, "32", "0..1000",
+      "pairs and items asked for through the trend endpoint that stay recorded (least recently asked dropped)",
+      v -> (int) v >= 0 && (int) v <= 1000);
+  public static final String ALERT_HISTORY = define("serve.alerts.history", Type.INT, "500", "1..100000",
+      "alert events kept for the alert history endpoint", v -> (int) v >= 1 && (int) v <= 100_000);
+  public static final String DRIFT_ENTER_ROOT_G2 = define("drift.enterRootG2", Type.DOUBLE, "5.0", ">= drift.exitRootG2",
+      "size of signed √G² needed to enter emerging (≥) or fading (≤ its negative); p ≈ 5.7e-7", v -> (double) v >= 0);
+  public static final String DRIFT_EXIT_ROOT_G2 = define("drift.exitRootG2", Type.DOUBLE, "3.0", ">= 0",
+      "an active emerging / fading alert clears below this", v -> (double) v >= 0);
+  public static final String DRIFT_ENTER_RATIO = define("drift.enterLiftRatio", Type.DOUBLE, "1.5",
+      ">= drift.exitLiftRatio", "lift recent / baseline needed to enter emerging (its inverse: fading)",
+      v -> (double) v >= 1);
+  public static final String DRIFT_EXIT_RATIO = define("drift.exitLiftRatio", Type.DOUBLE, "1.2", ">= 1",
+      "an active alert clears when the lift ratio is back within [1/x, x]", v -> (double) v >= 1);
+  public static final String DRIFT_BUNDLE_EXIT = define("drift.bundleExitConfidence", Type.DOUBLE, "0.90", "(0, 1]",
+      "an active new-bundle alert clears when a confidence falls below this", v -> (double) v > 0 && (double) v <= 1);
+  public static final String DRIFT_DWELL = define("drift.minDwellMillis", Type.LONG, "900000", ">= 0",
+      "how long an entry (or exit) condition must hold before an alert is raised (or resolved)", v -> (long) v >= 0);
+  public static final String DRIFT_COOLDOWN = define("drift.cooldownMillis", Type.LONG, "21600000", ">= 0",
+      "quiet time after a resolved alert before the same pair and kind can alert again", v -> (long) v >= 0);
+  public static final String DRIFT_REPORTED = define("drift.maxReported", Type.INT, "100", ">= 1",
+      "entries per kind in a drift report", v -> (int) v >= 1);
+  public static final String KAFKA_BOOTSTRAP = define("alerts.kafka.bootstrapServers", Type.STRING, "",
+      "empty, or host:port[,host:port]", "Kafka cluster for the alerts topic; empty: no topic publishing", v -> true);
+  public static final String KAFKA_TOPIC = define("alerts.kafka.topic", Type.STRING, "pairpulse.alerts",
+      "a Kafka topic name", "topic that receives alert events as CloudEvents (structured JSON)",
+      v -> ((String) v).matches("[a-zA-Z0-9._-]{1,249}"));
+  public static final String WEBHOOK_URL = define("alerts.webhook.url", Type.STRING, "", "empty, or an http(s) URL",
+      "URL that receives each alert event as a CloudEvents JSON POST; empty: no webhook",
+      v -> ((String) v).isEmpty() || ((String) v).matches("https?://.+"));
+  public static final String WEBHOOK_ATTEMPTS = define("alerts.webhook.maxAttempts", Type.INT, "6", "1..20",
+      "attempts per event, the first included", v -> (int) v >= 1 && (int) v <= 20);
+  public static final String WEBHOOK_BACKOFF = define("alerts.webhook.initialBackoffMillis", Type.LONG, "500", ">= 1",
+      "wait before the first retry; doubles each retry", v -> (long) v >= 1);
+  public static final String WEBHOOK_MAX_BACKOFF = define("alerts.webhook.maxBackoffMillis", Type.LONG, "30000",
+      ">= alerts.webhook.initialBackoffMillis", "longest wait between retries", v -> (long) v >= 1);
+  public static final String WEBHOOK_TIMEOUT = define("alerts.webhook.timeoutMillis", Type.LONG, "5000", ">= 1",
+      "connect and response timeout of one attempt", v -> (long) v >= 1);
+  public static final String WEBHOOK_QUEUE = define("alerts.webhook.maxPending", Type.INT, "1000", ">= 1",
+      "events waiting for delivery or retry; beyond this new events are dropped and counted", v -> (int) v >= 1);
+
+  private static String define(String name, Type type, String defaultValue, String rule, String doc,
+      Predicate<Object> valid) {
+    KEYS.add(new Key(name, type, defaultValue, rule, doc, valid));
+    return name;
+  }
+
+  private final Map<String, Object> values;
+
+  private ServeConfig(Map<String, Object> values) {
+    this.values = values;
+  }
+
+  /** Every key, in documentation order. */
+  public static List<Key> keys() {
+    return Collections.unmodifiableList(KEYS);
+  }
+
+  /** All defaults. */
+  public static ServeConfig defaults() {
+    return from(Map.of());
+  }
+
+  /**
+   * The defaults overridden by {@code overrides}.
+   *
+   * @throws IllegalArgumentException naming the key, for an unknown key or an invalid value
+   */
+  public static ServeConfig from(Map<String, String> overrides) {
+    Map<String, Object> values = new LinkedHashMap<>();
+    for (Key key : KEYS) {
+      values.put(key.name(), parse(key, key.defaultValue()));
+    }
+    for (Map.Entry<String, String> entry : overrides.entrySet()) {
+      Key key = find(entry.getKey());
+      values.put(key.name(), parse(key, entry.getValue()));
+    }
+    return validated(values);
+  }
+
+  private static Key find(String name) {
+    for (Key key : KEYS) {
+      if (key.name().equals(name)) {
+        return key;
+      }
+    }
+    throw new IllegalArgumentException("unknown serve setting '" + name + "'");
+  }
+
+  private static Object parse(Key key, String text) {
+    Objects.requireNonNull(text, key.name());
+    String trimmed = text.trim();
+    try {
+      Object value = switch (key.type()) {
+        case STRING -> trimmed;
+        case INT -> Integer.parseInt(trimmed);
+        case LONG -> Long.parseLong(trimmed);
+        case DOUBLE -> Double.parseDouble(trimmed);
+        case BOOLEAN -> {
+          if (!trimmed.equals("true") && !trimmed.equals("false")) {
+            throw new NumberFormatException("not true or false");
+          }
+          yield Boolean.parseBoolean(trimmed);
+        }
+      };
+      if (value instanceof Double d && Double.isNaN(d)) {
+        throw new NumberFormatException("NaN");
+      }
+      if (!key.valid().test(value)) {
+        throw new IllegalArgumentException(key.name() + " must be " + key.rule() + ", got '" + text + "'");
+      }
+      return value;
+    } catch (NumberFormatException e) {
+      throw new IllegalArgumentException(key.name() + " must be " + key.rule() + " (" + key.type().name().toLowerCase()
+          + "), got '" + text + "'", e);
+    }
+  }
+
+  private static ServeConfig validated(Map<String, Object> values) {
+    ServeConfig config = new ServeConfig(Collections.unmodifiableMap(values));
+    config.driftSettings(); // cross-key rules
+    if (config.longValue(WEBHOOK_MAX_BACKOFF) < config.longValue(WEBHOOK_BACKOFF)) {
+      throw new IllegalArgumentException(WEBHOOK_MAX_BACKOFF + " must be >= " + WEBHOOK_BACKOFF);
+    }
+    return config;
+  }
+
+  /** A copy with {@code key} set to {@code value} (its text form). */
+  public ServeConfig with(String key, Object value) {
+    Map<String, String> text = new LinkedHashMap<>();
+    for (Map.Entry<String, Object> e : values.entrySet()) {
+      text.put(e.getKey(), String.valueOf(e.getValue()));
+    }
+    text.put(key, String.valueOf(value));
+    return from(text);
+  }
+
+  public String string(String key) {
+    return (String) get(key);
+  }
+
+  public int intValue(String key) {
+    return (Integer) get(key);
+  }
+
+  public long longValue(String key) {
+    return (Long) get(key);
+  }
+
+  public double doubleValue(String key) {
+    return (Double) get(key);
+  }
+
+  private Object get(String key) {
+    Object value = values.get(key);
+    if (value == null) {
+      throw new IllegalArgumentException("unknown serve setting '" + key + "'");
+    }
+    return value;
+  }
+
+  /** The bearer token, if one is set. */
+  public Optional<String> token() {
+    String token = string(TOKEN);
+    return token.isEmpty() ? Optional.empty() : Optional.of(token);
+  }
+
+  /** Drift thresholds from the drift.* keys. */
+  public DriftSettings driftSettings() {
+    return new DriftSettings("recent", "baseline", doubleValue(DRIFT_ENTER_ROOT_G2), doubleValue(DRIFT_EXIT_ROOT_G2),
+        doubleValue(DRIFT_ENTER_RATIO), doubleValue(DRIFT_EXIT_RATIO), doubleValue(DRIFT_BUNDLE_EXIT),
+        longValue(DRIFT_DWELL), longValue(DRIFT_COOLDOWN), intValue(DRIFT_REPORTED));
+  }
+
+  public Duration watchInterval() {
+    return Duration.ofMillis(longValue(WATCH_MILLIS));
+  }
+
+  /** Every value as text, in documentation order (for the status endpoint: the token is masked). */
+  public Map<String, String> describe() {
+    Map<String, String> text = new LinkedHashMap<>();
+    for (Map.Entry<String, Object> e : values.entrySet()) {
+      text.put(e.getKey(), e.getKey().equals(TOKEN) && !((String) e.getValue()).isEmpty() ? "(set)" : String.valueOf(e.getValue()));
+    }
+    return text;
+  }
+}

@@ -1,0 +1,348 @@
+package org.pairpulse.serve;
+
+import io.micrometer.core.instrument.Gauge;
+import io.micrometer.prometheusmetrics.PrometheusConfig;
+import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
+import java.net.URI;
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.LinkedHashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Objects;
+import java.util.Set;
+import java.util.concurrent.Executors;
+import java.util.concurrent.ScheduledExecutorService;
+import java.util.concurrent.TimeUnit;
+import java.util.function.Supplier;
+import org.pairpulse.serve.alerts.AlertDispatcher;
+import org.pairpulse.serve.alerts.AlertHistory;
+import org.pairpulse.serve.alerts.AlertSink;
+import org.pairpulse.serve.alerts.KafkaAlertSink;
+import org.pairpulse.serve.alerts.WebhookAlertSink;
+import org.pairpulse.serve.drift.AlertEvent;
+import org.pairpulse.serve.drift.AlertKind;
+import org.pairpulse.serve.drift.DriftEntry;
+import org.pairpulse.serve.drift.DriftMonitor;
+import org.pairpulse.serve.drift.DriftReport;
+import org.pairpulse.serve.drift.DriftSettings;
+import org.pairpulse.serve.floor.CohortFloor;
+import org.pairpulse.serve.floor.FlooredTable;
+import org.pairpulse.serve.floor.PairKey;
+import org.pairpulse.serve.internal.ApiServer;
+import org.pairpulse.serve.internal.SegmentState;
+import org.pairpulse.serve.internal.Segments;
+import org.pairpulse.serve.metrics.ServeMeters;
+import org.pairpulse.serve.suggest.Suggester;
+import org.pairpulse.serve.trend.TrendHistory;
+import org.pairpulse.sketch.horizon.HorizonSpec;
+import org.pairpulse.sketch.table.PairTable;
+import org.pairpulse.sketch.table.PairTableSource;
+import org.pairpulse.sketch.time.EventClock;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * serve: the HTTP API, the dashboard, {@code /metrics}, drift alerts. Reads pair tables, never
+ * writes state.
+ *
+ * <h2>Use</h2>
+ * <pre>{@code
+ * PairTableHolder tables = new PairTableHolder();               // the refresher publishes into it
+ * PrometheusMeterRegistry registry = ...;                       // shared with ingest
+ * try (ServeServer server = ServeServer.builder()
+ *     .config(ServeConfig.defaults())
+ *     .segment("all", tables)
+ *     .horizons(engineConfig.horizons())
+ *     .registry(registry)
+ *     .ingestStatus(pipeline::health)
+ *     .sketchHealth(() -> newestSketchHealth)
+ *     .build().start()) {
+ *   ...
+ * }
+ * }</pre>
+ *
+ * <h2>Threads</h2>
+ * Requests run on Jetty's pool and read each segment's newest floored table through a volatile
+ * reference: no locks, nothing shared with ingest, so requests never block ingest. One watcher
+ * thread looks for new table versions every {@code serve.watchMillis}: per new version it builds the
+ * floored view, records a trend point, runs drift detection and the alert state machine, and hands
+ * alert events to the dispatcher thread, which feeds the sinks (Kafka, webhook) asynchronously.
+ *
+ * <h2>Time</h2>
+ * Table ages use the wall clock (default {@link EventClock#system()}). The alert state machine's
+ * dwell and cooldown run on the alert clock; by default that is event time, the watermark of the
+ * observed table (so an accelerated replay or demo keeps its alert timing), or any injected clock.
+ */
+public final class ServeServer implements AutoCloseable {
+  private static final Logger LOG = LoggerFactory.getLogger(ServeServer.class);
+  /** The segment that is always present: every basket. */
+  public static final String ALL = "all";
+
+  private final ServeConfig config;
+  private final Map<String, SegmentState> segments;
+  private final CohortFloor floor;
+  private final DriftSettings driftSettings;
+  private final EventClock alertClock;
+  private final AlertHistory history;
+  private final AlertDispatcher dispatcher;
+  private final ServeMeters meters;
+  private final PrometheusMeterRegistry registry;
+  private final ApiServer api;
+  private final ScheduledExecutorService watcher;
+  private final Suggester suggester;
+  private int port = -1;
+
+  private ServeServer(Builder b) {
+    this.config = b.config;
+    this.floor = new CohortFloor(config.doubleValue(ServeConfig.COHORT_FLOOR), b.horizons);
+    this.driftSettings = config.driftSettings();
+    this.alertClock = b.alertClock;
+    this.registry = b.registry != null ? b.registry : new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
+    Supplier<SketchHealth> sketch = b.sketchHealth;
+    IngestStatus ingest = b.ingestStatus;
+    this.meters = new ServeMeters(registry, sketch);
+    this.segments = new LinkedHashMap<>();
+    for (Map.Entry<String, PairTableSource> e : b.sources.entrySet()) {
+      String name = e.getKey();
+      TrendHistory trend = new TrendHistory(config.intValue(ServeConfig.TREND_POINTS),
+          config.intValue(ServeConfig.TREND_PAIRS), config.intValue(ServeConfig.TREND_ITEMS),
+          config.intValue(ServeConfig.TREND_PINNED));
+      SegmentState state = Segments.create(name, e.getValue(), new DriftMonitor(driftSettings, name), trend,
+          FlooredTable.of(PairTable.empty(), floor));
+      segments.put(name, state);
+      Gauge.builder("pairpulse.pair.table.age", state, s -> ageSeconds(s, b.wallClock)).baseUnit("seconds")
+          .tag("segment", name).description("Time since the served pair table was published").register(registry);
+      Gauge.builder("pairpulse.pair.table.version", state, s -> s.view().version()).tag("segment", name)
+          .description("Version of the served pair table").register(registry);
+      Gauge.builder("pairpulse.pair.table.pairs", state, s -> s.view().publishedPairs()).tag("segment", name)
+          .tag("state", "published").description("Pair statistics over all horizons, by cohort-floor outcome")
+          .register(registry);
+      Gauge.builder("pairpulse.pair.table.pairs", state, s -> s.view().suppressedPairs()).tag("segment", name)
+          .tag("state", "suppressed").register(registry);
+    }
+    this.history = new AlertHistory(config.intValue(ServeConfig.ALERT_HISTORY));
+    List<AlertSink> sinks = new ArrayList<>(b.sinks);
+    String bootstrap = config.string(ServeConfig.KAFKA_BOOTSTRAP);
+    if (!bootstrap.isEmpty()) {
+      sinks.add(new KafkaAlertSink(bootstrap, config.string(ServeConfig.KAFKA_TOPIC), registry));
+    }
+    String webhook = config.string(ServeConfig.WEBHOOK_URL);
+    if (!webhook.isEmpty()) {
+      sinks.add(new WebhookAlertSink(new WebhookAlertSink.Settings(URI.create(webhook),
+          config.intValue(ServeConfig.WEBHOOK_ATTEMPTS), Duration.ofMillis(config.longValue(ServeConfig.WEBHOOK_BACKOFF)),
+          Duration.ofMillis(config.longValue(ServeConfig.WEBHOOK_MAX_BACKOFF)),
+          Duration.ofMillis(config.longValue(ServeConfig.WEBHOOK_TIMEOUT)), config.intValue(ServeConfig.WEBHOOK_QUEUE)),
+          registry));
+    }
+    this.dispatcher = new AlertDispatcher(history, sinks, registry);
+    this.suggester = new Suggester(config.intValue(ServeConfig.MAX_NEIGHBOURS));
+    this.api = new ApiServer(new ApiServer.Deps(config, segments, floor, driftSettings, suggester, meters, registry,
+        ingest, sketch, b.evaluation, history, b.wallClock));
+    this.watcher = Executors.newSingleThreadScheduledExecutor(r -> {
+      Thread t = new Thread(r, "pairpulse-serve-watch");
+      t.setDaemon(true);
+      return t;
+    });
+  }
+
+  private static double ageSeconds(SegmentState s, EventClock clock) {
+    FlooredTable view = s.view();
+    return view.version() == 0 ? Double.NaN : (clock.millis() - view.table().publishedAtMillis()) / 1000.0;
+  }
+
+  public static Builder builder() {
+    return new Builder();
+  }
+
+  /**
+   * Processes the newest table of every segment now, builds the views and starts listening on
+   * {@code serve.host}:{@code serve.port}, then watches for new tables.
+   *
+   * @throws IllegalStateException when the port cannot be bound (the cause says why)
+   */
+  public ServeServer start() {
+    catchUp();
+    port = api.start(config.string(ServeConfig.HOST), config.intValue(ServeConfig.PORT));
+    long every = config.longValue(ServeConfig.WATCH_MILLIS);
+    watcher.scheduleWithFixedDelay(this::watchOnce, every, every, TimeUnit.MILLISECONDS);
+    LOG.info("pairpulse serve listening on http://{}:{}/ (segments {}, cohort floor {})",
+        config.string(ServeConfig.HOST), port, segments.keySet(), floor.minBaskets());
+    return this;
+  }
+
+  private void watchOnce() {
+    try {
+      catchUp();
+    } catch (RuntimeException e) {
+      LOG.error("processing a new pair table failed; serving the previous one", e);
+    }
+  }
+
+  /**
+   * Processes any new table version of every segment now: floored view, trend point, drift and
+   * alerts. The watcher does this on its own; tests call it to be deterministic.
+   */
+  public synchronized void catchUp() {
+    for (SegmentState segment : segments.values()) {
+      PairTable table = segment.source().current();
+      if (table.version() == Segments.processedVersion(segment)) {
+        continue;
+      }
+      FlooredTable view = FlooredTable.of(table, floor);
+      suggester.prepare(view); // the index is built here, not by the first request of the version
+      Segments.view(segment, view);
+      if (table.version() > 0) {
+        long now = alertClock != null ? alertClock.millis() : table.watermarkMillis();
+        List<AlertEvent> events = segment.drift().observe(view, now);
+        segment.trend().record(view, drifting(segment.drift().report()));
+        dispatcher.dispatch(events);
+      }
+      Segments.processed(segment, table.version());
+    }
+    meters.discover();
+  }
+
+  /** Pairs the trend records because they drift: the 20 strongest of each kind. */
+  private static Set<PairKey> drifting(DriftReport report) {
+    Set<PairKey> pairs = new LinkedHashSet<>();
+    for (AlertKind kind : AlertKind.values()) {
+      report.of(kind).stream().limit(20).map(DriftEntry::finding).forEach(f -> pairs.add(f.pair()));
+    }
+    return pairs;
+  }
+
+  /** Waits until alert events so far were handed to every sink. */
+  public void drainAlerts() throws InterruptedException {
+    dispatcher.drain();
+  }
+
+  /** The bound port (after {@link #start()}). */
+  public int port() {
+    return port;
+  }
+
+  /** http://host:port */
+  public URI uri() {
+    String host = config.string(ServeConfig.HOST);
+    return URI.create("http://" + (host.contains(":") ? "[" + host + "]" : host) + ":" + port);
+  }
+
+  public ServeConfig config() {
+    return config;
+  }
+
+  public AlertHistory alertHistory() {
+    return history;
+  }
+
+  public PrometheusMeterRegistry registry() {
+    return registry;
+  }
+
+  /** The routes the API serves, "METHOD path". */
+  public List<String> routes() {
+    return api.routes();
+  }
+
+  /** The newest floored table of a segment (what requests answer from). */
+  public FlooredTable view(String segment) {
+    SegmentState state = segments.get(segment);
+    if (state == null) {
+      throw new IllegalArgumentException("unknown segment '" + segment + "'");
+    }
+    return state.view();
+  }
+
+  @Override
+  public void close() {
+    watcher.shutdownNow();
+    api.close();
+    dispatcher.close();
+  }
+
+  /** How the wiring assembles a server; only a source for segment {@value #ALL} is required. */
+  public static final class Builder {
+    private ServeConfig config = ServeConfig.defaults();
+    private final Map<String, PairTableSource> sources = new LinkedHashMap<>();
+    private List<HorizonSpec> horizons = HorizonSpec.defaults();
+    private PrometheusMeterRegistry registry;
+    private IngestStatus ingestStatus = IngestStatus.none();
+    private Supplier<SketchHealth> sketchHealth = SketchHealth::unknown;
+    private EvaluationStatus evaluation = EvaluationStatus.none();
+    private EventClock wallClock = EventClock.system();
+    private EventClock alertClock;
+    private final List<AlertSink> sinks = new ArrayList<>();
+
+    private Builder() {}
+
+    public Builder config(ServeConfig value) {
+      this.config = Objects.requireNonNull(value);
+      return this;
+    }
+
+    /** A segment's pair tables; segment {@value #ALL} (every basket) is required. */
+    public Builder segment(String name, PairTableSource source) {
+      if (name == null || !name.matches("[a-z0-9][a-z0-9_.-]{0,63}")) {
+        throw new IllegalArgumentException("segment names are [a-z0-9][a-z0-9_.-]{0,63}, got '" + name + "'");
+      }
+      if (sources.putIfAbsent(name, Objects.requireNonNull(source)) != null) {
+        throw new IllegalArgumentException("segment '" + name + "' given twice");
+      }
+      return this;
+    }
+
+    /** The engine's horizons (which are windows matters to the cohort floor); default the default horizons. */
+    public Builder horizons(List<HorizonSpec> value) {
+      this.horizons = List.copyOf(value);
+      return this;
+    }
+
+    /** The shared registry that {@code /metrics} scrapes; default a new one. */
+    public Builder registry(PrometheusMeterRegistry value) {
+      this.registry = value;
+      return this;
+    }
+
+    public Builder ingestStatus(IngestStatus value) {
+      this.ingestStatus = Objects.requireNonNull(value);
+      return this;
+    }
+
+    public Builder sketchHealth(Supplier<SketchHealth> value) {
+      this.sketchHealth = Objects.requireNonNull(value);
+      return this;
+    }
+
+    public Builder evaluation(EvaluationStatus value) {
+      this.evaluation = Objects.requireNonNull(value);
+      return this;
+    }
+
+    /** The clock of table ages; default the system clock. */
+    public Builder wallClock(EventClock value) {
+      this.wallClock = Objects.requireNonNull(value);
+      return this;
+    }
+
+    /** The clock of alert dwell and cooldown; default event time (the observed table's watermark). */
+    public Builder alertClock(EventClock value) {
+      this.alertClock = value;
+      return this;
+    }
+
+    /** An extra alert sink besides those configured (alerts.kafka.*, alerts.webhook.*). */
+    public Builder alertSink(AlertSink sink) {
+      this.sinks.add(Objects.requireNonNull(sink));
+      return this;
+    }
+
+    public ServeServer build() {
+      if (!sources.containsKey(ALL)) {
+        throw new IllegalStateException("segment '" + ALL + "' is required");
+      }
+      return new ServeServer(this);
+    }
+  }
+}

@@ -1,0 +1,257 @@
+package org.pairpulse.serve.floor;
+
+import java.util.ArrayList;
+import java.util.Collections;
+import java.util.HashMap;
+import java.util.IdentityHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Objects;
+import java.util.Optional;
+import java.util.Set;
+import org.pairpulse.sketch.horizon.HorizonSpec;
+import org.pairpulse.sketch.stats.Estimate;
+import org.pairpulse.sketch.table.HorizonTable;
+import org.pairpulse.sketch.table.PairStats;
+import org.pairpulse.sketch.table.PairTable;
+
+/**
+ * A {@link PairTable} with every statistic under the {@link CohortFloor} removed: the only view of
+ * a pair table that serve publishes. Immutable and safe to share between threads, like the table.
+ *
+ * <p>Built once per table version, linear in the number of tracked pairs (one hash join over the
+ * horizons; a horizon where nothing is held back reuses the table's own lists); lookups are hash
+ * lookups or list reads. Lists keep the table's order (best first by {@link PairTable#sortMeasure()}).
+ */
+public final class FlooredTable {
+  private final PairTable table;
+  private final CohortFloor floor;
+  private final List<String> horizonNames;
+  private final Map<String, Integer> horizonIndex;
+  private final String evidenceHorizon;
+  private final List<List<PairStats>> pairs;
+  private final List<Map<String, List<PairStats>>> neighbours;
+  private final List<Map<String, Estimate>> items;
+  private final double[] baskets;
+  private final Map<PairKey, Entry> byPair;
+  private final int suppressedPairs;
+  /** Per horizon index, the index of the horizon whose counts are its distinct-basket evidence. */
+  private final int[] evidenceOf;
+  private final java.util.concurrent.ConcurrentHashMap<Object, Object> derived = new java.util.concurrent.ConcurrentHashMap<>();
+
+  /** A pair's statistics in each horizon (null where absent from that horizon). */
+  private record Entry(PairStats[] stats) {}
+
+  private FlooredTable(PairTable table, CohortFloor floor) {
+    this.table = table;
+    this.floor = floor;
+    this.horizonNames = table.horizonNames();
+    int horizonCount = horizonNames.size();
+    Map<String, Integer> index = new HashMap<>();
+    for (int h = 0; h < horizonCount; h++) {
+      index.put(horizonNames.get(h), h);
+    }
+    this.horizonIndex = Map.copyOf(index);
+    this.evidenceHorizon = longestWindow(horizonNames, floor);
+    int evidence = evidenceHorizon == null ? -1 : index.get(evidenceHorizon);
+    this.evidenceOf = new int[horizonCount];
+    for (int h = 0; h < horizonCount; h++) {
+      evidenceOf[h] = floor.isWindow(horizonNames.get(h)) || evidence < 0 ? h : evidence;
+    }
+
+    // the join: every pair's statistics over the horizons (pair lookups, decay evidence)
+    Map<PairKey, Entry> all = new HashMap<>(Math.max(16, table.pairCount() * 2));
+    for (int h = 0; h < horizonCount; h++) {
+      for (PairStats stats : table.pairs(horizonNames.get(h))) {
+        PairKey key = PairKey.of(stats.itemA(), stats.itemB());
+        Entry entry = all.get(key);
+        if (entry == null) {
+          entry = new Entry(new PairStats[horizonCount]);
+          all.put(key, entry);
+        }
+        entry.stats()[h] = stats;
+      }
+    }
+    this.byPair = all;
+
+    // per horizon: what passes, in the table's order; lists are reused as they are when nothing is held back
+    this.pairs = new ArrayList<>(horizonCount);
+    this.neighbours = new ArrayList<>(horizonCount);
+    this.items = new ArrayList<>(horizonCount);
+    this.baskets = new double[horizonCount];
+    int suppressed = 0;
+    for (int h = 0; h < horizonCount; h++) {
+      String name = horizonNames.get(h);
+      HorizonTable horizonTable = table.horizon(name).orElseThrow();
+      List<PairStats> list = horizonTable.pairs();
+      Set<PairStats> rejected = Collections.newSetFromMap(new IdentityHashMap<>());
+      List<PairStats> shown = new ArrayList<>(list.size());
+      for (PairStats stats : list) {
+        PairStats proof = evidenceOf[h] == h ? stats : all.get(PairKey.of(stats.itemA(), stats.itemB())).stats()[evidenceOf[h]];
+        if (passes(proof)) {
+          shown.add(stats);
+        } else {
+          rejected.add(stats);
+        }
+      }
+      suppressed += rejected.size();
+      if (rejected.isEmpty()) {
+        pairs.add(list);
+        neighbours.add(horizonTable.neighbours());
+      } else {
+        pairs.add(Collections.unmodifiableList(shown));
+        Map<String, List<PairStats>> byItem = new HashMap<>(horizonTable.neighbours().size() * 2);
+        for (Map.Entry<String, List<PairStats>> row : horizonTable.neighbours().entrySet()) {
+          List<PairStats> kept = new ArrayList<>(row.getValue().size());
+          for (PairStats stats : row.getValue()) {
+            if (!rejected.contains(stats)) {
+              kept.add(stats);
+            }
+          }
+          if (!kept.isEmpty()) {
+            byItem.put(row.getKey(), kept.size() == row.getValue().size() ? row.getValue()
+                : Collections.unmodifiableList(kept));
+          }
+        }
+        neighbours.add(byItem);
+      }
+      HorizonTable proofTable = table.horizon(horizonNames.get(evidenceOf[h])).orElseThrow();
+      Map<String, Estimate> itemCounts = new HashMap<>();
+      for (Map.Entry<String, Estimate> item : horizonTable.itemCounts().entrySet()) {
+        Estimate proof = proofTable.itemCounts().get(item.getKey());
+        if (proof != null && floor.passes(proof.lower())) {
+          itemCounts.put(item.getKey(), item.getValue());
+        }
+      }
+      items.add(itemCounts);
+      baskets[h] = floor.passes(proofTable.baskets()) ? horizonTable.baskets() : Double.NaN;
+    }
+    this.suppressedPairs = suppressed;
+  }
+
+  /** The floor's rule on the evidence statistics of a pair: n_ab and both n_a pass. */
+  private boolean passes(PairStats proof) {
+    return proof != null && floor.passes(proof.counts().countAB().lower())
+        && floor.passes(proof.counts().countA().lower()) && floor.passes(proof.counts().countB().lower());
+  }
+
+  private static String longestWindow(List<String> names, CohortFloor floor) {
+    String best = null;
+    long bestLength = -1;
+    for (String name : names) {
+      Optional<HorizonSpec> spec = floor.spec(name);
+      if (spec.isPresent() && spec.get().isWindow() && spec.get().lengthMillis() > bestLength) {
+        best = name;
+        bestLength = spec.get().lengthMillis();
+      }
+    }
+    return best;
+  }
+
+  /** The floored view of {@code table}. */
+  public static FlooredTable of(PairTable table, CohortFloor floor) {
+    return new FlooredTable(Objects.requireNonNull(table, "table"), Objects.requireNonNull(floor, "floor"));
+  }
+
+  /** The table underneath (unfloored: never publish from it directly). */
+  public PairTable table() {
+    return table;
+  }
+
+  public CohortFloor floor() {
+    return floor;
+  }
+
+  public long version() {
+    return table.version();
+  }
+
+  /** Horizon names in configuration order. */
+  public List<String> horizonNames() {
+    return horizonNames;
+  }
+
+  public boolean hasHorizon(String horizon) {
+    return horizonIndex.containsKey(horizon);
+  }
+
+  /** The longest window horizon, whose counts are the distinct-basket evidence of decay horizons; empty if none. */
+  public Optional<String> evidenceHorizon() {
+    return Optional.ofNullable(evidenceHorizon);
+  }
+
+  /** Published pairs of a horizon, best first; empty for an unknown horizon. */
+  public List<PairStats> pairs(String horizon) {
+    Integer h = horizonIndex.get(horizon);
+    return h == null ? List.of() : pairs.get(h);
+  }
+
+  /** Published neighbours of {@code item} in a horizon, best first; empty when unknown or suppressed. */
+  public List<PairStats> neighbours(String item, String horizon) {
+    Integer h = horizonIndex.get(horizon);
+    return h == null ? List.of() : neighbours.get(h).getOrDefault(item, List.of());
+  }
+
+  /** The pair {a, b} in a horizon, if tracked and published. */
+  public Optional<PairStats> pair(String a, String b, String horizon) {
+    Integer h = horizonIndex.get(horizon);
+    if (h == null || a.equals(b)) {
+      return Optional.empty();
+    }
+    Entry entry = byPair.get(PairKey.of(a, b));
+    if (entry == null || entry.stats()[h] == null || !passes(entry.stats()[evidenceOf[h]])) {
+      return Optional.empty();
+    }
+    return Optional.of(entry.stats()[h]);
+  }
+
+  /** n_a of a tracked, published item in a horizon. */
+  public Optional<Estimate> itemCount(String item, String horizon) {
+    Integer h = horizonIndex.get(horizon);
+    return h == null ? Optional.empty() : Optional.ofNullable(items.get(h).get(item));
+  }
+
+  /** Published items of a horizon with their n_a (unordered). */
+  public Map<String, Estimate> items(String horizon) {
+    Integer h = horizonIndex.get(horizon);
+    return h == null ? Map.of() : Collections.unmodifiableMap(items.get(h));
+  }
+
+  /** N of a horizon, or NaN when the horizon is unknown or N is under the floor. */
+  public double baskets(String horizon) {
+    Integer h = horizonIndex.get(horizon);
+    return h == null ? Double.NaN : baskets[h];
+  }
+
+  /** Published pairs summed over horizons. */
+  public int publishedPairs() {
+    int sum = 0;
+    for (List<PairStats> list : pairs) {
+      sum += list.size();
+    }
+    return sum;
+  }
+
+  /**
+   * A structure derived from this table (an index, a ranking), built once by {@code build} on first
+   * use and kept as long as the table: readers of the same version share it. {@code key} must
+   * identify the structure and its settings.
+   */
+  @SuppressWarnings("unchecked")
+  public <T> T derived(Object key, java.util.function.Function<FlooredTable, T> build) {
+    Object value = derived.get(key);
+    if (value == null) {
+      value = build.apply(this);
+      Object raced = derived.putIfAbsent(key, value);
+      if (raced != null) {
+        value = raced;
+      }
+    }
+    return (T) value;
+  }
+
+  /** Pair-horizon statistics held back by the floor. */
+  public int suppressedPairs() {
+    return suppressedPairs;
+  }
+}
