@@ -27,6 +27,7 @@ import org.apache.kafka.clients.admin.AdminClientConfig;
 import org.apache.kafka.clients.admin.NewTopic;
 import org.apache.kafka.common.Uuid;
 import org.apache.kafka.common.utils.Time;
+import org.pairpulse.ingest.kafka.Topics;
 
 /**
  * A single-node Kafka broker (KRaft, broker and controller in one) running inside this JVM, built from
@@ -151,9 +152,14 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
         throw new IllegalStateException("formatting the broker's log directory failed (" + rc + "): " + output);
       }
       KafkaRaftServer raft = new KafkaRaftServer(KafkaConfig.fromProps(props, false), Time.SYSTEM);
-      raft.startup();
       server = raft;
-      awaitReady();
+      try {
+        raft.startup();
+        awaitReady();
+      } catch (RuntimeException e) {
+        close(); // a half-started broker keeps its threads and ports
+        throw e;
+      }
       return this;
     } catch (IOException e) {
       throw new UncheckedIOException("cannot start the embedded broker", e);
@@ -190,11 +196,18 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
     createTopic(name, partitions, Map.of());
   }
 
-  /** Creates a topic (replication factor 1) with topic configs. */
+  /**
+   * Creates a topic (replication factor 1) with topic configs; returns once every partition accepts writes
+   * (see {@link Topics#awaitWritable}: producing at once could otherwise fail with sequence errors).
+   */
   public void createTopic(String name, int partitions, Map<String, String> configs) {
     try (Admin admin = admin()) {
       admin.createTopics(List.of(new NewTopic(name, Optional.of(partitions), Optional.of((short) 1)).configs(configs)))
           .all().get(60, TimeUnit.SECONDS);
+      Topics.awaitWritable(admin, List.of(name), java.time.Duration.ofSeconds(60));
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+      throw new IllegalStateException("interrupted creating topic " + name, e);
     } catch (Exception e) {
       throw new IllegalStateException("cannot create topic " + name + ": " + e.getMessage(), e);
     }

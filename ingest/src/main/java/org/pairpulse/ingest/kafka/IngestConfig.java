@@ -136,12 +136,17 @@ public final class IngestConfig extends AbstractConfig {
   public IngestConfig(Map<String, ?> props) {
     super(DEFINITION, props, false);
     if (store() == Store.KAFKA) {
-      long txTimeout = longOf(producerOverrides().get("transaction.timeout.ms"), 60_000L);
+      long txTimeout = transactionTimeoutMs();
       if (getLong(CHECKPOINT_INTERVAL_MS) >= txTimeout) {
         throw new ConfigException(CHECKPOINT_INTERVAL_MS, getLong(CHECKPOINT_INTERVAL_MS),
             "must be shorter than the producer's transaction.timeout.ms (" + txTimeout + "): a checkpoint closes the transaction");
       }
     }
+  }
+
+  /** The producer's {@code transaction.timeout.ms} (Kafka's default: 60 s unless passed through). */
+  long transactionTimeoutMs() {
+    return longOf(producerOverrides().get("transaction.timeout.ms"), 60_000L);
   }
 
   private static long longOf(Object value, long fallback) {

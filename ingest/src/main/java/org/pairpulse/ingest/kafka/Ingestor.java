@@ -127,6 +127,8 @@ public final class Ingestor implements AutoCloseable {
   private Consumer<byte[], byte[]> consumer;
   private Producer<byte[], byte[]> producer;
   private Consumer<byte[], byte[]> stateReader;
+  /** Created when a restore first needs a state partition's log end (see {@link StateTopicStore}). */
+  private Admin stateAdmin;
   private EngineWorker worker;
   private EventDecoder decoder;
   private DeadLetters deadLetters;
@@ -149,6 +151,8 @@ public final class Ingestor implements AutoCloseable {
   private volatile boolean running;
   private volatile Throwable failure;
   private volatile Set<TopicPartition> assignment = Set.of();
+  /** Test hook: so many coming transaction commits fail as if a rebalance had made the group generation stale. */
+  private final java.util.concurrent.atomic.AtomicInteger commitsToFail = new java.util.concurrent.atomic.AtomicInteger();
 
   /** Per-partition state on the poll thread. */
   private static final class Slot {
@@ -271,7 +275,7 @@ public final class Ingestor implements AutoCloseable {
         }
       }
       runTasks();
-      checkpoint(slots.keySet());
+      finalCheckpoint();
     } catch (Throwable t) {
       failed = true;
       failure = t;
@@ -342,8 +346,11 @@ public final class Ingestor implements AutoCloseable {
       producer.initTransactions();
       producer.beginTransaction();
       stateReader = new KafkaConsumer<>(stateReaderProps());
+      // a restore may wait for a dead instance's open transaction to be aborted (transaction.timeout.ms)
+      long restoreTimeoutMs = Math.max(Math.max(60_000, config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS)),
+          config.transactionTimeoutMs() + 30_000);
       stateStore = new StateTopicStore(config.getString(IngestConfig.STATE_TOPIC), config.groupId(), statePartitions,
-          chunkBytes, producer, stateReader, Duration.ofMillis(Math.max(60_000, config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS))));
+          chunkBytes, producer, stateReader, Duration.ofMillis(restoreTimeoutMs), this::stateLogEnd);
     } else if (store == IngestConfig.Store.LOCAL) {
       localStore = new LocalDirectoryStore(Path.of(config.getString(IngestConfig.CHECKPOINT_DIR)));
     }
@@ -355,6 +362,14 @@ public final class Ingestor implements AutoCloseable {
     lastTickMillis = now;
     LOG.info("ingest instance {} reading {} in group {} (checkpoints: {})", instanceId, config.topics(), config.groupId(),
         store.name().toLowerCase(java.util.Locale.ROOT));
+  }
+
+  /** The log end offset of a state partition, or −1 (poll thread). */
+  private long stateLogEnd(TopicPartition statePartition) {
+    if (stateAdmin == null) {
+      stateAdmin = Admin.create(adminProps());
+    }
+    return StateTopicReader.logEndOffset(stateAdmin, statePartition);
   }
 
   private interface AdminCall<T> {
@@ -376,20 +391,25 @@ public final class Ingestor implements AutoCloseable {
     }
   }
 
+  /**
+   * Creates {@code topic} unless it exists, then waits until its partitions accept writes: the producer
+   * writes dead letters and checkpoints to it at once, and a write racing the broker's leadership set-up
+   * can fail for good (see {@link Topics}).
+   */
   private static void ensureTopic(Admin admin, String topic, int partitions, Map<String, String> configs)
       throws InterruptedException, TimeoutException, ExecutionException {
-    if (admin.listTopics().names().get(60, TimeUnit.SECONDS).contains(topic)) {
-      return;
-    }
-    try {
-      admin.createTopics(List.of(new NewTopic(topic, Optional.of(partitions), Optional.empty()).configs(configs)))
-          .all().get(60, TimeUnit.SECONDS);
-      LOG.info("created topic {} ({} partitions{})", topic, partitions, configs.isEmpty() ? "" : ", " + configs);
-    } catch (ExecutionException e) {
-      if (!(e.getCause() instanceof TopicExistsException)) {
-        throw e;
+    if (!admin.listTopics().names().get(60, TimeUnit.SECONDS).contains(topic)) {
+      try {
+        admin.createTopics(List.of(new NewTopic(topic, Optional.of(partitions), Optional.empty()).configs(configs)))
+            .all().get(60, TimeUnit.SECONDS);
+        LOG.info("created topic {} ({} partitions{})", topic, partitions, configs.isEmpty() ? "" : ", " + configs);
+      } catch (ExecutionException e) {
+        if (!(e.getCause() instanceof TopicExistsException)) {
+          throw e;
+        }
       }
     }
+    Topics.awaitWritable(admin, List.of(topic), Duration.ofSeconds(60));
   }
 
   private void process(ConsumerRecords<byte[], byte[]> records) throws InterruptedException {
@@ -450,8 +470,12 @@ public final class Ingestor implements AutoCloseable {
 
   // ------------------------------------------------------------------ checkpoints
 
-  /** Checkpoints the dirty partitions among {@code candidates} (group mode: all dirty ones, one transaction). */
-  private void checkpoint(Collection<TopicPartition> candidates) {
+  /**
+   * Checkpoints the dirty partitions among {@code candidates} (group mode: all dirty ones, one transaction).
+   * Returns false if the transaction failed to commit: then it was aborted and the partitions were rewound
+   * to their last checkpoints, to be read again.
+   */
+  private boolean checkpoint(Collection<TopicPartition> candidates) {
     long now = clock.millis();
     List<TopicPartition> dirty = new ArrayList<>();
     for (TopicPartition tp : (store == IngestConfig.Store.KAFKA ? slots.keySet() : candidates)) {
@@ -464,7 +488,7 @@ public final class Ingestor implements AutoCloseable {
       dirty.forEach(tp -> slots.get(tp).dirty = false);
       basketsSinceCheckpoint = 0;
       lastCheckpointMillis = now;
-      return;
+      return true;
     }
     long startNanos = System.nanoTime();
     Map<TopicPartition, byte[]> engines = worker.snapshot(dirty).join();
@@ -490,6 +514,9 @@ public final class Ingestor implements AutoCloseable {
       try {
         StateTopicStore.Written written = stateStore.write(checkpoints);
         producer.sendOffsetsToTransaction(written.offsets(), consumer.groupMetadata());
+        if (commitsToFail.getAndUpdate(n -> Math.max(0, n - 1)) > 0) {
+          throw new org.apache.kafka.clients.consumer.CommitFailedException("injected by a test: generation id is not valid");
+        }
         producer.commitTransaction();
         bytes = written.bytes();
       } catch (ProducerFencedException | FencedInstanceIdException | OutOfOrderSequenceException
@@ -501,7 +528,7 @@ public final class Ingestor implements AutoCloseable {
         producer.abortTransaction();
         producer.beginTransaction();
         rewind(new ArrayList<>(slots.keySet()));
-        return;
+        return false;
       }
       producer.beginTransaction();
     }
@@ -515,6 +542,63 @@ public final class Ingestor implements AutoCloseable {
     lastCheckpointMillis = now;
     metrics.checkpointed(bytes, System.nanoTime() - startNanos);
     LOG.debug("checkpointed {} ({} bytes)", dirty, bytes);
+    return true;
+  }
+
+  /**
+   * The checkpoint at shutdown. If its transaction fails to commit (typically because a rebalance, such as
+   * another instance leaving at the same moment, made the group generation stale), the partitions were
+   * rewound to their last checkpoints: read them again up to where this instance had stopped and commit
+   * again, until half of {@code shutdown.timeout.ms} is spent (the rest is for closing the clients).
+   * Without this, a clean stop could leave the group's committed state behind what the instance had read.
+   */
+  private void finalCheckpoint() throws InterruptedException {
+    long started = System.nanoTime();
+    long deadline = started + TimeUnit.MILLISECONDS.toNanos(config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS) / 2);
+    Map<TopicPartition, Long> target = new HashMap<>();
+    slots.forEach((tp, slot) -> {
+      if (slot.nextOffset >= 0) {
+        target.put(tp, slot.nextOffset);
+      }
+    });
+    int attempts = 1;
+    while (!checkpoint(slots.keySet())) {
+      if (System.nanoTime() > deadline) {
+        LOG.warn("final checkpoint of instance {} failed {} times; its partitions resume from their last committed checkpoints",
+            instanceId, attempts);
+        return;
+      }
+      LOG.info("final checkpoint of instance {} failed; reading its partitions again up to {} before committing again",
+          instanceId, target);
+      while (!reachedTargets(target) && System.nanoTime() < deadline) {
+        runTasks();
+        ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(pollTimeoutMs));
+        if (!records.isEmpty()) {
+          process(records);
+        }
+      }
+      attempts++;
+    }
+    if (attempts > 1) {
+      LOG.info("final checkpoint of instance {} committed at attempt {}, {} ms after the stop", instanceId, attempts,
+          TimeUnit.NANOSECONDS.toMillis(System.nanoTime() - started));
+    }
+  }
+
+  /** True when every partition of {@code target} this instance still owns is read up to its target offset. */
+  private boolean reachedTargets(Map<TopicPartition, Long> target) {
+    for (Map.Entry<TopicPartition, Long> e : target.entrySet()) {
+      Slot slot = slots.get(e.getKey());
+      if (slot != null && slot.nextOffset < e.getValue()) {
+        return false;
+      }
+    }
+    return true;
+  }
+
+  /** Test hook: the next {@code n} transaction commits fail like a commit with a stale group generation. */
+  void failNextCommits(int n) {
+    commitsToFail.set(n);
   }
 
   /** Drops the state of {@code partitions} and reloads it from their checkpoints (seeking the consumer). */
@@ -673,6 +757,9 @@ public final class Ingestor implements AutoCloseable {
     }
     if (stateReader != null) {
       stateReader.close(CloseOptions.timeout(Duration.ofSeconds(5)));
+    }
+    if (stateAdmin != null) {
+      stateAdmin.close(Duration.ofSeconds(5));
     }
     if (worker != null) {
       worker.close();

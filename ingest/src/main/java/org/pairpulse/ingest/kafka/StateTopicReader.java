@@ -9,10 +9,13 @@ import java.util.TreeMap;
 import java.util.concurrent.TimeUnit;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.AdminClientConfig;
+import org.apache.kafka.clients.admin.ListOffsetsOptions;
+import org.apache.kafka.clients.admin.OffsetSpec;
 import org.apache.kafka.clients.admin.TopicDescription;
 import org.apache.kafka.clients.consumer.ConsumerConfig;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
+import org.apache.kafka.common.IsolationLevel;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.pairpulse.ingest.checkpoint.PartitionCheckpoint;
@@ -53,7 +56,7 @@ public final class StateTopicReader {
       int statePartitions = admin.describeTopics(List.of(stateTopic)).allTopicNames().get(60, TimeUnit.SECONDS)
           .get(stateTopic).partitions().size();
       StateTopicStore store = new StateTopicStore(stateTopic, group, statePartitions, 1 << 20, null, reader,
-          Duration.ofSeconds(60));
+          Duration.ofSeconds(90), source -> logEndOffset(admin, source));
       for (TopicDescription topic : described.values()) {
         topic.partitions().forEach(p -> {
           TopicPartition tp = new TopicPartition(topic.name(), p.partition());
@@ -68,6 +71,19 @@ public final class StateTopicReader {
       throw new IllegalStateException("cannot read the state of group " + group + ": " + e.getMessage(), e);
     }
     return out;
+  }
+
+  /** The log end offset (high watermark) of {@code tp}, or −1 when the broker does not tell it now. */
+  static long logEndOffset(Admin admin, TopicPartition tp) {
+    try {
+      return admin.listOffsets(Map.of(tp, OffsetSpec.latest()), new ListOffsetsOptions(IsolationLevel.READ_UNCOMMITTED))
+          .partitionResult(tp).get(10, TimeUnit.SECONDS).offset();
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+      return -1;
+    } catch (java.util.concurrent.ExecutionException | java.util.concurrent.TimeoutException e) {
+      return -1;
+    }
   }
 
   /** The merge of the checkpoints' engines, in partition order. */

@@ -14,6 +14,8 @@ import java.util.Optional;
 import java.util.TreeMap;
 import java.util.concurrent.ExecutionException;
 import java.util.concurrent.Future;
+import java.util.concurrent.TimeUnit;
+import java.util.function.ToLongFunction;
 import org.apache.kafka.clients.consumer.Consumer;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
@@ -54,6 +56,14 @@ import org.slf4j.LoggerFactory;
  * saying where its checkpoint starts. So the offsets and the state they describe commit together or not
  * at all. A restore seeks to that offset and reads the chunks ({@code read_committed}); without usable
  * metadata it scans the state partition and takes the newest complete checkpoint.
+ *
+ * <h2>Open transactions ahead of a checkpoint</h2>
+ * A {@code read_committed} reader sees nothing past a partition's last stable offset (LSO), the start of
+ * its oldest open transaction. An instance killed while it wrote a checkpoint leaves such a transaction
+ * on its state partition until the coordinator aborts it ({@code transaction.timeout.ms} after it began).
+ * Checkpoints that other instances commit there meanwhile are committed, and their offsets point at
+ * them, but they stay invisible until then. A restore therefore waits, up to its timeout, while the LSO
+ * is below the log end; it gives up early only once it has read everything up to the log end.
  */
 final class StateTopicStore {
   private static final Logger LOG = LoggerFactory.getLogger(StateTopicStore.class);
@@ -69,11 +79,18 @@ final class StateTopicStore {
   private final Producer<byte[], byte[]> producer;
   private final Consumer<byte[], byte[]> reader;
   private final Duration timeout;
+  private final ToLongFunction<TopicPartition> logEnd;
   /** Chunks of the last checkpoint written or read, per input partition (for tombstones). */
   private final Map<TopicPartition, Integer> lastChunkCount = new HashMap<>();
 
+  /**
+   * @param reader a {@code read_committed} consumer without a group
+   * @param timeout longest wait for a checkpoint hidden behind an open transaction (see above)
+   * @param logEnd the log end offset (high watermark, {@code read_uncommitted}) of a state partition, or −1
+   *     when it cannot be told
+   */
   StateTopicStore(String stateTopic, String group, int statePartitions, int chunkBytes, Producer<byte[], byte[]> producer,
-      Consumer<byte[], byte[]> reader, Duration timeout) {
+      Consumer<byte[], byte[]> reader, Duration timeout, ToLongFunction<TopicPartition> logEnd) {
     if (chunkBytes < 1024) {
       throw new IllegalArgumentException("state chunk must be at least 1 KiB, got " + chunkBytes);
     }
@@ -84,6 +101,7 @@ final class StateTopicStore {
     this.producer = producer;
     this.reader = reader;
     this.timeout = timeout;
+    this.logEnd = logEnd;
   }
 
   int chunkBytes() {
@@ -205,13 +223,37 @@ final class StateTopicStore {
     TopicPartition source = new TopicPartition(stateTopic, statePartition);
     reader.assign(List.of(source));
     reader.seek(source, first);
-    long end = endOffset(source);
     Assembly assembly = new Assembly(count, id);
-    long deadline = System.nanoTime() + timeout.toNanos();
+    long started = System.nanoTime();
+    long deadline = started + timeout.toNanos();
+    boolean told = false;
     byte[] key0 = keyOf(tp, 0);
     byte[] prefix = new byte[key0.length - 4];
     System.arraycopy(key0, 0, prefix, 0, prefix.length);
-    while (reader.position(source) < end && System.nanoTime() < deadline) {
+    long stable = endOffset(source);
+    while (true) {
+      if (reader.position(source) >= stable) {
+        stable = endOffset(source);
+        if (reader.position(source) >= stable) {
+          long end = logEnd.applyAsLong(source);
+          if (end >= 0 && stable >= end) {
+            return Optional.empty(); // everything there is has been read: the chunks are not there
+          }
+          if (System.nanoTime() > deadline) {
+            LOG.warn("checkpoint {} of {} is still hidden behind an open transaction on {} (last stable offset {}, log end {}) "
+                + "after {} s", id, tp, source, stable, end, timeout.toSeconds());
+            return Optional.empty();
+          }
+          if (!told && System.nanoTime() - started > TimeUnit.SECONDS.toNanos(1)) {
+            LOG.info("checkpoint {} of {} (offset {} of {}) is behind an open transaction (last stable offset {}, log end {}); "
+                + "waiting up to {} s for it to end", id, tp, first, source, stable, end, timeout.toSeconds());
+            told = true;
+          }
+        }
+      } else if (System.nanoTime() > deadline) {
+        LOG.warn("timed out reading checkpoint {} of {} from {} after {} s", id, tp, source, timeout.toSeconds());
+        return Optional.empty();
+      }
       for (ConsumerRecord<byte[], byte[]> r : reader.poll(Duration.ofMillis(200))) {
         if (r.value() == null || !startsWith(r.key(), prefix)) {
           continue;
@@ -222,11 +264,14 @@ final class StateTopicStore {
         }
         assembly.add(v);
         if (assembly.complete()) {
+          if (told) {
+            LOG.info("checkpoint {} of {} became readable after {} ms", id, tp,
+                TimeUnit.NANOSECONDS.toMillis(System.nanoTime() - started));
+          }
           return Optional.of(PartitionCheckpoint.decode(assembly.bytes()));
         }
       }
     }
-    return Optional.empty();
   }
 
   /** Reads the whole state partition and keeps the newest complete checkpoint of {@code tp}. */

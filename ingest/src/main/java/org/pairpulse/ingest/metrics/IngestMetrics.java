@@ -193,6 +193,11 @@ public final class IngestMetrics {
     return checkpointDuration.count();
   }
 
+  /** Checkpoint transactions that failed to commit (each one rewinds the instance's partitions). */
+  public double checkpointFailureCount() {
+    return checkpointFailures.count();
+  }
+
   /** A per-second rate of a counter, over the interval between two updates. */
   private static final class Rate {
     private final Counter counter;

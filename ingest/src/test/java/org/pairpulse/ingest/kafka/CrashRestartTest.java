@@ -87,7 +87,7 @@ class CrashRestartTest {
     });
     reader.start();
     try {
-      Await.until(Duration.ofSeconds(90), "the child to handle " + killAt + " records", () -> seen.get() >= killAt || !child.isAlive(),
+      Await.until(Duration.ofSeconds(120), "the child to handle " + killAt + " records", () -> seen.get() >= killAt || !child.isAlive(),
           () -> seen.get() + " records; child log: " + tail(dir.resolve("child.log")));
       assertTrue(child.isAlive(), "the child stopped before the kill: " + tail(dir.resolve("child.log")));
     } finally {
@@ -101,9 +101,9 @@ class CrashRestartTest {
     Map<TopicPartition, Long> ends = broker.endOffsets(topic);
     try (Ingestor restarted = new Ingestor(new IngestConfig(props), Workload.engineConfig(), new SimpleMeterRegistry(),
         EventClock.system()).start()) {
-      TestIngest.awaitCaughtUp(restarted, ends, Duration.ofSeconds(90));
+      TestIngest.awaitCaughtUp(restarted, ends, Duration.ofSeconds(120));
       if (seen.get() > 300) {
-        Await.until(Duration.ofSeconds(5), "a restore from a checkpoint", () -> restarted.metrics().restoreCount() > 0,
+        Await.until(Duration.ofSeconds(60), "a restore from a checkpoint", () -> restarted.metrics().restoreCount() > 0,
             () -> "restores " + restarted.metrics().restoreCount());
       }
     }
@@ -120,7 +120,7 @@ class CrashRestartTest {
     ref.put(IngestConfig.CHECKPOINT_INTERVAL_MS, "5000");
     try (Ingestor uninterrupted = new Ingestor(new IngestConfig(ref), Workload.engineConfig(), new SimpleMeterRegistry(),
         EventClock.system()).start()) {
-      TestIngest.awaitCaughtUp(uninterrupted, ends, Duration.ofSeconds(60));
+      TestIngest.awaitCaughtUp(uninterrupted, ends, Duration.ofSeconds(120));
     }
     Map<TopicPartition, PartitionCheckpoint> reference = state(broker, store, topic, "ref-" + topic, dir.resolve("ref"));
     PairEngine referenceMerged = StateTopicReader.merge(Workload.engineConfig(), reference);

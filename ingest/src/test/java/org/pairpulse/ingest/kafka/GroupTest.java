@@ -69,16 +69,24 @@ class GroupTest {
     }
     Map<String, Object> props = TestIngest.props(broker, topic, "kafka");
     try (Ingestor a = instance(props, "a")) {
-      awaitAllCaughtUp(List.of(a), broker.endOffsets(topic), Duration.ofSeconds(60));
+      awaitAllCaughtUp(List.of(a), broker.endOffsets(topic), Duration.ofSeconds(120));
       try (Ingestor b = instance(props, "b")) {
-        Await.until(Duration.ofSeconds(60), "the partitions to be shared", () -> a.assignment().size() == 2 && b.assignment().size() == 2,
+        Await.until(Duration.ofSeconds(120), "the partitions to be shared", () -> a.assignment().size() == 2 && b.assignment().size() == 2,
             () -> "a=" + a.assignment() + " b=" + b.assignment());
         try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
           w.produce(producer, topic, half, w.records.size());
         }
-        awaitAllCaughtUp(List.of(a, b), broker.endOffsets(topic), Duration.ofSeconds(60));
-        assertEquals(2, b.metrics().restoreCount(), 0.0, "b restored both partitions it took over from a's checkpoints");
-        assertEquals(0, a.metrics().restoreCount(), 0.0, "a kept its other partitions without a restore (cooperative)");
+        awaitAllCaughtUp(List.of(a, b), broker.endOffsets(topic), Duration.ofSeconds(120));
+        // A checkpoint whose commit races a rebalance (on a busy machine the cooperative second round can
+        // overlap a's periodic checkpoint) is aborted and its partitions are restored again: a legitimate
+        // restore. Exact restore counts are checked when no commit failed.
+        assertTrue(b.metrics().restoreCount() >= 2, "b restored both partitions it took over from a's checkpoints");
+        if (b.metrics().checkpointFailureCount() == 0) {
+          assertEquals(2, b.metrics().restoreCount(), 0.0, "b restored the two partitions it took over, nothing else");
+        }
+        if (a.metrics().checkpointFailureCount() == 0) {
+          assertEquals(0, a.metrics().restoreCount(), 0.0, "a kept its other partitions without a restore (cooperative)");
+        }
         assertTrue(a.metrics().checkpointCount() >= 1, "a checkpointed on revocation");
       }
     }
@@ -122,7 +130,7 @@ class GroupTest {
     reader.start();
     try (Ingestor a = instance(props, "a"); Ingestor b = instance(props, "b")) {
       try {
-        Await.until(Duration.ofSeconds(60), "all three instances to own partitions and the child to count some",
+        Await.until(Duration.ofSeconds(120), "all three instances to own partitions and the child to count some",
             () -> a.assignment().size() == 2 && b.assignment().size() == 2 && cHandled.get() > 0,
             () -> "a=" + a.assignment() + " b=" + b.assignment() + " c handled " + cHandled.get() + "; c log: "
                 + CrashRestartTest.tail(dir.resolve("c.log")));
@@ -134,14 +142,17 @@ class GroupTest {
       try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
         w.produce(producer, topic, half, w.records.size());
       }
-      awaitAllCaughtUp(List.of(a, b), broker.endOffsets(topic), Duration.ofSeconds(90));
+      awaitAllCaughtUp(List.of(a, b), broker.endOffsets(topic), Duration.ofSeconds(120));
       Set<TopicPartition> owned = new HashSet<>(a.assignment());
       owned.addAll(b.assignment());
       assertEquals(6, owned.size(), "the two survivors own all six partitions");
     }
+    // The killed child may have left a transaction open on a state partition (killed mid-checkpoint): until
+    // the coordinator aborts it, later checkpoints there are committed but hidden; the reader waits for them.
     Map<TopicPartition, PartitionCheckpoint> state = StateTopicReader.read(broker.bootstrapServers(), topic + "-state",
         "g-" + topic, List.of(topic), Map.of());
-    assertEquals(6, state.size());
+    assertEquals(6, state.size(), () -> "a checkpoint per partition; found " + state.keySet() + "; child log: "
+        + CrashRestartTest.tail(dir.resolve("c.log")));
     w.assertExact(StateTopicReader.merge(Workload.engineConfig(), state));
     Map<DeadLetterReason, Long> byReason = new EnumMap<>(DeadLetterReason.class);
     for (ConsumerRecord<byte[], byte[]> r : KafkaIngestTest.readAll(broker, topic + "-dead-letters")) {

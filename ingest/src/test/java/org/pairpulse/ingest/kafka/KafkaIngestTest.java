@@ -49,9 +49,9 @@ class KafkaIngestTest {
     try (Ingestor ingestor = new Ingestor(new IngestConfig(TestIngest.props(broker, topic, "kafka")), Workload.engineConfig(),
         registry, EventClock.system()).start()) {
       long t0 = System.nanoTime();
-      TestIngest.awaitCaughtUp(ingestor, ends, Duration.ofSeconds(60));
+      TestIngest.awaitCaughtUp(ingestor, ends, Duration.ofSeconds(120));
       System.out.printf("caught up in %d ms%n", (System.nanoTime() - t0) / 1_000_000);
-      PairEngine view = ingestor.view().get(30, TimeUnit.SECONDS);
+      PairEngine view = ingestor.view().get(120, TimeUnit.SECONDS);
       w.assertExact(view);
       for (DeadLetterReason reason : DeadLetterReason.values()) {
         assertEquals(w.deadLetters.getOrDefault(reason, 0L), ingestor.metrics().deadLetterCount(reason), 0.0,
@@ -61,17 +61,15 @@ class KafkaIngestTest {
       assertEquals(w.deadLetters.getOrDefault(DeadLetterReason.LATE, 0L), ingestor.metrics().lateCount(), 0.0, "late events");
       assertEquals(w.records.size(), ingestor.metrics().recordCount(), 0.0, "records read");
       assertEquals(w.baskets, ingestor.metrics().basketCount(), 0.0, "baskets counted (metric)");
-      Await.until(Duration.ofSeconds(10), "a lag gauge per partition, at 0",
+      Await.until(Duration.ofSeconds(60), "a lag gauge per partition, at 0",
           () -> registry.find("pairpulse.ingest.lag").gauges().size() == 3
               && registry.find("pairpulse.ingest.lag").gauges().stream().allMatch(g -> g.value() == 0),
           () -> registry.find("pairpulse.ingest.lag").gauges().toString());
       // a refresh publishes a pair table of what was read
-      long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(10);
+      Await.until(Duration.ofSeconds(60), "a published pair table with every basket",
+          () -> ingestor.pairTables().current().horizon("day").map(h -> h.baskets()).orElse(0.0) >= w.baskets,
+          () -> "N of the current table " + ingestor.pairTables().current().horizon("day").map(h -> h.baskets()));
       PairTable table = ingestor.pairTables().current();
-      while (table.horizon("day").map(h -> h.baskets()).orElse(0.0) < w.baskets && System.nanoTime() < deadline) {
-        Thread.sleep(50); // refresh interval polling
-        table = ingestor.pairTables().current();
-      }
       assertEquals(w.baskets, table.horizon("day").map(h -> h.baskets()).orElse(0.0), 0.0, "N of the published pair table");
     }
     // the dead letters: original bytes and headers, plus the reason header; exactly once each (read_committed)
@@ -104,10 +102,10 @@ class KafkaIngestTest {
     try (KafkaConsumer<byte[], byte[]> reader = broker.reader()) {
       reader.assign(ends.keySet());
       reader.seekToBeginning(ends.keySet());
-      long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(30);
+      long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(120);
       while (ends.entrySet().stream().anyMatch(e -> reader.position(e.getKey()) < e.getValue())) {
         if (System.nanoTime() > deadline) {
-          throw new AssertionError("timed out reading " + topic);
+          throw new AssertionError("timed out after 120 s reading " + topic + " up to " + ends + "; read " + out.size());
         }
         reader.poll(Duration.ofMillis(200)).forEach(out::add);
       }

@@ -1,5 +1,6 @@
 package org.pairpulse.ingest.testkit;
 
+import java.time.Duration;
 import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
@@ -15,6 +16,7 @@ import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
+import org.pairpulse.ingest.kafka.Topics;
 
 /** The broker an integration test talks to: the in-process one, or a container (-Dbroker=container). */
 public interface Broker extends AutoCloseable {
@@ -24,32 +26,34 @@ public interface Broker extends AutoCloseable {
     return Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers()));
   }
 
+  /** Creates a topic and returns once every partition accepts writes (see {@link Topics#awaitWritable}). */
   default void createTopic(String name, int partitions, Map<String, String> configs) {
     try (Admin admin = admin()) {
       admin.createTopics(List.of(new NewTopic(name, Optional.of(partitions), Optional.of((short) 1)).configs(configs)))
           .all().get(60, TimeUnit.SECONDS);
-      // producing at once to a partition whose leadership is still settling can end in sequence errors
-      Await.until(java.time.Duration.ofSeconds(30), "leaders for every partition of " + name, () -> {
-        try {
-          return admin.describeTopics(List.of(name)).allTopicNames().get(10, TimeUnit.SECONDS).get(name).partitions().stream()
-              .allMatch(p -> p.leader() != null && !p.leader().isEmpty());
-        } catch (Exception e) {
-          return false;
-        }
-      }, () -> "no leader yet");
+      Topics.awaitWritable(admin, List.of(name), Duration.ofSeconds(120));
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+      throw new IllegalStateException("interrupted creating topic " + name, e);
     } catch (Exception e) {
-      throw new IllegalStateException("cannot create topic " + name, e);
+      throw new IllegalStateException("cannot create topic " + name + ": " + e.getMessage(), e);
     }
   }
 
+  /**
+   * An idempotent producer for test input. One request in flight: besides the readiness wait of
+   * {@link #createTopic}, this keeps a retried first batch from being overtaken by a later one (the
+   * sequence race described in {@link Topics}). Deadlines are generous: they only matter when the broker is stuck.
+   */
   default KafkaProducer<byte[], byte[]> producer() {
     Map<String, Object> p = new HashMap<>();
     p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers());
     p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
     p.put(ProducerConfig.ACKS_CONFIG, "all");
     p.put(ProducerConfig.LINGER_MS_CONFIG, 5);
-    p.put(ProducerConfig.DELIVERY_TIMEOUT_MS_CONFIG, 30_000);
-    p.put(ProducerConfig.REQUEST_TIMEOUT_MS_CONFIG, 10_000);
+    p.put(ProducerConfig.MAX_IN_FLIGHT_REQUESTS_PER_CONNECTION, 1);
+    p.put(ProducerConfig.DELIVERY_TIMEOUT_MS_CONFIG, 120_000);
+    p.put(ProducerConfig.REQUEST_TIMEOUT_MS_CONFIG, 30_000);
     p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
     p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, ByteArraySerializer.class.getName());
     return new KafkaProducer<>(p);

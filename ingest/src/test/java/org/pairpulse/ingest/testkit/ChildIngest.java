@@ -25,6 +25,19 @@ public final class ChildIngest {
     }
     Map<String, Object> props = new HashMap<>();
     properties.forEach((k, v) -> props.put(k.toString(), v));
+    // the parent holds our stdin: when it ends (the test JVM died or was stopped), do not outlive it
+    Thread orphanWatch = new Thread(() -> {
+      try {
+        while (System.in.read() >= 0) {
+          // nothing is sent; only the end matters
+        }
+      } catch (IOException e) {
+        // treated like the end
+      }
+      Runtime.getRuntime().halt(3);
+    }, "orphan-watch");
+    orphanWatch.setDaemon(true);
+    orphanWatch.start();
     Ingestor ingestor = new Ingestor(new IngestConfig(props), Workload.engineConfig(), new SimpleMeterRegistry(),
         EventClock.system()).start();
     System.out.println("started " + ingestor.instanceId());
