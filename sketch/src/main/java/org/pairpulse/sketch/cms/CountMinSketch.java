@@ -20,10 +20,11 @@ import org.pairpulse.sketch.hash.ItemHash;
  *   counters: double[depth * width], row r occupies [r * width, (r + 1) * width)
  *   width  = 2^k >= e / epsilon      (Cormode and Muthukrishnan 2005, Theorem 1)
  *   depth  = ceil(ln(1 / delta))
- *   column = (h1 + r * h2) mod width with h1, h2 the two 32-bit halves of mix64(key ^ seed)
+ *   column of row r = low bits of x_r, x_0 = key ^ seed, x_{r+1} = mix64(x_r + golden ratio constant)
  * </pre>
- * The row indices use double hashing, which keeps the sketch's error guarantees in practice with one
- * 64-bit hash per update (Kirsch and Mitzenmacher 2006, "Less hashing, same performance"). Counters are
+ * Each row hashes through its own application of a bijective 64-bit mixer, so two keys that collide
+ * in one row are not forced to collide in the others (double hashing, h1 + r·h2, makes a collision in
+ * every row as likely as in two, 1/width², which repeated across panes showed as false alerts). Counters are
  * doubles so that forward-decayed weights and integer weights above 2^24 stay exact enough: an
  * integer-valued counter is exact up to 2^53.
  *
@@ -33,11 +34,12 @@ import org.pairpulse.sketch.hash.ItemHash;
  *   <li>G. Cormode, S. Muthukrishnan. An improved data stream summary: the count-min sketch and its
  *       applications. J. Algorithms 55(1), 2005.</li>
  *   <li>C. Estan, G. Varghese. New directions in traffic measurement and accounting. SIGCOMM 2002.</li>
- *   <li>A. Kirsch, M. Mitzenmacher. Less hashing, same performance: building a better Bloom filter.
- *       ESA 2006.</li>
  * </ol>
  */
 public final class CountMinSketch {
+  /** Odd constant (the golden ratio) added before each row's mix, so each row hashes a different input. */
+  private static final long ROW_STEP = 0x9E37_79B9_7F4A_7C15L;
+
   private final int width;
   private final int depth;
   private final int mask;
@@ -99,17 +101,17 @@ public final class CountMinSketch {
   /** Adds {@code weight ≥ 0} to {@code key}. */
   public void add(long key, double weight) {
     assert weight >= 0 : "negative weight " + weight;
-    long h = ItemHash.mix64(key ^ seed);
-    int h1 = (int) h;
-    int h2 = (int) (h >>> 32) | 1; // odd step: visits distinct columns in a power-of-two row
+    long h = key ^ seed;
     if (rule == UpdateRule.LINEAR) {
       for (int row = 0, base = 0; row < depth; row++, base += width) {
-        counters[base + ((h1 + row * h2) & mask)] += weight;
+        h = ItemHash.mix64(h + ROW_STEP);
+        counters[base + ((int) h & mask)] += weight;
       }
     } else {
-      double target = minOf(h1, h2) + weight;
+      double target = minOf(key) + weight;
       for (int row = 0, base = 0; row < depth; row++, base += width) {
-        int index = base + ((h1 + row * h2) & mask);
+        h = ItemHash.mix64(h + ROW_STEP);
+        int index = base + ((int) h & mask);
         if (counters[index] < target) {
           counters[index] = target;
         }
@@ -120,14 +122,15 @@ public final class CountMinSketch {
 
   /** The point estimate: the smallest counter of the key's columns. Never below the true weight. */
   public double estimate(long key) {
-    long h = ItemHash.mix64(key ^ seed);
-    return minOf((int) h, (int) (h >>> 32) | 1);
+    return minOf(key);
   }
 
-  private double minOf(int h1, int h2) {
+  private double minOf(long key) {
     double min = Double.POSITIVE_INFINITY;
+    long h = key ^ seed;
     for (int row = 0, base = 0; row < depth; row++, base += width) {
-      double value = counters[base + ((h1 + row * h2) & mask)];
+      h = ItemHash.mix64(h + ROW_STEP);
+      double value = counters[base + ((int) h & mask)];
       if (value < min) {
         min = value;
       }
@@ -144,16 +147,15 @@ public final class CountMinSketch {
    * its counters do not carry the additive noise the correction assumes.
    */
   public double debiasedEstimate(long key) {
-    long h = ItemHash.mix64(key ^ seed);
-    int h1 = (int) h;
-    int h2 = (int) (h >>> 32) | 1;
-    double upper = minOf(h1, h2);
+    double upper = minOf(key);
     if (rule != UpdateRule.LINEAR) {
       return upper;
     }
     double[] rows = scratch;
+    long h = key ^ seed;
     for (int row = 0, base = 0; row < depth; row++, base += width) {
-      double counter = counters[base + ((h1 + row * h2) & mask)];
+      h = ItemHash.mix64(h + ROW_STEP);
+      double counter = counters[base + ((int) h & mask)];
       double corrected = counter - (totalWeight - counter) / (width - 1);
       int j = row - 1; // insertion sort: depth is small
       while (j >= 0 && rows[j] > corrected) {
