@@ -2,6 +2,8 @@ package org.pairpulse.ops;
 
 import java.util.concurrent.Callable;
 import org.pairpulse.ops.bench.IngestBench;
+import org.pairpulse.ops.bench.ServeBench;
+import org.pairpulse.ops.bench.ShiftBenchCommand;
 import org.pairpulse.ops.bench.SketchBenchCommand;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
@@ -10,7 +12,7 @@ import picocli.CommandLine.Spec;
 /** {@code pairpulse bench}: the benchmarks, one subcommand each. */
 @Command(name = "bench", mixinStandardHelpOptions = true,
     description = "Runs a benchmark and prints its progress and a final RESULT line.",
-    subcommands = {SketchBenchCommand.class, IngestBench.class},
+    subcommands = {SketchBenchCommand.class, IngestBench.class, ServeBench.class, ShiftBenchCommand.class},
     commandListHeading = "%nBenchmarks:%n")
 final class BenchCommand implements Callable<Integer> {
   @Spec

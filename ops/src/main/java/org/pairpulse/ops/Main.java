@@ -2,6 +2,8 @@ package org.pairpulse.ops;
 
 import java.io.PrintWriter;
 import java.util.concurrent.Callable;
+import org.pairpulse.ops.backtest.BacktestCommand;
+import org.pairpulse.ops.report.ReportCommand;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.IExecutionExceptionHandler;
@@ -28,7 +30,8 @@ import picocli.CommandLine.UnmatchedArgumentException;
 @Command(name = "pairpulse", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
     description = "Streaming market-basket association engine: pair statistics over sliding windows and decaying"
         + " horizons in fixed memory.",
-    subcommands = {BenchCommand.class},
+    subcommands = {BenchCommand.class, BacktestCommand.class, ReportCommand.class,
+        org.pairpulse.ops.demo.DemoCommand.class, org.pairpulse.ops.run.RunCommand.class},
     // picocli's defaults for every command (usage error 2, failure 1), named here because they are our contract
     exitCodeOnInvalidInput = Main.EXIT_USAGE,
     exitCodeOnExecutionException = Main.EXIT_FAILED,

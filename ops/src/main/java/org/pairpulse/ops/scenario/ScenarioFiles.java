@@ -27,16 +27,17 @@ import java.util.Map;
  *
  * <h2>{@value #JSON_LINES_FILE}: one basket per line</h2>
  * <pre>
- * {"basket_id":"kc-000000001","timestamp":1780272002316,"items":["protect-basic"],"attributes":{"channel":"web","region":"capital"}}
+ * {"id":"kc-000000001","time":1780272002316,"items":["protect-basic"],"attributes":{"channel":"web","region":"capital"}}
  * </pre>
- * (the first baskets of {@link ScenarioConfig#defaults()}). Keys in this order; attributes in the basket's
- * order.
+ * (the first basket of {@link ScenarioConfig#defaults()}): ingest's basket event ({@code id}, {@code time} in epoch
+ * milliseconds, {@code items}, {@code attributes}; see {@code ingest/README-ingest.md}), so the file replays through
+ * ingest's file source and the backtest, and each line can be sent to Kafka as a record value. Keys in this order;
+ * attributes in the basket's order.
  *
  * <h2>{@value #GROUND_TRUTH_FILE}</h2>
  * {@link ScenarioGroundTruth#toJson()}.
  *
- * <p>Note: the ingest Kafka contract names a basket's fields {@code id} and {@code time}; these files keep the
- * backtest names {@code basket_id} and {@code timestamp}.
+ * <p>The CSV rows are ingest's CSV line items ({@code basket_id,timestamp,item}).
  */
 public final class ScenarioFiles {
   public static final String CSV_HEADER = "basket_id,timestamp,item";
@@ -115,14 +116,14 @@ public final class ScenarioFiles {
     }
   }
 
-  /** One basket as its JSON line, without the line end (for a Kafka producer, say). */
+  /** One basket as its JSON line (ingest's basket event), without the line end (for a Kafka producer, say). */
   public static String jsonLine(ScenarioBasket basket) {
     return jsonLine(new StringBuilder(256), basket).toString();
   }
 
   private static StringBuilder jsonLine(StringBuilder out, ScenarioBasket basket) {
-    out.append("{\"basket_id\":");
-    JsonText.string(out, basket.id()).append(",\"timestamp\":").append(basket.eventMillis()).append(",\"items\":[");
+    out.append("{\"id\":");
+    JsonText.string(out, basket.id()).append(",\"time\":").append(basket.eventMillis()).append(",\"items\":[");
     for (int i = 0; i < basket.items().size(); i++) {
       if (i > 0) {
         out.append(',');

@@ -73,7 +73,7 @@ class ScenarioFilesTest {
     ScenarioBasket odd = new ScenarioBasket("q\"uote\\back\nline\u0001", 5, List.of("a,b", "é"),
         Map.of("k", "v\t"));
     String line = ScenarioFiles.jsonLine(odd);
-    assertEquals("{\"basket_id\":\"q\\\"uote\\\\back\\nline\\u0001\",\"timestamp\":5,\"items\":[\"a,b\",\"é\"],"
+    assertEquals("{\"id\":\"q\\\"uote\\\\back\\nline\\u0001\",\"time\":5,\"items\":[\"a,b\",\"é\"],"
         + "\"attributes\":{\"k\":\"v\\t\"}}", line);
     assertEquals(List.of(odd), parseJsonLines(line + "\n"));
   }
@@ -135,15 +135,15 @@ class ScenarioFilesTest {
     List<ScenarioBasket> baskets = new ArrayList<>();
     for (String line : text.split("\n")) {
       Map<?, ?> json = (Map<?, ?>) new Json(line).value();
-      assertEquals(List.of("basket_id", "timestamp", "items", "attributes"), new ArrayList<>(json.keySet()));
+      assertEquals(List.of("id", "time", "items", "attributes"), new ArrayList<>(json.keySet()));
       List<String> items = new ArrayList<>();
       for (Object item : (List<?>) json.get("items")) {
         items.add((String) item);
       }
       Map<String, String> attributes = new LinkedHashMap<>();
       ((Map<?, ?>) json.get("attributes")).forEach((k, v) -> attributes.put((String) k, (String) v));
-      baskets.add(new ScenarioBasket((String) json.get("basket_id"),
-          ((BigDecimal) json.get("timestamp")).longValueExact(), items, attributes));
+      baskets.add(new ScenarioBasket((String) json.get("id"),
+          ((BigDecimal) json.get("time")).longValueExact(), items, attributes));
     }
     return baskets;
   }

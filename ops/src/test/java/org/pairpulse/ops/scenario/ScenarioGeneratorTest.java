@@ -41,11 +41,11 @@ class ScenarioGeneratorTest {
   static final long DEFAULT_RUN_BASKETS = 230_443;
   static final long DEFAULT_RUN_DIGEST = 2335352062434160013L;
   static final List<String> DEFAULT_RUN_FIRST_LINES = List.of(
-      "{\"basket_id\":\"kc-000000001\",\"timestamp\":1780272002316,\"items\":[\"protect-basic\"],"
+      "{\"id\":\"kc-000000001\",\"time\":1780272002316,\"items\":[\"protect-basic\"],"
           + "\"attributes\":{\"channel\":\"web\",\"region\":\"capital\"}}",
-      "{\"basket_id\":\"kc-000000002\",\"timestamp\":1780272011017,\"items\":[\"boost-1gb\",\"pack-sports\","
+      "{\"id\":\"kc-000000002\",\"time\":1780272011017,\"items\":[\"boost-1gb\",\"pack-sports\","
           + "\"plan-prepaid-50gb-90d\"],\"attributes\":{\"channel\":\"web\",\"region\":\"coast\"}}",
-      "{\"basket_id\":\"kc-000000003\",\"timestamp\":1780272012831,\"items\":[\"album-bridge-distant\","
+      "{\"id\":\"kc-000000003\",\"time\":1780272012831,\"items\":[\"album-bridge-distant\","
           + "\"plan-prepaid-5gb-30d\"],\"attributes\":{\"channel\":\"app\",\"region\":\"south\"}}");
 
   /** One pass: checks every basket's shape on the way, and keeps the baskets for counting. */

@@ -1,0 +1,88 @@
+package org.pairpulse.ops.demo;
+
+import java.io.PrintWriter;
+import java.util.Locale;
+
+/**
+ * The demo's live line: on a terminal one line redrawn in place ({@code \r}, cleared to its end), with
+ * messages printed above it; elsewhere (a log, a pipe) one line per update, so that logs stay readable.
+ */
+final class ProgressLine {
+  private final PrintWriter out;
+  private final boolean inPlace;
+  private String current = "";
+
+  ProgressLine(PrintWriter out, boolean inPlace) {
+    this.out = out;
+    this.inPlace = inPlace;
+  }
+
+  /** A message on its own line (the progress line, if any, is redrawn below it). */
+  void message(String text) {
+    if (inPlace) {
+      out.print("\r\033[K" + text + "\n" + current);
+    } else {
+      out.println(text);
+    }
+    out.flush();
+  }
+
+  void progress(Demo.Progress p) {
+    String line = format(p);
+    if (inPlace) {
+      current = line;
+      out.print("\r\033[K" + line);
+    } else {
+      out.println(line);
+    }
+    out.flush();
+  }
+
+  /** Ends the in-place line. */
+  void end() {
+    if (inPlace && !current.isEmpty()) {
+      out.println();
+      current = "";
+    }
+    out.flush();
+  }
+
+  static String format(Demo.Progress p) {
+    String simulated = simTime(p.simMillis(), p.simStartMillis()) + (p.fastForwarding() ? " fast-forward" : "");
+    String counted = p.watermarkMillis() == Long.MIN_VALUE ? "-" : simTime(p.watermarkMillis(), p.simStartMillis());
+    return String.format(Locale.ROOT, "sim %s (counted to %s) | %,.0f events/s | %,d baskets | %,d tracked pairs"
+            + " | %,d rules | %d alerts%s%s", simulated, counted, p.eventsPerSecond(), p.baskets(), p.trackedPairs(),
+        p.rules(), p.alerts(), p.alerts() == 0 ? "" : " (" + DemoCommand.alerts(p.alertsRaised()) + ")",
+        p.deadLetters() == 0 ? "" : String.format(Locale.ROOT, " | %,d dead letters", p.deadLetters()));
+  }
+
+  /** "3d 12h", "90m": a simulated span. */
+  static String simDuration(long millis) {
+    long minutes = millis / 60_000;
+    long days = minutes / (24 * 60);
+    long hours = minutes / 60 % 24;
+    long rest = minutes % 60;
+    StringBuilder s = new StringBuilder();
+    if (days > 0) {
+      s.append(days).append('d');
+    }
+    if (hours > 0) {
+      s.append(s.length() > 0 ? " " : "").append(hours).append('h');
+    }
+    if (rest > 0 || s.length() == 0) {
+      s.append(s.length() > 0 ? " " : "").append(rest).append('m');
+    }
+    return s.toString();
+  }
+
+  /** "day 3 19:40" relative to the scenario's day 0, 00:00. */
+  static String simTime(long millis, long startMillis) {
+    if (millis == Long.MIN_VALUE) {
+      return "-";
+    }
+    long minutes = Math.floorDiv(millis - startMillis, 60_000L);
+    long day = Math.floorDiv(minutes, 24 * 60);
+    long minuteOfDay = Math.floorMod(minutes, 24 * 60);
+    return String.format(Locale.ROOT, "day %d %02d:%02d", day, minuteOfDay / 60, minuteOfDay % 60);
+  }
+}

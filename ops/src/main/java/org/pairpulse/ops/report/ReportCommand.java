@@ -1,0 +1,150 @@
+package org.pairpulse.ops.report;
+
+import java.io.PrintWriter;
+import java.io.Writer;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import java.util.concurrent.Callable;
+import org.pairpulse.ingest.file.ProgressDisplay;
+import org.pairpulse.ops.backtest.BacktestSettings;
+import org.pairpulse.ops.backtest.SettingsFile;
+import org.pairpulse.sketch.engine.EngineConfig;
+import org.pairpulse.sketch.table.PairTable;
+import picocli.CommandLine.ArgGroup;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.Option;
+import picocli.CommandLine.ParameterException;
+import picocli.CommandLine.Spec;
+
+/** {@code pairpulse report}: the next-day promo list, see {@link PromoReport}. */
+@Command(name = "report", mixinStandardHelpOptions = true, sortOptions = false, usageHelpAutoWidth = true,
+    description = {
+        "Writes the next-day promo list: per segment, the top emerging pairs and the best suggestion pairs inside the"
+            + " confidence band, each with its evidence (lift and its interval, confidence, support, recent against"
+            + " baseline), as promo.csv, promo-suppressed.csv and a static promo.html with small charts. Every number"
+            + " respects the cohort floor; rows under it are only counted."},
+    exitCodeListHeading = "%nExit codes:%n",
+    exitCodeList = {"0:report written", "1:the report failed (unreadable input, ...)", "2:invalid options"})
+public final class ReportCommand implements Callable<Integer> {
+  @Spec
+  CommandSpec spec;
+
+  static final class Source {
+    @Option(names = "--input", paramLabel = "FILE", description = "Basket file to replay (JSON lines or CSV, as ingest"
+        + " reads them); the lists are as of its newest event time.")
+    Path input;
+
+    @Option(names = "--snapshot", paramLabel = "FILE",
+        description = "Saved state instead: an engine snapshot or an ingest partition checkpoint (.ckpt).")
+    Path snapshot;
+  }
+
+  @ArgGroup(exclusive = true, multiplicity = "1")
+  Source source;
+
+  @Option(names = "--out", required = true, paramLabel = "DIR", description = "Output directory.")
+  Path out;
+
+  @Option(names = "--segment-attribute", paramLabel = "NAME",
+      description = "A basket attribute whose values are segments (repeatable; --input only), e.g. channel.")
+  List<String> segmentAttributes = new ArrayList<>();
+
+  @Option(names = "--config", paramLabel = "FILE",
+      description = "Settings file (Java properties): drift.*, serve.cohortFloor, engine.*, ingest's front keys.")
+  Path config;
+
+  @Option(names = "--floor", paramLabel = "N", description = "Cohort floor in distinct baskets (default: 50).")
+  Double floor;
+
+  @Option(names = "--min-confidence", paramLabel = "X", description = "Lower end of the confidence band"
+      + " (default: ${DEFAULT-VALUE}).")
+  double minConfidence = 0.30;
+
+  @Option(names = "--max-confidence", paramLabel = "X", description = "Upper end of the confidence band"
+      + " (default: ${DEFAULT-VALUE}).")
+  double maxConfidence = 0.60;
+
+  @Option(names = "--top", paramLabel = "N", description = "Rows per list and segment (default: ${DEFAULT-VALUE}).")
+  int top = 20;
+
+  @Option(names = "--horizon", paramLabel = "NAME", description = "Horizon of the suggestion pairs"
+      + " (default: ${DEFAULT-VALUE}).")
+  String horizon = "day";
+
+  @Option(names = "--quiet", description = "No progress line.")
+  boolean quiet;
+
+  @Override
+  public Integer call() throws Exception {
+    BacktestSettings base = BacktestSettings.defaults();
+    PromoSettings settings;
+    try {
+      if (config != null) {
+        if (!Files.isRegularFile(config)) {
+          throw new IllegalArgumentException("--config: no such file: " + config);
+        }
+        base = SettingsFile.read(config, base);
+      }
+      settings = new PromoSettings(minConfidence, maxConfidence, top, horizon, base.drift(),
+          floor != null ? floor : base.cohortFloor());
+    } catch (IllegalArgumentException e) {
+      throw new ParameterException(spec.commandLine(), e.getMessage(), e, null, null);
+    }
+    Map<String, PairTable> tables;
+    EngineConfig engine;
+    if (source.input != null) {
+      requireFile(source.input, "--input");
+      engine = base.engine();
+      ProgressDisplay progress = quiet ? null : ProgressDisplay.onStandardError("report", Files.size(source.input));
+      tables = ReportSources.replay(source.input, engine, base, segmentAttributes, progress);
+    } else {
+      requireFile(source.snapshot, "--snapshot");
+      if (!segmentAttributes.isEmpty()) {
+        throw new ParameterException(spec.commandLine(), "--segment-attribute needs --input: a snapshot holds one"
+            + " segment");
+      }
+      engine = ReportSources.snapshotConfig(source.snapshot);
+      tables = ReportSources.snapshot(source.snapshot);
+    }
+    PromoReport report;
+    try {
+      report = PromoReport.build(tables, engine.horizons(), settings);
+    } catch (IllegalArgumentException e) {
+      throw new ParameterException(spec.commandLine(), e.getMessage(), e, null, null);
+    }
+    Files.createDirectories(out);
+    try (Writer csv = Files.newBufferedWriter(out.resolve(PromoCsv.FILE), StandardCharsets.UTF_8);
+        Writer suppressed = Files.newBufferedWriter(out.resolve(PromoCsv.SUPPRESSED_FILE), StandardCharsets.UTF_8);
+        Writer html = Files.newBufferedWriter(out.resolve(PromoHtml.FILE), StandardCharsets.UTF_8)) {
+      PromoCsv.write(report, csv);
+      PromoCsv.writeSuppressed(report, suppressed);
+      PromoHtml.write(report, html);
+    }
+    PrintWriter stdout = spec.commandLine().getOut();
+    stdout.printf(Locale.ROOT, "report as of %s: %d segment(s)%n", report.asOfMillis() == Long.MIN_VALUE ? "(no data)"
+        : Instant.ofEpochMilli(report.asOfMillis()), report.segments().size());
+    for (PromoReport.Segment segment : report.segments()) {
+      stdout.printf(Locale.ROOT, "  %-24s %s%n", segment.name(), segment.suppressed()
+          ? "under the cohort floor: nothing shown"
+          : String.format(Locale.ROOT, "%d emerging, %d suggestion rows, %d held back by the floor",
+              segment.emerging().size(), segment.suggestions().size(), segment.suppressedRows()));
+    }
+    stdout.println("  written: " + out.resolve(PromoCsv.FILE) + ", " + out.resolve(PromoCsv.SUPPRESSED_FILE) + ", "
+        + out.resolve(PromoHtml.FILE));
+    stdout.flush();
+    return 0;
+  }
+
+  private void requireFile(Path file, String option) {
+    if (!Files.isRegularFile(file)) {
+      throw new ParameterException(spec.commandLine(), option + ": no such file: " + file);
+    }
+  }
+}

@@ -1,0 +1,56 @@
+package org.pairpulse.ops.backtest;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import java.io.PrintWriter;
+import java.io.StringWriter;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import org.pairpulse.ops.Main;
+import org.pairpulse.ops.scenario.ScenarioConfig;
+import org.pairpulse.ops.scenario.ScenarioFiles;
+import org.pairpulse.ops.scenario.ScenarioGenerator;
+import picocli.CommandLine;
+
+/**
+ * End to end: a 5-day Kestrel Connect scenario at a low basket rate, replayed by {@code pairpulse backtest} with its
+ * ground truth; the planted emerging pair (e-sports pack and low-latency boost, from day 3 19:00) is alerted.
+ */
+class PlantedEmergingTest {
+  @TempDir
+  Path directory;
+
+  @Test
+  void thePlantedEmergingPairIsAlerted() throws Exception {
+    ScenarioFiles.writeAll(new ScenarioGenerator(ScenarioConfig.defaults().withDurationDays(5).withBasketsPerMinute(6)),
+        directory);
+    // a small tracked table and a coarse refresh keep the test fast; the floor is lowered for the low rate
+    Files.writeString(directory.resolve("test.properties"),
+        "engine.trackedPairCapacity=1024\nengine.trackedItemCapacity=1024\n");
+    StringWriter out = new StringWriter();
+    StringWriter err = new StringWriter();
+    CommandLine cli = Main.commandLine();
+    cli.setOut(new PrintWriter(out, true));
+    cli.setErr(new PrintWriter(err, true));
+    int exit = cli.execute("backtest", "--input", directory.resolve(ScenarioFiles.JSON_LINES_FILE).toString(),
+        "--ground-truth", directory.resolve(ScenarioFiles.GROUND_TRUTH_FILE).toString(), "--config",
+        directory.resolve("test.properties").toString(), "--refresh-every", "1h", "--summary-every", "1d",
+        "--eval-share", "0", "--floor", "20", "--quiet", "--out", directory.resolve("out").toString());
+    assertEquals(Main.EXIT_OK, exit, err.toString());
+    JsonNode detection = new ObjectMapper().readTree(directory.resolve("out").resolve(BacktestRun.JSON_FILE).toFile())
+        .get("detection");
+    assertEquals(1, detection.get("planted").asInt(), detection.toString());
+    JsonNode event = detection.at("/events/0");
+    assertEquals("EMERGING", event.get("kind").asText());
+    assertEquals("boost-lowlatency-5gb", event.at("/pair/0").asText());
+    assertEquals("pack-esports", event.at("/pair/1").asText());
+    assertTrue(event.get("detected").asBoolean(), detection.toString());
+    assertTrue(event.get("delayMinutes").asDouble() >= 0, event.toString());
+    assertTrue(out.toString().contains("detection: 1/1 planted changes"), out.toString());
+  }
+}
