@@ -56,7 +56,7 @@ public final class DemoCommand implements Callable<Integer> {
 
   @Option(names = "--fast-forward", paramLabel = "SIM_TIME", defaultValue = "0",
       description = "Simulated time from day 0 to send at once (a backfill) before the clock starts, e.g. 3d to"
-          + " reach the evening of the emerging pair within a minute. Default: none.")
+          + " reach the evening of the emerging pair in about a minute. Default: none.")
   String fastForward;
 
   @Option(names = "--port", defaultValue = "8470", description = "HTTP port of the dashboard and API on 127.0.0.1"
@@ -227,7 +227,7 @@ public final class DemoCommand implements Callable<Integer> {
 
   private static String describe(DemoSettings settings) {
     return settings.durationSimMillis() == DemoSettings.FOREVER ? "until Ctrl-C"
-        : trim(settings.durationSimMillis() / (double) DemoSettings.DAY_MILLIS) + " simulated days";
+        : ProgressLine.simDuration(settings.durationSimMillis()) + " of simulated time";
   }
 
   private static String trim(double value) {
@@ -309,6 +309,7 @@ public final class DemoCommand implements Callable<Integer> {
 
   /** Warnings only, unless --verbose: the progress line is the demo's voice. */
   private static void quietLogs() {
+    setIfAbsent("org.slf4j.simpleLogger.showDateTime", "false");
     setIfAbsent("org.slf4j.simpleLogger.log.org.pairpulse", "warn");
     setIfAbsent("org.slf4j.simpleLogger.log.org.apache.kafka", "error");
     setIfAbsent("org.slf4j.simpleLogger.log.kafka", "error");

@@ -33,7 +33,9 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
  * @param host address the server binds
  * @param port the server's port (0: any free port)
  * @param basketsPerMinute mean baskets per simulated minute
- * @param partitions partitions of the basket topic
+ * @param partitions partitions of the basket topic. One by default: one engine thread counts every partition of
+ *     an instance anyway, and each partition holds a full-size engine that every refresh merges, so on one
+ *     machine more partitions cost memory and refresh time; more show the per-partition state and its merge
  * @param simStart simulated time of day 0, 00:00
  * @param refreshIntervalMillis how often ingest publishes a pair table (wall clock)
  * @param fastForwardSimMillis simulated time from day 0 sent as fast as ingest takes it (a backfill) before
@@ -164,18 +166,10 @@ public record DemoSettings(long seed, double speed, long durationSimMillis, Stri
   }
 
   /**
-   * The demo's engine: the demo horizons, the default tracked-pair capacity, and
-   * <ul>
-   *   <li>4,096 tracked items (the catalog has about 2,000);</li>
-   *   <li>pair ε = 0.0002 instead of 0.001. A pair that enters the tracked table takes its counts before
-   *       admission from the pair sketches, whose noise in a busy pane (ε·W: a few hundred pair occurrences
-   *       per simulated day here) can dwarf a rare pair's true count; the baseline of a rare pair admitted
-   *       late then looks strong next to its exact {@code recent}, and drift reported it as fading. Five
-   *       times wider pane sketches cut that noise five times: no such false alert in the demo runs here,
-   *       at 28 MB of state for the two partitions.</li>
-   * </ul>
+   * The demo's engine: the demo horizons, 4,096 tracked items (the catalog has about 2,000), the other
+   * settings at their defaults (pair ε 0.001, 16,384 tracked pairs).
    */
   public static EngineConfig engine() {
-    return EngineConfig.builder().horizons(horizons()).trackedItemCapacity(4096).pairError(0.0002, 0.02).build();
+    return EngineConfig.builder().horizons(horizons()).trackedItemCapacity(4096).build();
   }
 }

@@ -48,11 +48,16 @@ final class ProgressLine {
   }
 
   static String format(Demo.Progress p) {
-    String simulated = simTime(p.simMillis(), p.simStartMillis()) + (p.fastForwarding() ? " fast-forward" : "");
+    String simulated = simTime(p.simMillis(), p.simStartMillis());
     String counted = p.watermarkMillis() == Long.MIN_VALUE ? "-" : simTime(p.watermarkMillis(), p.simStartMillis());
-    return String.format(Locale.ROOT, "sim %s (counted to %s) | %,.0f events/s | %,d baskets | %,d tracked pairs"
-            + " | %,d rules | %d alerts%s%s", simulated, counted, p.eventsPerSecond(), p.baskets(), p.trackedPairs(),
-        p.rules(), p.alerts(), p.alerts() == 0 ? "" : " (" + DemoCommand.alerts(p.alertsRaised()) + ")",
+    if (counted.length() > 6 && simulated.length() > 6
+        && counted.substring(0, counted.length() - 6).equals(simulated.substring(0, simulated.length() - 6))) {
+      counted = counted.substring(counted.length() - 5); // same day: the time only
+    }
+    return String.format(Locale.ROOT, "sim %s%s (counted %s) | %,.0f events/s | %,d baskets | %,d tracked pairs"
+            + " | %,d rules | %d alerts%s%s", simulated, p.fastForwarding() ? " fast-forward" : "", counted,
+        p.eventsPerSecond(), p.baskets(), p.trackedPairs(), p.rules(), p.alerts(),
+        p.alerts() == 0 ? "" : " (" + DemoCommand.alerts(p.alertsRaised()) + ")",
         p.deadLetters() == 0 ? "" : String.format(Locale.ROOT, " | %,d dead letters", p.deadLetters()));
   }
 

@@ -54,4 +54,57 @@ class DemoCommandTest {
     assertEquals(30.0, s.simDaySeconds(), 1e-9, "48 simulated minutes a second: a day in 30 s");
     assertEquals(DemoSettings.FOREVER, s.durationSimMillis());
   }
+
+  /**
+   * The demo in a JVM of its own, stopped by SIGTERM as Ctrl-C or a service manager would: everything
+   * closes in order and the process exits 0. The signal goes through the process handle:
+   * {@link Process#destroy()} also closes this end of the child's output pipe, so the child's last lines
+   * (the ones checked here) would be lost.
+   */
+  @Test
+  void sigtermStopsTheDemoCleanlyWithExitCode0() throws Exception {
+    String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
+    Process process = new ProcessBuilder(java, "-Xmx768m", "-cp", System.getProperty("java.class.path"),
+        "org.pairpulse.ops.Main", "demo", "--port", "0", "--duration", "forever")
+        .redirectErrorStream(true).start();
+    List<String> lines = new ArrayList<>();
+    CompletableFuture<Boolean> ready = new CompletableFuture<>();
+    Thread reader = new Thread(() -> {
+      try (BufferedReader in = new BufferedReader(new InputStreamReader(process.getInputStream(), StandardCharsets.UTF_8))) {
+        String line;
+        while ((line = in.readLine()) != null) {
+          synchronized (lines) {
+            lines.add(line);
+          }
+          if (line.startsWith("sim day")) {
+            ready.complete(true); // playing: the first progress line
+          }
+        }
+      } catch (IOException e) {
+        ready.completeExceptionally(e);
+      }
+      ready.complete(false);
+    });
+    reader.start();
+    try {
+      boolean started = ready.get(120, TimeUnit.SECONDS);
+      assertTrue(started, () -> "the demo did not start (exit " + (process.isAlive() ? "-" : process.exitValue())
+          + "): " + output(lines));
+      assertTrue(process.toHandle().destroy(), "SIGTERM not sent");
+      assertTrue(process.waitFor(90, TimeUnit.SECONDS), "the demo did not stop within 90 s");
+      reader.join(10_000);
+      String out = output(lines);
+      assertEquals(0, process.exitValue(), out);
+      assertTrue(out.contains("stopping: scenario, ingest (final checkpoint), server, broker"), out);
+      assertTrue(out.contains("stopped cleanly"), out);
+    } finally {
+      process.destroyForcibly();
+    }
+  }
+
+  private static String output(List<String> lines) {
+    synchronized (lines) {
+      return String.join("\n", lines);
+    }
+  }
 }

@@ -30,7 +30,8 @@ import org.pairpulse.ops.pipeline.Pipeline;
 /**
  * What {@code pairpulse run} starts, from a configuration file, against a real (in-process) broker: the
  * server answers health at once and readiness after the first table, ingest counts every basket, the
- * alerts topic is created, and close() leaves a local checkpoint behind.
+ * alerts topic is created, close() leaves a local checkpoint behind, and the file's cohort floor reaches
+ * the server (a floor above every count publishes nothing).
  */
 class RunPipelineTest {
   private static final ObjectMapper JSON = new ObjectMapper();
@@ -90,6 +91,30 @@ class RunPipelineTest {
       }
       try (Stream<Path> files = Files.list(checkpoints)) {
         assertTrue(files.anyMatch(p -> p.getFileName().toString().startsWith("shop.baskets-")), "no checkpoint file");
+      }
+
+      // the file's cohort floor reaches the server: above every count, nothing is published
+      Files.writeString(file, Files.readString(file, StandardCharsets.UTF_8).replace("serve.cohortFloor=10",
+          "serve.cohortFloor=1000").replace("group.id=run-test", "group.id=run-test-floor")
+          .replace("checkpoint.store=local", "checkpoint.store=none"), StandardCharsets.UTF_8);
+      try (Pipeline pipeline = Pipeline.start(RunConfig.load(file).pipelineSettings())) {
+        HttpClient http = HttpClient.newHttpClient();
+        URI base = pipeline.server().uri();
+        long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(60);
+        while (System.nanoTime() < deadline && pipeline.server().view("all").table().horizon("day")
+            .map(h -> h.baskets()).orElse(0.0) < baskets) {
+          Thread.sleep(100); // waiting for a table of every basket
+        }
+        pipeline.server().catchUp();
+        JsonNode status = JSON.readTree(http.send(HttpRequest.newBuilder(base.resolve("/api/v1/status")).build(),
+            HttpResponse.BodyHandlers.ofString()).body());
+        assertEquals(1000.0, status.path("serving").path("cohortFloor").asDouble(), status.toString());
+        assertEquals(0, status.path("table").path("publishedPairs").asInt(), status.toString());
+        assertTrue(status.path("table").path("suppressedPairs").asInt() > 0, status.toString());
+        JsonNode rules = JSON.readTree(http.send(HttpRequest.newBuilder(
+            base.resolve("/api/v1/rules?item=fibre-1g&horizon=day")).build(), HttpResponse.BodyHandlers.ofString()).body());
+        assertEquals(0, rules.path("outgoing").size(), rules.toString());
+        assertEquals(0, pipeline.server().alertHistory().size(), "no alert about pairs under the floor");
       }
     }
   }
