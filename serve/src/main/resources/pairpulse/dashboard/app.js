@@ -123,16 +123,59 @@
       bounds.appendChild(span);
     });
     if (!(sk.horizons || []).length) { bounds.textContent = 'not reported'; }
-    var ev = s.evaluation;
-    $('tile-evaluation').classList.toggle('hidden', !ev);
-    if (ev) {
-      $('evaluation-rate').textContent = pct(ev.hitRate) + ' hit rate';
-      $('evaluation-detail').textContent = 'top ' + ev.k + ' · MRR ' + fmt(ev.meanReciprocalRank, 3) + ' · ' +
-        count(ev.baskets) + ' baskets · ' + ev.horizon;
-    }
+    renderEvaluation(s.evaluation);
     $('floor').textContent = count(s.serving.cohortFloor);
     $('drift-hint').textContent = s.drift ? 'recent against baseline · enter at √G² ≥ ' + fmt(s.drift.enterRootG2, 1) +
       ' and lift ×' + fmt(s.drift.enterLiftRatio, 1) : 'recent against baseline';
+  }
+
+  var METHOD_NAMES = { incremental: 'served', nightly: 'daily rebuild', popular: 'most popular' };
+
+  /** The evaluation tile: the served table's hit rate, its baselines, and their course per period. */
+  function renderEvaluation(ev) {
+    $('tile-evaluation').classList.toggle('hidden', !ev);
+    if (!ev) { return; }
+    $('evaluation-rate').textContent = pct(ev.hitRate) + ' hit rate';
+    var methods = ev.methods || [];
+    $('evaluation-methods').textContent = methods.map(function (m) {
+      return (METHOD_NAMES[m.method] || m.method) + ' ' + pct(m.hitRate);
+    }).join(' · ');
+    $('evaluation-detail').textContent = 'top ' + ev.k + ' · MRR ' + fmt(ev.meanReciprocalRank, 3) + ' · ' +
+      count(ev.baskets) + ' baskets · ' + ev.horizon;
+    evaluationChart(ev.series || [], methods.map(function (m) { return m.method; }));
+  }
+
+  function evaluationChart(series, names) {
+    var target = $('evaluation-chart');
+    var last = series.length ? series[series.length - 1] : null;
+    var key = series.length + ':' + (last ? last.startMillis + ':' + last.baskets : '') + ':' + names.join(',');
+    if (state.evaluationKey === key) { return; }
+    state.evaluationKey = key;
+    if (state.evaluationChart) { state.evaluationChart.destroy(); state.evaluationChart = null; }
+    clear(target);
+    target.dataset.points = String(series.length);
+    if (series.length < 2 || names.length === 0) { return; }
+    var xs = series.map(function (p) { return p.startMillis / 1000; });
+    var cols = [xs].concat(names.map(function (n) {
+      return series.map(function (p) { return p.hitRate[n] === undefined ? null : p.hitRate[n]; });
+    }));
+    var styles = {
+      incremental: { stroke: COLORS.rise, width: 2 },
+      nightly: { stroke: COLORS.base, width: 1.5, dash: [5, 3] },
+      popular: { stroke: COLORS.muted, width: 1.2, dash: [2, 3] }
+    };
+    var opts = {
+      width: Math.max(170, target.clientWidth), height: 60, pxAlign: false,
+      cursor: { show: false }, legend: { show: false }, select: { show: false },
+      scales: { x: { time: true }, y: { range: function (u, min, max) { return [0, Math.max(0.05, max * 1.1)]; } } },
+      axes: [{ show: false }, { show: false }],
+      padding: [4, 2, 2, 2],
+      series: [{}].concat(names.map(function (n) {
+        var style = styles[n] || { stroke: COLORS.muted, width: 1 };
+        return { label: METHOD_NAMES[n] || n, stroke: style.stroke, width: style.width, dash: style.dash };
+      }))
+    };
+    state.evaluationChart = new uPlot(opts, cols, target);
   }
 
   function fillSelect(select, values, chosen) {

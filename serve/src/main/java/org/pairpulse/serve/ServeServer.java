@@ -12,10 +12,12 @@ import java.util.List;
 import java.util.Map;
 import java.util.Objects;
 import java.util.Set;
+import java.util.concurrent.ConcurrentSkipListMap;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
 import java.util.function.Supplier;
+import java.util.regex.Pattern;
 import org.pairpulse.serve.alerts.AlertDispatcher;
 import org.pairpulse.serve.alerts.AlertHistory;
 import org.pairpulse.serve.alerts.AlertSink;
@@ -63,6 +65,15 @@ import org.slf4j.LoggerFactory;
  * }
  * }</pre>
  *
+ * <h2>Segments</h2>
+ * Segment {@value #ALL} is required; more can be given by name ({@link Builder#segment}) or discovered while
+ * running ({@link Builder#discoveredSegments}: ingest's per-segment tables, {@code attribute=value}, appear as
+ * baskets with new values arrive). The watcher adds a discovered segment once its table's N passes the cohort
+ * floor in some horizon: before that the segment is not even named (a segment's existence says that some
+ * basket carried its value). From then on it is served like the others (API {@code segment} parameter,
+ * dashboard, drift, alerts, meters), every statistic behind the floor, also when N falls under it again.
+ * Names follow {@link #SEGMENT_NAME}.
+ *
  * <h2>Threads</h2>
  * Requests run on Jetty's pool and read each segment's newest floored table through a volatile
  * reference: no locks, nothing shared with ingest, so requests never block ingest. One watcher
@@ -79,9 +90,21 @@ public final class ServeServer implements AutoCloseable {
   private static final Logger LOG = LoggerFactory.getLogger(ServeServer.class);
   /** The segment that is always present: every basket. */
   public static final String ALL = "all";
+  /**
+   * Valid segment names: a plain lower-case name ({@code all}, {@code web}), or {@code attribute=value} as ingest
+   * names the segment of a basket attribute's value (attribute up to 32, value up to 64 plain characters).
+   */
+  public static final Pattern SEGMENT_NAME = Pattern.compile(
+      "[a-z0-9][a-z0-9_.-]{0,63}|[A-Za-z0-9][A-Za-z0-9_.-]{0,31}=[A-Za-z0-9][A-Za-z0-9_.:+-]{0,63}");
 
   private final ServeConfig config;
-  private final Map<String, SegmentState> segments;
+  /** {@value #ALL} first, then by name; read by request threads, added to by the watcher. */
+  private final Map<String, SegmentState> segments = new ConcurrentSkipListMap<>(ServeServer::segmentOrder);
+  private final Supplier<Map<String, ? extends PairTableSource>> discovered;
+  private final java.util.Set<String> refusedNames = new java.util.HashSet<>();
+  /** Discovered segments not served yet: the table version last found under the floor (watcher only). */
+  private final Map<String, Long> hiddenVersions = new java.util.HashMap<>();
+  private final EventClock wallClock;
   private final CohortFloor floor;
   private final DriftSettings driftSettings;
   private final EventClock alertClock;
@@ -103,24 +126,10 @@ public final class ServeServer implements AutoCloseable {
     Supplier<SketchHealth> sketch = b.sketchHealth;
     IngestStatus ingest = b.ingestStatus;
     this.meters = new ServeMeters(registry, sketch);
-    this.segments = new LinkedHashMap<>();
+    this.wallClock = b.wallClock;
+    this.discovered = b.discovered;
     for (Map.Entry<String, PairTableSource> e : b.sources.entrySet()) {
-      String name = e.getKey();
-      TrendHistory trend = new TrendHistory(config.intValue(ServeConfig.TREND_POINTS),
-          config.intValue(ServeConfig.TREND_PAIRS), config.intValue(ServeConfig.TREND_ITEMS),
-          config.intValue(ServeConfig.TREND_PINNED));
-      SegmentState state = Segments.create(name, e.getValue(), new DriftMonitor(driftSettings, name), trend,
-          FlooredTable.of(PairTable.empty(), floor));
-      segments.put(name, state);
-      Gauge.builder("pairpulse.pair.table.age", state, s -> ageSeconds(s, b.wallClock)).baseUnit("seconds")
-          .tag("segment", name).description("Time since the served pair table was published").register(registry);
-      Gauge.builder("pairpulse.pair.table.version", state, s -> s.view().version()).tag("segment", name)
-          .description("Version of the served pair table").register(registry);
-      Gauge.builder("pairpulse.pair.table.pairs", state, s -> s.view().publishedPairs()).tag("segment", name)
-          .tag("state", "published").description("Pair statistics over all horizons, by cohort-floor outcome")
-          .register(registry);
-      Gauge.builder("pairpulse.pair.table.pairs", state, s -> s.view().suppressedPairs()).tag("segment", name)
-          .tag("state", "suppressed").register(registry);
+      addSegment(e.getKey(), e.getValue());
     }
     this.history = new AlertHistory(config.intValue(ServeConfig.ALERT_HISTORY));
     List<AlertSink> sinks = new ArrayList<>(b.sinks);
@@ -145,6 +154,65 @@ public final class ServeServer implements AutoCloseable {
       t.setDaemon(true);
       return t;
     });
+  }
+
+  /** {@value #ALL} first, then by name. */
+  private static int segmentOrder(String a, String b) {
+    if (a.equals(b)) {
+      return 0;
+    }
+    return a.equals(ALL) ? -1 : b.equals(ALL) ? 1 : a.compareTo(b);
+  }
+
+  private void addSegment(String name, PairTableSource source) {
+    TrendHistory trend = new TrendHistory(config.intValue(ServeConfig.TREND_POINTS),
+        config.intValue(ServeConfig.TREND_PAIRS), config.intValue(ServeConfig.TREND_ITEMS),
+        config.intValue(ServeConfig.TREND_PINNED));
+    SegmentState state = Segments.create(name, source, new DriftMonitor(driftSettings, name), trend,
+        FlooredTable.of(PairTable.empty(), floor));
+    Gauge.builder("pairpulse.pair.table.age", state, s -> ageSeconds(s, wallClock)).baseUnit("seconds")
+        .tag("segment", name).description("Time since the served pair table was published").register(registry);
+    Gauge.builder("pairpulse.pair.table.version", state, s -> s.view().version()).tag("segment", name)
+        .description("Version of the served pair table").register(registry);
+    Gauge.builder("pairpulse.pair.table.pairs", state, s -> s.view().publishedPairs()).tag("segment", name)
+        .tag("state", "published").description("Pair statistics over all horizons, by cohort-floor outcome")
+        .register(registry);
+    Gauge.builder("pairpulse.pair.table.pairs", state, s -> s.view().suppressedPairs()).tag("segment", name)
+        .tag("state", "suppressed").register(registry);
+    segments.put(name, state);
+  }
+
+  /** Adds the discovered segments not served yet (watcher; names that break {@link #SEGMENT_NAME} are logged once). */
+  private void discover() {
+    if (discovered == null) {
+      return;
+    }
+    Map<String, ? extends PairTableSource> found = discovered.get();
+    for (Map.Entry<String, ? extends PairTableSource> e : found.entrySet()) {
+      String name = e.getKey();
+      if (segments.containsKey(name)) {
+        continue;
+      }
+      if (!SEGMENT_NAME.matcher(name).matches()) {
+        if (refusedNames.add(name)) {
+          LOG.warn("segment name '{}' is not served: names are {}", name.length() > 100 ? name.substring(0, 100) : name,
+              SEGMENT_NAME.pattern());
+        }
+        continue;
+      }
+      PairTable table = e.getValue().current();
+      if (hiddenVersions.getOrDefault(name, -1L) == table.version()) {
+        continue;
+      }
+      FlooredTable view = FlooredTable.of(table, floor);
+      if (view.horizonNames().stream().noneMatch(h -> !Double.isNaN(view.baskets(h)))) {
+        hiddenVersions.put(name, table.version()); // N under the floor everywhere: not named yet
+        continue;
+      }
+      hiddenVersions.remove(name);
+      addSegment(name, e.getValue());
+      LOG.info("serving segment '{}'", name);
+    }
   }
 
   private static double ageSeconds(SegmentState s, EventClock clock) {
@@ -185,6 +253,7 @@ public final class ServeServer implements AutoCloseable {
    * alerts. The watcher does this on its own; tests call it to be deterministic.
    */
   public synchronized void catchUp() {
+    discover();
     for (SegmentState segment : segments.values()) {
       PairTable table = segment.source().current();
       if (table.version() == Segments.processedVersion(segment)) {
@@ -246,6 +315,11 @@ public final class ServeServer implements AutoCloseable {
     return api.routes();
   }
 
+  /** The segments served now: {@value #ALL} first, then by name (discovered ones appear as they are found). */
+  public List<String> segmentNames() {
+    return List.copyOf(segments.keySet());
+  }
+
   /** The newest floored table of a segment (what requests answer from). */
   public FlooredTable view(String segment) {
     SegmentState state = segments.get(segment);
@@ -266,6 +340,7 @@ public final class ServeServer implements AutoCloseable {
   public static final class Builder {
     private ServeConfig config = ServeConfig.defaults();
     private final Map<String, PairTableSource> sources = new LinkedHashMap<>();
+    private Supplier<Map<String, ? extends PairTableSource>> discovered;
     private List<HorizonSpec> horizons = HorizonSpec.defaults();
     private PrometheusMeterRegistry registry;
     private IngestStatus ingestStatus = IngestStatus.none();
@@ -284,12 +359,21 @@ public final class ServeServer implements AutoCloseable {
 
     /** A segment's pair tables; segment {@value #ALL} (every basket) is required. */
     public Builder segment(String name, PairTableSource source) {
-      if (name == null || !name.matches("[a-z0-9][a-z0-9_.-]{0,63}")) {
-        throw new IllegalArgumentException("segment names are [a-z0-9][a-z0-9_.-]{0,63}, got '" + name + "'");
+      if (name == null || !SEGMENT_NAME.matcher(name).matches()) {
+        throw new IllegalArgumentException("segment names are " + SEGMENT_NAME.pattern() + ", got '" + name + "'");
       }
       if (sources.putIfAbsent(name, Objects.requireNonNull(source)) != null) {
         throw new IllegalArgumentException("segment '" + name + "' given twice");
       }
+      return this;
+    }
+
+    /**
+     * Segments found while running: asked by the watcher before each round, every segment it names that is not
+     * served yet is added (e.g. ingest's {@code segmentTables()}). A name given by {@link #segment} wins.
+     */
+    public Builder discoveredSegments(Supplier<Map<String, ? extends PairTableSource>> value) {
+      this.discovered = Objects.requireNonNull(value);
       return this;
     }
 

@@ -2,19 +2,24 @@ package org.pairpulse.ingest.checkpoint;
 
 import java.nio.ByteBuffer;
 import java.nio.charset.StandardCharsets;
+import java.util.Collections;
+import java.util.Map;
 import java.util.Objects;
+import java.util.SortedMap;
+import java.util.TreeMap;
 import java.util.zip.CRC32C;
 import org.pairpulse.sketch.snapshot.SnapshotFormatException;
 
 /**
- * A checkpoint of one input partition: the state (front and engine snapshot) and the offset it covers.
- * Restoring it and reading on from {@code nextOffset} gives the state an uninterrupted run would have.
+ * A checkpoint of one input partition: the state (front, the engine snapshot of segment {@code all} and those
+ * of the partition's other segments) and the offset it covers. Restoring it and reading on from
+ * {@code nextOffset} gives the state an uninterrupted run would have.
  *
  * <pre>
  * offset  bytes  field
  * ------  -----  ----------------------------------------------------------------------
  *   0       4    MAGIC           0x50 0x50 0x43 0x4B ("PPCK")
- *   4       1    FORMAT_VERSION  1
+ *   4       1    FORMAT_VERSION  2 (1 is read too: it has no segment section)
  *   5       3    reserved        0
  *   8       8    PAYLOAD_BYTES   length L of the payload (big-endian)
  *  16       4    PAYLOAD_CRC     CRC32C of the payload
@@ -23,7 +28,11 @@ import org.pairpulse.sketch.snapshot.SnapshotFormatException;
  *                  topicLength:int, topic:UTF-8 bytes, partition:int, nextOffset:long,
  *                  checkpointId:long, createdAtMillis:long,
  *                  frontLength:int, front bytes   (see PartitionFront#encode)
- *                  engineLength:int, engine bytes (see sketch's Snapshots)
+ *                  engineLength:int, engine bytes (see sketch's Snapshots): segment all
+ *                  segmentCount:int                               (version 2 only)
+ *                  per segment, in name order:
+ *                    nameLength:int, name:UTF-8 bytes ("attribute=value"),
+ *                    engineLength:int, engine bytes
  * </pre>
  *
  * @param topic input topic
@@ -32,12 +41,16 @@ import org.pairpulse.sketch.snapshot.SnapshotFormatException;
  * @param checkpointId grows by one per checkpoint of this partition
  * @param createdAtMillis wall-clock time the checkpoint was taken
  * @param front the partition front's state
- * @param engine the engine snapshot
+ * @param engine the engine snapshot of segment {@code all}
+ * @param segments the engine snapshots of the other segments by name (read-only, name order; empty without
+ *     segment attributes)
  */
 public record PartitionCheckpoint(String topic, int partition, long nextOffset, long checkpointId, long createdAtMillis,
-    byte[] front, byte[] engine) {
+    byte[] front, byte[] engine, SortedMap<String, byte[]> segments) {
   static final int MAGIC = 0x5050_434B;
-  static final byte FORMAT_VERSION = 1;
+  static final byte FORMAT_VERSION = 2;
+  /** The version before segments; still read. */
+  static final byte FORMAT_VERSION_1 = 1;
   static final int OFFSET_VERSION = 4;
   static final int OFFSET_PAYLOAD_BYTES = 8;
   static final int OFFSET_CRC = 16;
@@ -47,16 +60,36 @@ public record PartitionCheckpoint(String topic, int partition, long nextOffset, 
     Objects.requireNonNull(topic, "topic");
     Objects.requireNonNull(front, "front");
     Objects.requireNonNull(engine, "engine");
+    segments = Collections.unmodifiableSortedMap(new TreeMap<>(segments == null ? Map.of() : segments));
+  }
+
+  /** A checkpoint without segments. */
+  public PartitionCheckpoint(String topic, int partition, long nextOffset, long checkpointId, long createdAtMillis,
+      byte[] front, byte[] engine) {
+    this(topic, partition, nextOffset, checkpointId, createdAtMillis, front, engine, new TreeMap<>());
+  }
+
+  private int segmentBytes() {
+    int bytes = 4;
+    for (Map.Entry<String, byte[]> e : segments.entrySet()) {
+      bytes += 4 + e.getKey().getBytes(StandardCharsets.UTF_8).length + 4 + e.getValue().length;
+    }
+    return bytes;
   }
 
   /** The encoded checkpoint (the byte table above). */
   public byte[] encode() {
     byte[] topicBytes = topic.getBytes(StandardCharsets.UTF_8);
-    int payload = 4 + topicBytes.length + 4 + 8 + 8 + 8 + 4 + front.length + 4 + engine.length;
+    int payload = 4 + topicBytes.length + 4 + 8 + 8 + 8 + 4 + front.length + 4 + engine.length + segmentBytes();
     ByteBuffer out = ByteBuffer.allocate(HEADER_BYTES + payload);
     out.putInt(MAGIC).put(FORMAT_VERSION).put(new byte[3]).putLong(payload).putInt(0).putInt(0);
     out.putInt(topicBytes.length).put(topicBytes).putInt(partition).putLong(nextOffset).putLong(checkpointId)
         .putLong(createdAtMillis).putInt(front.length).put(front).putInt(engine.length).put(engine);
+    out.putInt(segments.size());
+    for (Map.Entry<String, byte[]> e : segments.entrySet()) {
+      byte[] name = e.getKey().getBytes(StandardCharsets.UTF_8);
+      out.putInt(name.length).put(name).putInt(e.getValue().length).put(e.getValue());
+    }
     byte[] bytes = out.array();
     CRC32C crc = new CRC32C();
     crc.update(bytes, HEADER_BYTES, payload);
@@ -73,9 +106,10 @@ public record PartitionCheckpoint(String topic, int partition, long nextOffset, 
     if (in.getInt(0) != MAGIC) {
       throw new SnapshotFormatException("not a pairpulse partition checkpoint (bad magic)");
     }
-    if (bytes[OFFSET_VERSION] != FORMAT_VERSION) {
-      throw new SnapshotFormatException("partition checkpoint format " + bytes[OFFSET_VERSION]
-          + " is not supported; this build reads " + FORMAT_VERSION);
+    byte version = bytes[OFFSET_VERSION];
+    if (version != FORMAT_VERSION && version != FORMAT_VERSION_1) {
+      throw new SnapshotFormatException("partition checkpoint format " + version
+          + " is not supported; this build reads " + FORMAT_VERSION_1 + " and " + FORMAT_VERSION);
     }
     long payload = in.getLong(OFFSET_PAYLOAD_BYTES);
     if (payload != bytes.length - HEADER_BYTES) {
@@ -99,11 +133,27 @@ public record PartitionCheckpoint(String topic, int partition, long nextOffset, 
       in.get(front);
       byte[] engine = new byte[in.getInt()];
       in.get(engine);
+      SortedMap<String, byte[]> segments = new TreeMap<>();
+      if (version == FORMAT_VERSION) {
+        int count = in.getInt();
+        if (count < 0) {
+          throw new SnapshotFormatException("partition checkpoint has a negative segment count");
+        }
+        for (int i = 0; i < count; i++) {
+          byte[] name = new byte[in.getInt()];
+          in.get(name);
+          byte[] segment = new byte[in.getInt()];
+          in.get(segment);
+          if (segments.put(new String(name, StandardCharsets.UTF_8), segment) != null) {
+            throw new SnapshotFormatException("partition checkpoint names a segment twice");
+          }
+        }
+      }
       if (in.hasRemaining()) {
         throw new SnapshotFormatException("partition checkpoint has " + in.remaining() + " trailing bytes");
       }
       return new PartitionCheckpoint(new String(topicBytes, StandardCharsets.UTF_8), partition, nextOffset, checkpointId,
-          createdAt, front, engine);
+          createdAt, front, engine, segments);
     } catch (RuntimeException e) {
       if (e instanceof SnapshotFormatException s) {
         throw s;
@@ -114,6 +164,7 @@ public record PartitionCheckpoint(String topic, int partition, long nextOffset, 
 
   /** Bytes of the encoded checkpoint. */
   public long encodedBytes() {
-    return HEADER_BYTES + 4L + topic.getBytes(StandardCharsets.UTF_8).length + 28 + 4 + front.length + 4 + engine.length;
+    return HEADER_BYTES + 4L + topic.getBytes(StandardCharsets.UTF_8).length + 28 + 4 + front.length + 4 + engine.length
+        + segmentBytes();
   }
 }

@@ -100,7 +100,7 @@ public final class PartitionFront {
         return Outcome.DUPLICATE;
       }
       advance(t);
-      sink.basket(basket.basketId(), t, basket.items());
+      sink.basket(basket.basketId(), t, basket.items(), basket.attributes());
       outcome = Outcome.ACCEPTED;
     } else {
       outcome = acceptLine((LineItem) event, sink);

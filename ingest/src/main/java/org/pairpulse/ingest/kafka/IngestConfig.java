@@ -14,6 +14,7 @@ import org.apache.kafka.common.config.ConfigDef.ValidString;
 import org.apache.kafka.common.config.ConfigException;
 import org.pairpulse.ingest.event.EventLimits;
 import org.pairpulse.ingest.front.FrontSettings;
+import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.sketch.time.EventClock;
 
 /**
@@ -22,6 +23,13 @@ import org.pairpulse.sketch.time.EventClock;
  * {@code kafka.X} to every client, {@code kafka.consumer.X}, {@code kafka.producer.X} and
  * {@code kafka.admin.X} to one of them (so SASL/TLS settings and any tuning work unchanged).
  * README-ingest.md lists every key; a test keeps that list complete.
+ *
+ * <p>Segments ({@link SegmentSettings}): {@code segments.attributes} names the basket attributes whose values are
+ * segments (e.g. {@code channel,region}); each basket counts in segment {@code all} and in
+ * {@code <attribute>=<value>} for each of them it carries. {@code segments.max.values} bounds the segments of one
+ * attribute per partition (further values count in {@code all} only, and are counted in the metric
+ * {@code pairpulse.ingest.segment.skipped}); {@code segments.tracked.fraction} scales a segment engine's tracked
+ * capacities. A partition holds at most {@code 1 + attributes × segments.max.values} engines.
  */
 public final class IngestConfig extends AbstractConfig {
   public static final String BOOTSTRAP_SERVERS = "bootstrap.servers";
@@ -51,6 +59,9 @@ public final class IngestConfig extends AbstractConfig {
   public static final String MAX_FUTURE_MS = "max.future.ms";
   public static final String MAX_PAST_MS = "max.past.ms";
   public static final String SHUTDOWN_TIMEOUT_MS = "shutdown.timeout.ms";
+  public static final String SEGMENT_ATTRIBUTES = "segments.attributes";
+  public static final String SEGMENT_MAX_VALUES = "segments.max.values";
+  public static final String SEGMENT_TRACKED_FRACTION = "segments.tracked.fraction";
 
   /** Prefix of the keys passed to the Kafka clients. */
   public static final String KAFKA_PREFIX = "kafka.";
@@ -131,7 +142,55 @@ public final class IngestConfig extends AbstractConfig {
       .define(MAX_PAST_MS, Type.LONG, EventLimits.DEFAULT_MAX_PAST_MILLIS, Range.atLeast(0), Importance.LOW,
           "Event times further behind the wall clock are dead letters (reason time_too_old).")
       .define(SHUTDOWN_TIMEOUT_MS, Type.LONG, 30_000L, Range.atLeast(0), Importance.LOW,
-          "Longest wait for the final checkpoint and commit on shutdown.");
+          "Longest wait for the final checkpoint and commit on shutdown.")
+      .define(SEGMENT_ATTRIBUTES, Type.LIST, "", new AttributeNames(), Importance.MEDIUM,
+          "Basket attributes whose values are segments (e.g. channel,region): a basket also counts in segment "
+              + "<attribute>=<value> for each it carries. Empty: segment all only; no other segment exists.")
+      .define(SEGMENT_MAX_VALUES, Type.INT, SegmentSettings.DEFAULT_MAX_VALUES, Range.between(1, 1024), Importance.MEDIUM,
+          "Most segments of one attribute per partition (each is an engine); baskets with further values count in all "
+              + "only (metric pairpulse.ingest.segment.skipped).")
+      .define(SEGMENT_TRACKED_FRACTION, Type.DOUBLE, SegmentSettings.DEFAULT_TRACKED_FRACTION, new Fraction(),
+          Importance.LOW, "Tracked pair and item capacities of a segment engine, as a fraction of the all engine's "
+              + "(at least " + SegmentSettings.MIN_TRACKED + ").");
+
+  /** Validates {@code segments.attributes}: plain, distinct names. */
+  private static final class AttributeNames implements ConfigDef.Validator {
+    @Override
+    public void ensureValid(String name, Object value) {
+      List<?> list = (List<?>) value;
+      java.util.Set<Object> seen = new java.util.HashSet<>();
+      for (Object attribute : list) {
+        if (!SegmentSettings.ATTRIBUTE.matcher(attribute.toString()).matches()) {
+          throw new ConfigException(name, value, "'" + attribute + "' is not an attribute name (a letter or digit, then"
+              + " letters, digits, '_', '.', '-'; at most 32 characters)");
+        }
+        if (!seen.add(attribute)) {
+          throw new ConfigException(name, value, "'" + attribute + "' is named twice");
+        }
+      }
+    }
+
+    @Override
+    public String toString() {
+      return "comma-separated attribute names, each [A-Za-z0-9][A-Za-z0-9_.-]{0,31}";
+    }
+  }
+
+  /** Validates {@code segments.tracked.fraction}: in (0, 1]. */
+  private static final class Fraction implements ConfigDef.Validator {
+    @Override
+    public void ensureValid(String name, Object value) {
+      double v = ((Number) value).doubleValue();
+      if (!(v > 0 && v <= 1)) {
+        throw new ConfigException(name, value, "must be in (0, 1]");
+      }
+    }
+
+    @Override
+    public String toString() {
+      return "(0, 1]";
+    }
+  }
 
   public IngestConfig(Map<String, ?> props) {
     super(DEFINITION, props, false);
@@ -179,6 +238,11 @@ public final class IngestConfig extends AbstractConfig {
   public FrontSettings frontSettings() {
     return new FrontSettings(getLong(ALLOWED_LATENESS_MS), getLong(DEDUPE_HORIZON_MS), getInt(DEDUPE_MAX_IDS),
         getLong(LINE_GAP_MS), getLong(LINE_MAX_AGE_MS), getInt(LINE_MAX_OPEN_BASKETS), getInt(MAX_BASKET_ITEMS));
+  }
+
+  /** The segment settings ({@code segments.*}). */
+  public SegmentSettings segmentSettings() {
+    return new SegmentSettings(getList(SEGMENT_ATTRIBUTES), getInt(SEGMENT_MAX_VALUES), getDouble(SEGMENT_TRACKED_FRACTION));
   }
 
   /** Pass-through settings for one client kind: {@code kafka.X} then {@code kafka.<kind>.X} (which wins). */

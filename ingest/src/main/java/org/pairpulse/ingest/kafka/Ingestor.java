@@ -60,6 +60,8 @@ import org.pairpulse.ingest.event.LineItem;
 import org.pairpulse.ingest.front.FrontSettings;
 import org.pairpulse.ingest.front.PartitionFront;
 import org.pairpulse.ingest.metrics.IngestMetrics;
+import org.pairpulse.ingest.segment.SegmentEngines;
+import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.ingest.worker.BasketBatch;
 import org.pairpulse.ingest.worker.EngineWorker;
 import org.pairpulse.sketch.engine.EngineConfig;
@@ -92,6 +94,13 @@ import org.slf4j.LoggerFactory;
  * on the engine thread ({@link EngineWorker}). State is per input partition, so partitions move freely
  * between instances of one consumer group.
  *
+ * <h2>Segments</h2>
+ * With {@code segments.attributes} (see {@link org.pairpulse.ingest.segment.SegmentSettings}), each partition also
+ * keeps one engine per segment {@code <attribute>=<value>} (bounded by {@code segments.max.values} per attribute);
+ * checkpoints hold them all, and every refresh publishes one table per segment ({@link #segmentTables()}) beside
+ * the table of every basket ({@link #pairTables()}). Without segment attributes the engine thread counts each
+ * basket once, with no lookup and no allocation beyond what it did before.
+ *
  * <h2>Checkpoints</h2>
  * Every {@code checkpoint.interval.ms} or {@code checkpoint.interval.baskets}, when partitions are revoked,
  * and at shutdown, the dirty partitions are checkpointed (front + engine + next offset). In group mode
@@ -121,7 +130,10 @@ public final class Ingestor implements AutoCloseable {
   private final long checkpointIntervalMs;
   private final long checkpointIntervalBaskets;
   private final long refreshIntervalMs;
+  private final SegmentSettings segmentSettings;
   private final PairTableHolder tables = new PairTableHolder();
+  /** One holder per segment other than all that a refresh has published (refresh callback only writes). */
+  private final Map<String, PairTableHolder> segmentTables = new java.util.concurrent.ConcurrentSkipListMap<>();
 
   // poll thread only
   private Consumer<byte[], byte[]> consumer;
@@ -177,6 +189,7 @@ public final class Ingestor implements AutoCloseable {
     String id = config.getString(IngestConfig.INSTANCE_ID);
     this.instanceId = id.isEmpty() ? UUID.randomUUID().toString().substring(0, 8) : id;
     this.frontSettings = config.frontSettings();
+    this.segmentSettings = config.segmentSettings();
     this.pollTimeoutMs = config.getLong(IngestConfig.POLL_TIMEOUT_MS);
     this.checkpointIntervalMs = config.getLong(IngestConfig.CHECKPOINT_INTERVAL_MS);
     this.checkpointIntervalBaskets = config.getLong(IngestConfig.CHECKPOINT_INTERVAL_BASKETS);
@@ -206,9 +219,26 @@ public final class Ingestor implements AutoCloseable {
     return this;
   }
 
-  /** The pair tables of this instance's partitions, refreshed every {@code refresh.interval.ms}. */
+  /**
+   * The pair tables of segment {@code all} (every basket) of this instance's partitions, refreshed every
+   * {@code refresh.interval.ms}.
+   */
   public PairTableSource pairTables() {
     return tables;
+  }
+
+  /**
+   * The pair tables of the other segments ({@code attribute=value}, merged over this instance's partitions), by
+   * name in name order: those that some refresh has published so far. Each source is refreshed with
+   * {@link #pairTables()}; a segment that no owned partition holds any more gets an empty table. Empty without
+   * {@code segments.attributes}.
+   */
+  public Map<String, PairTableSource> segmentTables() {
+    return java.util.Collections.unmodifiableMap(new java.util.TreeMap<>(segmentTables));
+  }
+
+  public SegmentSettings segmentSettings() {
+    return segmentSettings;
   }
 
   public IngestMetrics metrics() {
@@ -238,7 +268,23 @@ public final class Ingestor implements AutoCloseable {
     return running && stopped.getCount() > 0;
   }
 
-  /** A merged copy of this instance's partition engines, after everything read so far is counted. */
+  /**
+   * Merged copies of this instance's segment engines per segment (not {@code all}), after everything read so far is
+   * counted.
+   */
+  public CompletableFuture<java.util.SortedMap<String, PairEngine>> segmentViews() {
+    CompletableFuture<java.util.SortedMap<String, PairEngine>> result = new CompletableFuture<>();
+    tasks.add(() -> worker.mergedSegmentCopies().whenComplete((engines, error) -> {
+      if (error != null) {
+        result.completeExceptionally(error);
+      } else {
+        result.complete(engines);
+      }
+    }));
+    return result;
+  }
+
+  /** A merged copy of this instance's partition engines of segment {@code all}, after everything read so far is counted. */
   public CompletableFuture<PairEngine> view() {
     CompletableFuture<PairEngine> result = new CompletableFuture<>();
     tasks.add(() -> worker.mergedCopy().whenComplete((engine, error) -> {
@@ -297,7 +343,7 @@ public final class Ingestor implements AutoCloseable {
 
   private void open() throws ExecutionException, InterruptedException, TimeoutException {
     decoder = new EventDecoder(config.eventLimits(clock));
-    worker = new EngineWorker(engineConfig, metrics, config.getBoolean(IngestConfig.ENGINE_THREAD),
+    worker = new EngineWorker(engineConfig, segmentSettings, metrics, config.getBoolean(IngestConfig.ENGINE_THREAD),
         config.getInt(IngestConfig.ENGINE_QUEUE_BATCHES));
     int statePartitions;
     int chunkBytes = 0;
@@ -419,7 +465,7 @@ public final class Ingestor implements AutoCloseable {
         continue; // not ours any more (cannot happen inside one poll, kept defensive)
       }
       List<ConsumerRecord<byte[], byte[]>> list = records.records(tp);
-      BasketBatch batch = new BasketBatch(list.size());
+      BasketBatch batch = new BasketBatch(list.size(), segmentSettings.enabled());
       for (ConsumerRecord<byte[], byte[]> record : list) {
         BasketEvent event;
         try {
@@ -465,7 +511,24 @@ public final class Ingestor implements AutoCloseable {
 
   private void refresh(long now) {
     lastRefreshMillis = now;
-    pendingRefresh = worker.refresh(++tableVersion, now).thenAccept(tables::publish);
+    pendingRefresh = worker.refresh(++tableVersion, now).thenAccept(this::publish);
+  }
+
+  /** Publishes a refresh: all, every segment in it, and an empty table for known segments no partition holds now. */
+  private void publish(Map<String, PairTable> refreshed) {
+    PairTable all = refreshed.get(SegmentSettings.ALL);
+    tables.publish(all);
+    refreshed.forEach((name, table) -> {
+      if (!name.equals(SegmentSettings.ALL)) {
+        segmentTables.computeIfAbsent(name, n -> new PairTableHolder()).publish(table);
+      }
+    });
+    segmentTables.forEach((name, holder) -> {
+      if (!refreshed.containsKey(name)) {
+        holder.publish(new PairTable(all.version(), all.publishedAtMillis(), all.watermarkMillis(), all.sortMeasure(),
+            Map.of(), List.of()));
+      }
+    });
   }
 
   // ------------------------------------------------------------------ checkpoints
@@ -491,12 +554,13 @@ public final class Ingestor implements AutoCloseable {
       return true;
     }
     long startNanos = System.nanoTime();
-    Map<TopicPartition, byte[]> engines = worker.snapshot(dirty).join();
+    Map<TopicPartition, EngineWorker.PartitionSnapshot> engines = worker.snapshot(dirty).join();
     List<PartitionCheckpoint> checkpoints = new ArrayList<>(dirty.size());
     for (TopicPartition tp : dirty) {
       Slot slot = slots.get(tp);
+      EngineWorker.PartitionSnapshot snapshot = engines.get(tp);
       checkpoints.add(new PartitionCheckpoint(tp.topic(), tp.partition(), slot.nextOffset, slot.checkpointId + 1, now,
-          slot.front.encode(), engines.get(tp)));
+          slot.front.encode(), snapshot.all(), snapshot.segments()));
     }
     long bytes = 0;
     if (store == IngestConfig.Store.LOCAL) {
@@ -639,7 +703,14 @@ public final class Ingestor implements AutoCloseable {
       if (checkpoint.isPresent()) {
         PartitionCheckpoint cp = checkpoint.get();
         slot = new Slot(PartitionFront.decode(cp.front(), frontSettings));
-        worker.restore(tp, Snapshots.read(cp.engine())).join();
+        Map<String, PairEngine> segments = new HashMap<>();
+        cp.segments().forEach((name, bytes) -> segments.put(name, Snapshots.read(bytes)));
+        List<String> dropped = SegmentEngines.droppedOnRestore(segments, segmentSettings);
+        if (!dropped.isEmpty()) {
+          LOG.warn("{}: the checkpoint holds segments {} of attributes no longer in segments.attributes; they are dropped",
+              tp, dropped);
+        }
+        worker.restore(tp, Snapshots.read(cp.engine()), segments).join();
         consumer.seek(tp, cp.nextOffset());
         slot.nextOffset = cp.nextOffset();
         slot.checkpointId = cp.checkpointId();

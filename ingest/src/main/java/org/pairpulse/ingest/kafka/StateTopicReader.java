@@ -86,7 +86,22 @@ public final class StateTopicReader {
     }
   }
 
-  /** The merge of the checkpoints' engines, in partition order. */
+  /**
+   * The merge of the checkpoints' segment engines per segment (segments other than {@code all}), in partition
+   * order; a segment absent from a partition adds nothing.
+   */
+  public static java.util.SortedMap<String, PairEngine> mergeSegments(Map<TopicPartition, PartitionCheckpoint> checkpoints) {
+    java.util.SortedMap<String, PairEngine> merged = new TreeMap<>();
+    for (PartitionCheckpoint cp : checkpoints.values()) {
+      cp.segments().forEach((name, bytes) -> {
+        PairEngine engine = Snapshots.read(bytes);
+        merged.computeIfAbsent(name, n -> new PairEngine(engine.config())).merge(engine);
+      });
+    }
+    return merged;
+  }
+
+  /** The merge of the checkpoints' engines of segment {@code all}, in partition order. */
   public static PairEngine merge(EngineConfig config, Map<TopicPartition, PartitionCheckpoint> checkpoints) {
     PairEngine merged = new PairEngine(config);
     for (PartitionCheckpoint cp : checkpoints.values()) {

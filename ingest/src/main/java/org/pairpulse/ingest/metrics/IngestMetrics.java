@@ -34,7 +34,11 @@ import org.pairpulse.sketch.time.EventClock;
  *   <tr><td>pairpulse.ingest.checkpoint.duration</td><td>timer</td><td></td><td>time to take and write a checkpoint</td></tr>
  *   <tr><td>pairpulse.ingest.checkpoint.failures</td><td>counter</td><td></td><td>checkpoints that failed (their work is redone)</td></tr>
  *   <tr><td>pairpulse.ingest.restores</td><td>counter</td><td></td><td>partitions restored from a checkpoint</td></tr>
- *   <tr><td>pairpulse.ingest.state.bytes</td><td>gauge, bytes</td><td></td><td>engine state held by this instance</td></tr>
+ *   <tr><td>pairpulse.ingest.state.bytes</td><td>gauge, bytes</td><td></td><td>engine state held by this instance (every segment)</td></tr>
+ *   <tr><td>pairpulse.ingest.segment.engines</td><td>gauge</td><td></td><td>segment engines held by this instance (besides
+ *       one {@code all} engine per partition)</td></tr>
+ *   <tr><td>pairpulse.ingest.segment.skipped</td><td>counter</td><td>attribute, reason (over_bound, invalid_value)</td>
+ *       <td>baskets whose value of a segment attribute made no segment: counted in {@code all} only</td></tr>
  * </table>
  *
  * Thread-safe: the poll loop and the engine thread both record.
@@ -58,6 +62,8 @@ public final class IngestMetrics {
   private final Map<String, Gauge> lagGauges = new ConcurrentHashMap<>();
   private final Map<String, AtomicLong> lags = new ConcurrentHashMap<>();
   private final AtomicLong stateBytes = new AtomicLong();
+  private final AtomicLong segmentEngines = new AtomicLong();
+  private final Map<String, Counter> segmentSkips = new ConcurrentHashMap<>();
   private volatile long lastCheckpointMillis;
   private final Rate recordRate;
   private final Rate basketRate;
@@ -86,6 +92,8 @@ public final class IngestMetrics {
     Gauge.builder(PREFIX + "checkpoint.age", this, m -> (m.clock.millis() - m.lastCheckpointMillis) / 1000.0)
         .baseUnit("seconds").register(registry);
     Gauge.builder(PREFIX + "state.bytes", stateBytes, AtomicLong::get).baseUnit("bytes").register(registry);
+    Gauge.builder(PREFIX + "segment.engines", segmentEngines, AtomicLong::get)
+        .description("segment engines held (besides one 'all' engine per partition)").register(registry);
     recordRate = new Rate(records);
     basketRate = new Rate(baskets);
     pairRate = new Rate(pairs);
@@ -134,6 +142,24 @@ public final class IngestMetrics {
 
   public void stateBytes(long bytes) {
     stateBytes.set(bytes);
+  }
+
+  public void segmentEngines(long count) {
+    segmentEngines.set(count);
+  }
+
+  /** A basket whose value of {@code attribute} made no segment ({@code reason}: over_bound, invalid_value). */
+  public void segmentSkipped(String attribute, String reason) {
+    segmentSkips.computeIfAbsent(attribute + " " + reason, k -> Counter.builder(PREFIX + "segment.skipped")
+        .tags(Tags.of("attribute", attribute, "reason", reason))
+        .description("baskets whose segment attribute value made no segment (counted in 'all' only)")
+        .register(registry)).increment();
+  }
+
+  /** Baskets whose value of {@code attribute} made no segment for {@code reason} so far. */
+  public double segmentSkippedCount(String attribute, String reason) {
+    Counter counter = segmentSkips.get(attribute + " " + reason);
+    return counter == null ? 0 : counter.count();
   }
 
   /** Sets the lag of one partition (registering its gauge on first use). */

@@ -6,6 +6,9 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Objects;
+import java.util.Set;
+import java.util.SortedMap;
+import java.util.TreeMap;
 import java.util.concurrent.ArrayBlockingQueue;
 import java.util.concurrent.BlockingQueue;
 import java.util.concurrent.CompletableFuture;
@@ -13,14 +16,20 @@ import java.util.concurrent.TimeUnit;
 import java.util.function.Function;
 import org.apache.kafka.common.TopicPartition;
 import org.pairpulse.ingest.metrics.IngestMetrics;
+import org.pairpulse.ingest.segment.SegmentEngines;
+import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.PairTables;
 import org.pairpulse.sketch.engine.Snapshots;
 import org.pairpulse.sketch.table.PairTable;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
 
 /**
- * The single writer of a set of per-partition {@link PairEngine}s.
+ * The single writer of a set of per-partition {@link PairEngine}s: per partition, the engine of segment
+ * {@value SegmentSettings#ALL} and, when segment attributes are configured, one per segment
+ * ({@link SegmentEngines}).
  *
  * <p>Every operation is a command executed in submission order, either on the worker's own thread
  * ({@code ownThread = true}: the poll loop decodes the next batch while this one is counted) or inline on
@@ -36,16 +45,37 @@ import org.pairpulse.sketch.table.PairTable;
  * the cause, and the ingestor stops without committing, so nothing is lost.
  */
 public final class EngineWorker implements AutoCloseable {
+  private static final Logger LOG = LoggerFactory.getLogger(EngineWorker.class);
+
+  /**
+   * The engine snapshots of one partition.
+   *
+   * @param all the snapshot of segment {@value SegmentSettings#ALL}
+   * @param segments the snapshots of the other segments by name, in name order
+   */
+  public record PartitionSnapshot(byte[] all, SortedMap<String, byte[]> segments) {}
+
   private final EngineConfig config;
+  private final SegmentSettings segmentSettings;
+  private final boolean segmented;
   private final IngestMetrics metrics;
-  private final Map<TopicPartition, PairEngine> engines = new HashMap<>(); // worker thread only
+  private final Map<TopicPartition, SegmentEngines> engines = new HashMap<>(); // worker thread only
+  private final Set<String> skipsLogged = new java.util.HashSet<>(); // worker thread only
   private final BlockingQueue<Runnable> queue;
   private final Thread thread;
   private volatile Throwable failure;
   private volatile boolean closing;
 
+  /** A worker without segment attributes: segment {@value SegmentSettings#ALL} only. */
   public EngineWorker(EngineConfig config, IngestMetrics metrics, boolean ownThread, int queueCapacity) {
+    this(config, SegmentSettings.none(), metrics, ownThread, queueCapacity);
+  }
+
+  public EngineWorker(EngineConfig config, SegmentSettings segments, IngestMetrics metrics, boolean ownThread,
+      int queueCapacity) {
     this.config = Objects.requireNonNull(config, "config");
+    this.segmentSettings = Objects.requireNonNull(segments, "segments");
+    this.segmented = segments.enabled();
     this.metrics = Objects.requireNonNull(metrics, "metrics");
     if (ownThread) {
       this.queue = new ArrayBlockingQueue<>(Math.max(1, queueCapacity));
@@ -60,6 +90,10 @@ public final class EngineWorker implements AutoCloseable {
 
   public EngineConfig config() {
     return config;
+  }
+
+  public SegmentSettings segmentSettings() {
+    return segmentSettings;
   }
 
   private void run() {
@@ -88,27 +122,69 @@ public final class EngineWorker implements AutoCloseable {
   }
 
   private void applyNow(TopicPartition partition, BasketBatch batch) {
-    PairEngine engine = engines.get(partition);
-    if (engine == null) {
-      engine = new PairEngine(config);
-      engines.put(partition, engine);
+    SegmentEngines partitionEngines = enginesOf(partition);
+    PairEngine all = partitionEngines.all();
+    long pairsBefore = all.stats().pairUpdates();
+    if (!segmented) {
+      for (int i = 0; i < batch.size(); i++) {
+        all.addBasket(batch.timeAt(i), batch.itemsAt(i));
+      }
+    } else {
+      int segmentsBefore = partitionEngines.segments().size();
+      for (int i = 0; i < batch.size(); i++) {
+        partitionEngines.addBasket(batch.timeAt(i), batch.itemsAt(i), batch.attributesAt(i));
+      }
+      if (partitionEngines.segments().size() != segmentsBefore) {
+        updateStateBytes();
+      }
+    }
+    metrics.counted(batch.size(), all.stats().pairUpdates() - pairsBefore);
+  }
+
+  private SegmentEngines enginesOf(TopicPartition partition) {
+    SegmentEngines partitionEngines = engines.get(partition);
+    if (partitionEngines == null) {
+      partitionEngines = new SegmentEngines(config, segmentSettings, this::skipped);
+      engines.put(partition, partitionEngines);
       updateStateBytes();
     }
-    long pairsBefore = engine.stats().pairUpdates();
-    for (int i = 0; i < batch.size(); i++) {
-      engine.addBasket(batch.timeAt(i), batch.itemsAt(i));
+    return partitionEngines;
+  }
+
+  private void skipped(String attribute, String value, SegmentEngines.Skip reason) {
+    metrics.segmentSkipped(attribute, reason.wireName());
+    if (skipsLogged.add(attribute + " " + reason)) {
+      if (reason == SegmentEngines.Skip.OVER_BOUND) {
+        LOG.warn("segment attribute '{}' has more than segments.max.values={} values in a partition; baskets with further"
+            + " values (first: '{}') count only in segment 'all' (metric pairpulse.ingest.segment.skipped; logged once)",
+            attribute, segmentSettings.maxValuesPerAttribute(), shorten(value));
+      } else {
+        LOG.warn("segment attribute '{}' has a value that is not a plain name ('{}'): such baskets count only in segment"
+            + " 'all' (metric pairpulse.ingest.segment.skipped; logged once)", attribute, shorten(value));
+      }
     }
-    metrics.counted(batch.size(), engine.stats().pairUpdates() - pairsBefore);
+  }
+
+  private static String shorten(String value) {
+    StringBuilder out = new StringBuilder();
+    value.codePoints().limit(40).forEach(c -> out.appendCodePoint(Character.isISOControl(c) ? '?' : c));
+    return value.length() > 40 ? out + "..." : out.toString();
   }
 
   /** Snapshots of the given partitions' engines (a fresh engine's for one that has none yet). */
-  public CompletableFuture<Map<TopicPartition, byte[]>> snapshot(Collection<TopicPartition> partitions) {
+  public CompletableFuture<Map<TopicPartition, PartitionSnapshot>> snapshot(Collection<TopicPartition> partitions) {
     List<TopicPartition> list = new ArrayList<>(partitions);
     return call(() -> {
-      Map<TopicPartition, byte[]> out = new HashMap<>();
+      Map<TopicPartition, PartitionSnapshot> out = new HashMap<>();
       for (TopicPartition tp : list) {
-        PairEngine engine = engines.get(tp);
-        out.put(tp, Snapshots.write(engine != null ? engine : new PairEngine(config)));
+        SegmentEngines partitionEngines = engines.get(tp);
+        if (partitionEngines == null) {
+          out.put(tp, new PartitionSnapshot(Snapshots.write(new PairEngine(config)), new TreeMap<>()));
+          continue;
+        }
+        SortedMap<String, byte[]> segments = new TreeMap<>();
+        partitionEngines.segments().forEach((name, engine) -> segments.put(name, Snapshots.write(engine)));
+        out.put(tp, new PartitionSnapshot(Snapshots.write(partitionEngines.all()), segments));
       }
       return out;
     });
@@ -116,12 +192,28 @@ public final class EngineWorker implements AutoCloseable {
 
   /** Replaces a partition's engine with a restored one (built on the caller's thread, handed over). */
   public CompletableFuture<Void> restore(TopicPartition partition, PairEngine engine) {
+    return restore(partition, engine, Map.of());
+  }
+
+  /**
+   * Replaces a partition's engines with restored ones (built on the caller's thread, handed over). Segments of
+   * attributes no longer configured are dropped.
+   *
+   * @throws IllegalArgumentException when an engine was written with another configuration
+   */
+  public CompletableFuture<Void> restore(TopicPartition partition, PairEngine engine, Map<String, PairEngine> segments) {
     if (!engine.config().equals(config)) {
       throw new IllegalArgumentException("checkpoint of " + partition + " was written with another engine configuration:\n  "
           + engine.config() + "\nconfigured:\n  " + config);
     }
+    SegmentEngines restored;
+    try {
+      restored = new SegmentEngines(engine, segments, segmentSettings, this::skipped);
+    } catch (IllegalArgumentException e) {
+      throw new IllegalArgumentException("checkpoint of " + partition + ": " + e.getMessage(), e);
+    }
     return call(() -> {
-      engines.put(partition, engine);
+      engines.put(partition, restored);
       updateStateBytes();
       return null;
     });
@@ -137,21 +229,45 @@ public final class EngineWorker implements AutoCloseable {
     });
   }
 
-  /** A new engine holding the merge of every partition's engine (the instance's view). */
+  /** A new engine holding the merge of every partition's {@value SegmentSettings#ALL} engine (the instance's view). */
   public CompletableFuture<PairEngine> mergedCopy() {
     return call(this::mergeNow);
   }
 
-  /** Merges the partitions' engines and builds a pair table from the merge (a refresh). */
-  public CompletableFuture<PairTable> refresh(long version, long publishedAtMillis) {
-    return call(() -> mergeNow().refresh(PairTables.Options.of(version, publishedAtMillis)));
+  /**
+   * Merges the partitions' engines per segment and builds a pair table of each (a refresh): segment
+   * {@value SegmentSettings#ALL} first, then every segment some partition holds, in name order. A segment's
+   * merge is advanced to the watermark of {@value SegmentSettings#ALL}, so that its windows end where
+   * {@value SegmentSettings#ALL}'s do even when the segment's newest basket is older.
+   */
+  public CompletableFuture<Map<String, PairTable>> refresh(long version, long publishedAtMillis) {
+    return call(() -> {
+      PairTables.Options options = PairTables.Options.of(version, publishedAtMillis);
+      Map<String, PairTable> tables = new java.util.LinkedHashMap<>();
+      PairEngine all = mergeNow();
+      tables.put(SegmentSettings.ALL, all.refresh(options));
+      if (segmented) {
+        mergeSegmentsNow().forEach((name, merged) -> {
+          if (all.watermarkMillis() != Long.MIN_VALUE) {
+            merged.advanceTo(all.watermarkMillis());
+          }
+          tables.put(name, merged.refresh(options));
+        });
+      }
+      return tables;
+    });
+  }
+
+  /** New engines holding the merge of every partition's segment engines, per segment in name order. */
+  public CompletableFuture<SortedMap<String, PairEngine>> mergedSegmentCopies() {
+    return call(this::mergeSegmentsNow);
   }
 
   /** Runs {@code reader} on a copy of one partition's engine (null if the partition has none). */
   public <T> CompletableFuture<T> read(TopicPartition partition, Function<PairEngine, T> reader) {
     return call(() -> {
-      PairEngine engine = engines.get(partition);
-      return reader.apply(engine == null ? null : engine.copy());
+      SegmentEngines partitionEngines = engines.get(partition);
+      return reader.apply(partitionEngines == null ? null : partitionEngines.all().copy());
     });
   }
 
@@ -162,18 +278,35 @@ public final class EngineWorker implements AutoCloseable {
 
   private PairEngine mergeNow() {
     PairEngine merged = new PairEngine(config);
-    engines.keySet().stream()
-        .sorted((a, b) -> a.topic().equals(b.topic()) ? Integer.compare(a.partition(), b.partition()) : a.topic().compareTo(b.topic()))
-        .forEach(tp -> merged.merge(engines.get(tp)));
+    sortedPartitions().forEach(tp -> merged.merge(engines.get(tp).all()));
     return merged;
+  }
+
+  private SortedMap<String, PairEngine> mergeSegmentsNow() {
+    SortedMap<String, PairEngine> merged = new TreeMap<>();
+    EngineConfig segmentConfig = segmentSettings.segmentEngine(config);
+    for (TopicPartition tp : sortedPartitions()) {
+      engines.get(tp).segments().forEach((name, engine) ->
+          merged.computeIfAbsent(name, n -> new PairEngine(segmentConfig)).merge(engine));
+    }
+    return merged;
+  }
+
+  private List<TopicPartition> sortedPartitions() {
+    return engines.keySet().stream()
+        .sorted((a, b) -> a.topic().equals(b.topic()) ? Integer.compare(a.partition(), b.partition()) : a.topic().compareTo(b.topic()))
+        .toList();
   }
 
   private void updateStateBytes() {
     long bytes = 0;
-    for (PairEngine engine : engines.values()) {
-      bytes += engine.stateBytes();
+    int segmentEngines = 0;
+    for (SegmentEngines partitionEngines : engines.values()) {
+      bytes += partitionEngines.stateBytes();
+      segmentEngines += partitionEngines.segments().size();
     }
     metrics.stateBytes(bytes);
+    metrics.segmentEngines(segmentEngines);
   }
 
   private interface Task<T> {

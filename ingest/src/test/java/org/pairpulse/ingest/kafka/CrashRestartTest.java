@@ -39,7 +39,8 @@ import org.pairpulse.sketch.time.EventClock;
 
 /**
  * kill -9 at a random point, restart, and the final counts equal those of one uninterrupted run: for both
- * checkpoint stores. The instance runs in a child JVM that is destroyed forcibly mid-stream (mid-transaction
+ * checkpoint stores, in segment {@code all} and in every segment {@code region=<value>} (segment attributes are
+ * configured, so each checkpoint holds several engines). The instance runs in a child JVM that is destroyed forcibly mid-stream (mid-transaction
  * or mid-file-write, wherever it happens to be); the restart runs in this JVM.
  */
 @ExtendWith(SharedBroker.class)
@@ -60,7 +61,7 @@ class CrashRestartTest {
     try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
       w.produce(producer, topic, 0, firstPart);
     }
-    Map<String, Object> props = TestIngest.props(broker, topic, store);
+    Map<String, Object> props = TestIngest.withSegments(TestIngest.props(broker, topic, store));
     props.put(IngestConfig.INSTANCE_ID, "crashy");
     props.put(IngestConfig.CHECKPOINT_DIR, dir.resolve("checkpoints").toString());
     props.put(IngestConfig.CHECKPOINT_INTERVAL_BASKETS, "150");
@@ -110,9 +111,10 @@ class CrashRestartTest {
     Map<TopicPartition, PartitionCheckpoint> crashed = state(broker, store, topic, "g-" + topic, dir.resolve("checkpoints"));
     assertEquals(3, crashed.size());
     w.assertExact(StateTopicReader.merge(Workload.engineConfig(), crashed));
+    w.assertExactSegments(StateTopicReader.mergeSegments(crashed));
 
     // one uninterrupted run over the same input, for the engine state of every partition
-    Map<String, Object> ref = TestIngest.props(broker, topic, store);
+    Map<String, Object> ref = TestIngest.withSegments(TestIngest.props(broker, topic, store));
     ref.put(IngestConfig.GROUP_ID, "ref-" + topic);
     ref.put(IngestConfig.STATE_TOPIC, topic + "-ref-state");
     ref.put(IngestConfig.DEAD_LETTER_TOPIC, topic + "-ref-dead-letters");
@@ -125,10 +127,16 @@ class CrashRestartTest {
     Map<TopicPartition, PartitionCheckpoint> reference = state(broker, store, topic, "ref-" + topic, dir.resolve("ref"));
     PairEngine referenceMerged = StateTopicReader.merge(Workload.engineConfig(), reference);
     w.assertExact(referenceMerged);
+    w.assertExactSegments(StateTopicReader.mergeSegments(reference));
     for (TopicPartition tp : reference.keySet()) {
       assertEquals(reference.get(tp).nextOffset(), crashed.get(tp).nextOffset(), "offset covered of " + tp);
       assertArrayEquals(reference.get(tp).engine(), crashed.get(tp).engine(),
           "engine state of " + tp + " after kill and restart vs one uninterrupted run (decayed horizons included)");
+      assertEquals(reference.get(tp).segments().keySet(), crashed.get(tp).segments().keySet(), "segments of " + tp);
+      for (String segment : reference.get(tp).segments().keySet()) {
+        assertArrayEquals(reference.get(tp).segments().get(segment), crashed.get(tp).segments().get(segment),
+            "engine state of segment " + segment + " of " + tp + " after kill and restart vs one uninterrupted run");
+      }
     }
     if (store.equals("kafka")) { // dead letters too are published exactly once
       Map<DeadLetterReason, Long> byReason = new EnumMap<>(DeadLetterReason.class);

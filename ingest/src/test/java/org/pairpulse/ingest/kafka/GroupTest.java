@@ -33,7 +33,10 @@ import org.pairpulse.ingest.testkit.TestIngest;
 import org.pairpulse.ingest.testkit.Workload;
 import org.pairpulse.sketch.time.EventClock;
 
-/** Several instances in one consumer group: a rebalance hand-over, and scale-out with one instance killed. */
+/**
+ * Several instances in one consumer group: a rebalance hand-over, and scale-out with one instance killed; with
+ * segment attributes, so segments move with their partitions and every segment's merged state stays exact.
+ */
 @ExtendWith(SharedBroker.class)
 class GroupTest {
 
@@ -67,7 +70,7 @@ class GroupTest {
     try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
       w.produce(producer, topic, 0, half);
     }
-    Map<String, Object> props = TestIngest.props(broker, topic, "kafka");
+    Map<String, Object> props = TestIngest.withSegments(TestIngest.props(broker, topic, "kafka"));
     try (Ingestor a = instance(props, "a")) {
       awaitAllCaughtUp(List.of(a), broker.endOffsets(topic), Duration.ofSeconds(120));
       try (Ingestor b = instance(props, "b")) {
@@ -94,6 +97,7 @@ class GroupTest {
         "g-" + topic, List.of(topic), Map.of());
     assertEquals(4, state.size());
     w.assertExact(StateTopicReader.merge(Workload.engineConfig(), state));
+    w.assertExactSegments(StateTopicReader.mergeSegments(state));
   }
 
   /** Three instances over six partitions, one killed (kill -9) mid-stream: the merged state is exact. */
@@ -106,7 +110,7 @@ class GroupTest {
     try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
       w.produce(producer, topic, 0, half);
     }
-    Map<String, Object> props = TestIngest.props(broker, topic, "kafka");
+    Map<String, Object> props = TestIngest.withSegments(TestIngest.props(broker, topic, "kafka"));
     props.put(IngestConfig.CHECKPOINT_INTERVAL_BASKETS, "100");
     props.put("kafka.consumer.max.poll.records", "10");
     Map<String, Object> childProps = new HashMap<>(props);
@@ -154,6 +158,7 @@ class GroupTest {
     assertEquals(6, state.size(), () -> "a checkpoint per partition; found " + state.keySet() + "; child log: "
         + CrashRestartTest.tail(dir.resolve("c.log")));
     w.assertExact(StateTopicReader.merge(Workload.engineConfig(), state));
+    w.assertExactSegments(StateTopicReader.mergeSegments(state));
     Map<DeadLetterReason, Long> byReason = new EnumMap<>(DeadLetterReason.class);
     for (ConsumerRecord<byte[], byte[]> r : KafkaIngestTest.readAll(broker, topic + "-dead-letters")) {
       byReason.merge(DeadLetterReason.fromWireName(new String(r.headers().lastHeader(DeadLetters.REASON).value(),

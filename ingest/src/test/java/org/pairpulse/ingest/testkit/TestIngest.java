@@ -32,6 +32,16 @@ public final class TestIngest {
     return p;
   }
 
+  /**
+   * Adds segment counting by {@link Workload#SEGMENT_ATTRIBUTE} to {@code props}: segment engines at half the
+   * tracked capacities, which still exceed the workload's distinct pairs, so that every segment count is exact.
+   */
+  public static Map<String, Object> withSegments(Map<String, Object> props) {
+    props.put(IngestConfig.SEGMENT_ATTRIBUTES, Workload.SEGMENT_ATTRIBUTE);
+    props.put(IngestConfig.SEGMENT_TRACKED_FRACTION, "0.5");
+    return props;
+  }
+
   /** Waits until the ingestor has read every partition of its input up to {@code ends}. */
   public static void awaitCaughtUp(Ingestor ingestor, Map<TopicPartition, Long> ends, Duration timeout) {
     Await.until(timeout, "ingestor " + ingestor.instanceId() + " to read up to " + ends,

@@ -33,26 +33,76 @@ import org.pairpulse.sketch.stats.Estimate;
  * (closed by an end marker, or by the inactivity gap early in the stream), re-delivered baskets, late
  * baskets and poison records of every reason. Event times advance about 2 s per basket from
  * {@code now − 4 h}, so everything fits in the test engine's 24 h window.
+ *
+ * <p>Whole baskets carry attributes about half the time: {@code region} (north, south, east) and {@code plan}
+ * (prepaid, postpaid). The oracle of each segment {@code region=<value>} ({@link #SEGMENT_ATTRIBUTE}) is a
+ * plain recount of the baskets that carry that value; baskets assembled from line items carry none.
  */
 public final class Workload {
   /** Test settings that make the answers exact (see {@link #engineConfig()}). */
   public static final long ALLOWED_LATENESS_MS = Duration.ofMinutes(10).toMillis();
   public static final long LINE_GAP_MS = Duration.ofMinutes(1).toMillis();
   public static final int MAX_BASKET_ITEMS = 20;
+  /** The attribute the tests count segments by ({@code segments.attributes}). */
+  public static final String SEGMENT_ATTRIBUTE = "region";
+  private static final String[] REGIONS = {"north", "south", "east"};
+  private static final String[] PLANS = {"prepaid", "postpaid"};
+
+  /** Exact counts of a set of baskets: N, n_a, n_ab. */
+  public static final class Counts {
+    public long baskets;
+    public final Map<String, Long> itemCounts = new TreeMap<>();
+    public final Map<String, Long> pairCounts = new TreeMap<>();
+
+    void count(List<String> items) {
+      baskets++;
+      List<String> distinct = new ArrayList<>(new LinkedHashSet<>(items));
+      for (String item : distinct) {
+        itemCounts.merge(item, 1L, Long::sum);
+      }
+      for (int a = 0; a < distinct.size(); a++) {
+        for (int b = a + 1; b < distinct.size(); b++) {
+          pairCounts.merge(pairKey(distinct.get(a), distinct.get(b)), 1L, Long::sum);
+        }
+      }
+    }
+
+    /** Checks that {@code engine} holds exactly these counts in the window horizon "day". */
+    public void assertExact(PairEngine engine, String what) {
+      assertEquals(baskets, engine.stats().baskets(), what + ": baskets counted (EngineStats) vs the recount of the input");
+      assertEquals(baskets, engine.basketCount("day"), 0.0, what + ": N of window 'day' vs the recount");
+      for (Map.Entry<String, Long> e : itemCounts.entrySet()) {
+        Estimate count = engine.itemCount(e.getKey(), "day");
+        assertTrue(count.isExact(), what + ": item " + e.getKey() + " should be counted exactly: " + count);
+        assertEquals(e.getValue(), count.value(), 0.0, what + ": n_a of " + e.getKey());
+      }
+      for (Map.Entry<String, Long> e : pairCounts.entrySet()) {
+        String[] ab = e.getKey().split("\\|");
+        Estimate count = engine.pairCount(ab[0], ab[1], "day");
+        assertTrue(count.isExact(), what + ": pair " + e.getKey() + " should be counted exactly: " + count);
+        assertEquals(e.getValue(), count.value(), 0.0, what + ": n_ab of " + e.getKey());
+      }
+    }
+  }
 
   /** One record to produce. */
   public record Rec(String key, byte[] value, List<Header> headers) {}
 
   public final List<Rec> records = new ArrayList<>();
-  public final Map<String, Long> itemCounts = new TreeMap<>();
-  public final Map<String, Long> pairCounts = new TreeMap<>();
+  /** The oracle of every basket that must be counted (segment all). */
+  private final Counts all = new Counts();
+  public final Map<String, Long> itemCounts = all.itemCounts;
+  public final Map<String, Long> pairCounts = all.pairCounts;
   public final Map<DeadLetterReason, Long> deadLetters = new EnumMap<>(DeadLetterReason.class);
   public long baskets;
   public long duplicates;
+  /** The oracle of each segment {@code region=<value>}, by segment name. */
+  public final Map<String, Counts> segments = new TreeMap<>();
 
   private final Random random;
   private final String[] catalog;
   private final List<Rec> recentBaskets = new ArrayList<>();
+  private String attributes; // of the basket being encoded, or null
 
   private Workload(long seed, int catalogSize) {
     this.random = new Random(seed);
@@ -85,7 +135,16 @@ public final class Workload {
         boolean withEnd = i > count * 0.6 || w.random.nextBoolean();
         w.lineItems(id, time, items, withEnd);
       } else {
+        String attributes = null;
+        if (w.random.nextBoolean()) {
+          String region = REGIONS[w.random.nextInt(REGIONS.length)];
+          attributes = "{\"" + SEGMENT_ATTRIBUTE + "\":\"" + region + "\",\"plan\":\"" + PLANS[w.random.nextInt(PLANS.length)]
+              + "\"}";
+          w.segments.computeIfAbsent(SEGMENT_ATTRIBUTE + "=" + region, k -> new Counts()).count(items);
+        }
+        w.attributes = attributes;
         Rec rec = pick < 0.55 ? w.plain(id, time, items) : pick < 0.8 ? w.structured(id, time, items) : w.binary(id, time, items);
+        w.attributes = null;
         w.records.add(rec);
         w.recentBaskets.add(rec);
         if (w.recentBaskets.size() > 20) {
@@ -122,16 +181,8 @@ public final class Workload {
   }
 
   private void count(List<String> items) {
-    baskets++;
-    List<String> distinct = new ArrayList<>(new LinkedHashSet<>(items));
-    for (String item : distinct) {
-      itemCounts.merge(item, 1L, Long::sum);
-    }
-    for (int a = 0; a < distinct.size(); a++) {
-      for (int b = a + 1; b < distinct.size(); b++) {
-        pairCounts.merge(pairKey(distinct.get(a), distinct.get(b)), 1L, Long::sum);
-      }
-    }
+    all.count(items);
+    baskets = all.baskets;
   }
 
   static String pairKey(String a, String b) {
@@ -161,8 +212,11 @@ public final class Workload {
       out.append(",\"time\":").append(random.nextBoolean() ? time.toString() : "\"" + Instant.ofEpochMilli(time) + "\"");
     }
     out.append(",\"items\":").append(itemsJson(items, random));
-    if (random.nextInt(5) == 0) {
-      out.append(",\"attributes\":{\"segment\":\"prepaid\",\"region\":\"north\"},\"channel\":{\"app\":[1,2.5e3,true,null]}");
+    if (attributes != null) {
+      out.append(",\"attributes\":").append(attributes);
+      if (random.nextInt(3) == 0) {
+        out.append(",\"channel\":{\"app\":[1,2.5e3,true,null]}"); // an unknown field, skipped
+      }
     }
     return out.append('}').toString();
   }
@@ -263,21 +317,18 @@ public final class Workload {
     return deadLetters.values().stream().mapToLong(Long::longValue).sum();
   }
 
+  /**
+   * Checks that {@code engines} (the merged segment engines, by name) hold exactly the oracle's counts of every
+   * segment {@code region=<value>}, and no other segment.
+   */
+  public void assertExactSegments(Map<String, PairEngine> engines) {
+    assertEquals(segments.keySet(), engines.keySet(), "segments counted vs the regions of the input");
+    segments.forEach((name, counts) -> counts.assertExact(engines.get(name), "segment " + name));
+  }
+
   /** Checks that {@code engine} holds exactly the oracle's counts in the window horizon "day". */
   public void assertExact(PairEngine engine) {
-    assertEquals(baskets, engine.stats().baskets(), "baskets counted (EngineStats) vs the recount of the input");
-    assertEquals(baskets, engine.basketCount("day"), 0.0, "N of window 'day' vs the recount");
-    for (Map.Entry<String, Long> e : itemCounts.entrySet()) {
-      Estimate count = engine.itemCount(e.getKey(), "day");
-      assertTrue(count.isExact(), "item " + e.getKey() + " should be counted exactly: " + count);
-      assertEquals(e.getValue(), count.value(), 0.0, "n_a of " + e.getKey());
-    }
-    for (Map.Entry<String, Long> e : pairCounts.entrySet()) {
-      String[] ab = e.getKey().split("\\|");
-      Estimate count = engine.pairCount(ab[0], ab[1], "day");
-      assertTrue(count.isExact(), "pair " + e.getKey() + " should be counted exactly: " + count);
-      assertEquals(e.getValue(), count.value(), 0.0, "n_ab of " + e.getKey());
-    }
+    all.assertExact(engine, "all");
   }
 
   /** Items of the catalog that occur in the oracle. */

@@ -8,6 +8,7 @@ import java.util.concurrent.Callable;
 import org.pairpulse.ingest.file.ProgressDisplay;
 import org.pairpulse.ops.evaluation.EvaluationSettings;
 import org.pairpulse.ops.scenario.ScenarioGroundTruth;
+import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.sketch.stats.Measure;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
@@ -73,6 +74,11 @@ public final class BacktestCommand implements Callable<Integer> {
           + " (default: shrunk_lift).")
   String evalMeasure;
 
+  @Option(names = "--eval-ranking", paramLabel = "NAME",
+      description = "Ranking of the evaluation's suggestions: posterior (ln support + Σ ln lift, the naive-Bayes"
+          + " log-posterior) or association (Σ ln lift) (default: posterior).")
+  String evalRanking;
+
   @Option(names = "--seed", paramLabel = "N", description = "Seed of the evaluation's sampling (default: 1).")
   Long seed;
 
@@ -85,7 +91,7 @@ public final class BacktestCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     BacktestSettings settings = settings(spec, config, refreshEvery, summaryEvery, summaryTop, evalShare, evalK,
-        evalHorizon, evalMeasure, seed, floor);
+        evalHorizon, evalMeasure, evalRanking, seed, floor);
     if (!Files.isRegularFile(input)) {
       throw new ParameterException(spec.commandLine(), "--input: no such file: " + input);
     }
@@ -102,7 +108,8 @@ public final class BacktestCommand implements Callable<Integer> {
 
   /** The settings from a file and options (null options keep the file's or the default value). */
   static BacktestSettings settings(CommandSpec spec, Path config, Duration refreshEvery, Duration summaryEvery,
-      Integer summaryTop, Double evalShare, Integer evalK, String evalHorizon, String evalMeasure, Long seed, Double floor)
+      Integer summaryTop, Double evalShare, Integer evalK, String evalHorizon, String evalMeasure,
+      String evalRanking, Long seed, Double floor)
       throws java.io.IOException {
     try {
       BacktestSettings settings = BacktestSettings.defaults();
@@ -110,7 +117,11 @@ public final class BacktestCommand implements Callable<Integer> {
         if (!Files.isRegularFile(config)) {
           throw new ParameterException(spec.commandLine(), "--config: no such file: " + config);
         }
-        settings = SettingsFile.read(config, settings);
+        PrintWriter err = spec.commandLine().getErr();
+        settings = SettingsFile.read(config, settings, note -> {
+          err.println("backtest: " + config + ": " + note);
+          err.flush();
+        });
       }
       if (refreshEvery != null) {
         settings = settings.withRefreshEveryMillis(refreshEvery.toMillis());
@@ -136,6 +147,9 @@ public final class BacktestCommand implements Callable<Integer> {
       }
       if (evalMeasure != null) {
         evaluation = evaluation.withMeasure(Measure.fromWireName(evalMeasure));
+      }
+      if (evalRanking != null) {
+        evaluation = evaluation.withRanking(SuggestionRanking.fromWireName(evalRanking));
       }
       if (seed != null) {
         evaluation = evaluation.withSeed(seed);

@@ -144,6 +144,7 @@ public final class BacktestJson {
       number(json, "minConfidence", evaluation.minConfidence());
       number(json, "maxConfidence", evaluation.maxConfidence());
       json.writeBooleanField("includeBundles", evaluation.includeBundles());
+      json.writeStringField("ranking", evaluation.ranking().wireName());
       json.writeEndObject();
     }
     json.writeEndObject();
@@ -268,6 +269,25 @@ public final class BacktestJson {
       }
       json.writeEndObject();
     }
+    if (detection != null && !detection.events().isEmpty()) {
+      List<long[]> windows = BacktestRun.daysAfterChanges(detection);
+      json.writeObjectFieldStart("daysAfterChanges");
+      json.writeArrayFieldStart("windows");
+      for (long[] w : windows) {
+        json.writeStartObject();
+        time(json, "from", w[0]);
+        time(json, "to", w[1]);
+        json.writeEndObject();
+      }
+      json.writeEndArray();
+      json.writeFieldName("methods");
+      writeTallies(json, evaluator, t -> BacktestRun.inWindows(windows, t), false);
+      if (evaluator.hasFocus()) {
+        json.writeFieldName("plantedPairTrials");
+        writeTallies(json, evaluator, t -> BacktestRun.inWindows(windows, t), true);
+      }
+      json.writeEndObject();
+    }
     json.writeArrayFieldStart("days");
     for (long day : evaluator.days()) {
       json.writeStartObject();
@@ -283,9 +303,14 @@ public final class BacktestJson {
 
   private static void writeTallies(JsonGenerator json, Evaluator evaluator, long from, long to, boolean focus)
       throws IOException {
+    writeTallies(json, evaluator, t -> t >= from && t < to, focus);
+  }
+
+  private static void writeTallies(JsonGenerator json, Evaluator evaluator, java.util.function.LongPredicate when,
+      boolean focus) throws IOException {
     json.writeStartObject();
     for (EvaluationMethod method : EvaluationMethod.values()) {
-      Tally tally = evaluator.tally(method, from, to, focus);
+      Tally tally = evaluator.tally(method, when, focus);
       json.writeObjectFieldStart(method.wireName());
       json.writeNumberField("trials", tally.trials());
       json.writeObjectFieldStart("hitAt");

@@ -8,7 +8,9 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Instant;
+import java.util.ArrayList;
 import java.util.HashSet;
+import java.util.List;
 import java.util.Locale;
 import java.util.Set;
 import org.pairpulse.ingest.file.FileSource;
@@ -77,6 +79,47 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
     long from = detection != null && detection.firstChangeMillis().isPresent()
         ? detection.firstChangeMillis().getAsLong() : Long.MIN_VALUE;
     return result.evaluation().tallies(from, Long.MAX_VALUE);
+  }
+
+  /**
+   * The period the shift benchmark scores hit rates over, "the days after a planted shift": for each planted
+   * emerging or fading change inside the replay, the simulated day (24 h) that follows it, [change, change + 24 h),
+   * united. This is where a nightly rebuild can lag the change; outside it both tables have seen the same regime
+   * for a day. Empty without a ground truth or without a change inside the replay.
+   */
+  public List<long[]> daysAfterChanges() {
+    return daysAfterChanges(detection);
+  }
+
+  /** {@link #daysAfterChanges()} of a detection score (null: none). */
+  public static List<long[]> daysAfterChanges(Detection detection) {
+    List<long[]> windows = new ArrayList<>();
+    if (detection != null) {
+      for (Detection.PlantedEvent event : detection.events()) {
+        windows.add(new long[] {event.changeMillis(), event.changeMillis() + BacktestSettings.DAY_MILLIS});
+      }
+    }
+    windows.sort(java.util.Comparator.comparingLong(w -> w[0]));
+    return windows;
+  }
+
+  /** Whether an event time lies in one of {@code windows} ([from, to) each). */
+  public static boolean inWindows(List<long[]> windows, long eventMillis) {
+    for (long[] w : windows) {
+      if (eventMillis >= w[0] && eventMillis < w[1]) {
+        return true;
+      }
+    }
+    return false;
+  }
+
+  /**
+   * The tallies over {@link #daysAfterChanges()} ({@code focusOnly}: the planted-pair trials among them); over every
+   * trial when no planted change lies inside the replay (as {@link #afterFirstChange()}).
+   */
+  public java.util.Map<EvaluationMethod, Tally> daysAfterChangesTallies(boolean focusOnly) {
+    List<long[]> windows = daysAfterChanges();
+    return result.evaluation().tallies(t -> windows.isEmpty() || inWindows(windows, t), focusOnly);
   }
 
   /** A short summary for people. */

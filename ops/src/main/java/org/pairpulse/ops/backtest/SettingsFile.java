@@ -5,17 +5,23 @@ import java.io.Reader;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.time.Duration;
+import java.util.ArrayList;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Properties;
 import java.util.TreeMap;
+import java.util.function.Consumer;
 import org.apache.kafka.common.config.ConfigException;
 import org.pairpulse.ingest.event.EventLimits;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ops.evaluation.EvaluationSettings;
+import org.pairpulse.ops.run.RunConfig;
 import org.pairpulse.serve.ServeConfig;
+import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.sketch.engine.EngineConfig;
+import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Measure;
 
 /**
@@ -31,12 +37,17 @@ import org.pairpulse.sketch.stats.Measure;
  *   <li>engine keys: {@code engine.trackedPairCapacity}, {@code engine.trackedItemCapacity},
  *       {@code engine.pairEpsilon}, {@code engine.pairDelta}, {@code engine.itemEpsilon}, {@code engine.itemDelta},
  *       {@code engine.decayPairEpsilon}, {@code engine.maxPairsPerBasket}, {@code engine.trackingHalfLifeMillis},
- *       {@code engine.seed};</li>
+ *       {@code engine.seed}, and the run configuration's horizon keys {@code horizon.recent.halfLifeMillis},
+ *       {@code horizon.day.lengthMillis}, {@code horizon.day.panes}, {@code horizon.baseline.lengthMillis},
+ *       {@code horizon.baseline.panes} (applied to the engine's horizons of those names, as {@link RunConfig} does);</li>
  *   <li>backtest keys: {@code backtest.refreshEveryMillis}, {@code backtest.summaryEveryMillis},
  *       {@code backtest.summaryTop}, {@code evaluation.share}, {@code evaluation.seed}, {@code evaluation.k},
  *       {@code evaluation.horizon}, {@code evaluation.measure}, {@code evaluation.minConfidence},
- *       {@code evaluation.maxConfidence}, {@code evaluation.includeBundles} (see {@link BacktestSettings} and
- *       {@link EvaluationSettings}).</li>
+ *       {@code evaluation.maxConfidence}, {@code evaluation.includeBundles}, {@code evaluation.ranking} (see
+ *       {@link BacktestSettings} and {@link EvaluationSettings});</li>
+ *   <li>keys only a running pipeline uses ({@link RunConfig}'s run part, such as
+ *       {@code run.sketchHealthIntervalMillis}): ignored, each with a note, so that the file of
+ *       {@code pairpulse run --config} serves a backtest as it is.</li>
  * </ul>
  * Any other key is an error that names it. Command-line options override the file.
  */
@@ -46,12 +57,29 @@ public final class SettingsFile {
       "engine.maxPairsPerBasket", "engine.trackingHalfLifeMillis", "engine.seed");
   private static final List<String> BACKTEST_KEYS = List.of("backtest.refreshEveryMillis", "backtest.summaryEveryMillis",
       "backtest.summaryTop", "evaluation.share", "evaluation.seed", "evaluation.k", "evaluation.horizon",
-      "evaluation.measure", "evaluation.minConfidence", "evaluation.maxConfidence", "evaluation.includeBundles");
+      "evaluation.measure", "evaluation.minConfidence", "evaluation.maxConfidence", "evaluation.includeBundles",
+      "evaluation.ranking");
+
+  /** Keys of the run configuration ({@link RunConfig.Part#RUN}) that only a running pipeline uses. */
+  static final List<String> RUN_ONLY_KEYS = RunConfig.definitions().stream()
+      .filter(k -> k.part() == RunConfig.Part.RUN).map(RunConfig.Key::name).toList();
 
   private SettingsFile() {}
 
-  /** Reads {@code file} over {@code base}. */
+  /** The run configuration's horizon keys, applied to the engine's horizons of the same names. */
+  static final List<String> HORIZON_KEYS = List.of("horizon.recent.halfLifeMillis", "horizon.day.lengthMillis",
+      "horizon.day.panes", "horizon.baseline.lengthMillis", "horizon.baseline.panes");
+
+  /** Reads {@code file} over {@code base}; keys of the run configuration that a backtest does not use are ignored. */
   public static BacktestSettings read(Path file, BacktestSettings base) throws IOException {
+    return read(file, base, note -> {});
+  }
+
+  /**
+   * Reads {@code file} over {@code base}; {@code notes} receives one line per key that is ignored because only
+   * {@code pairpulse run} uses it ({@link RunConfig}'s run keys such as {@code run.sketchHealthIntervalMillis}).
+   */
+  public static BacktestSettings read(Path file, BacktestSettings base, Consumer<String> notes) throws IOException {
     Properties properties = new Properties();
     try (Reader reader = Files.newBufferedReader(file, StandardCharsets.UTF_8)) {
       properties.load(reader);
@@ -61,14 +89,19 @@ public final class SettingsFile {
       values.put(name, properties.getProperty(name).trim());
     }
     try {
-      return apply(values, base);
+      return apply(values, base, notes);
     } catch (IllegalArgumentException | ConfigException e) {
       throw new IllegalArgumentException(file + ": " + e.getMessage(), e);
     }
   }
 
-  /** Applies {@code values} (key to text) over {@code base}. */
+  /** Applies {@code values} (key to text) over {@code base}; run-only keys are ignored silently. */
   public static BacktestSettings apply(Map<String, String> values, BacktestSettings base) {
+    return apply(values, base, note -> {});
+  }
+
+  /** Applies {@code values} (key to text) over {@code base}; {@code notes} hears of each run-only key ignored. */
+  public static BacktestSettings apply(Map<String, String> values, BacktestSettings base, Consumer<String> notes) {
     Map<String, String> serve = new LinkedHashMap<>();
     Map<String, Object> ingest = new LinkedHashMap<>();
     for (Map.Entry<String, String> entry : values.entrySet()) {
@@ -77,10 +110,16 @@ public final class SettingsFile {
         serve.put(key, entry.getValue());
       } else if (IngestConfig.DEFINITION.names().contains(key)) {
         ingest.put(key, entry.getValue());
-      } else if (!(key.startsWith("serve.") || key.startsWith("alerts.") || key.startsWith(IngestConfig.KAFKA_PREFIX)
-          || ENGINE_KEYS.contains(key) || BACKTEST_KEYS.contains(key))) {
+      } else if (key.startsWith("serve.") || key.startsWith("alerts.") || key.startsWith(IngestConfig.KAFKA_PREFIX)
+          || ENGINE_KEYS.contains(key) || BACKTEST_KEYS.contains(key) || HORIZON_KEYS.contains(key)) {
+        continue; // serve's and Kafka's keys are ignored; the others are read below
+      } else if (RUN_ONLY_KEYS.contains(key)) {
+        notes.accept("ignoring '" + key + "': only 'pairpulse run' uses it");
+      } else {
         throw new IllegalArgumentException("unknown setting '" + key + "' (known: drift.*, serve.cohortFloor, ingest's"
-            + " front and limit keys, " + String.join(", ", ENGINE_KEYS) + ", " + String.join(", ", BACKTEST_KEYS) + ")");
+            + " front and limit keys, " + String.join(", ", ENGINE_KEYS) + ", " + String.join(", ", HORIZON_KEYS) + ", "
+            + String.join(", ", BACKTEST_KEYS) + "; ignored: serve.*, alerts.*, kafka.*, "
+            + String.join(", ", RUN_ONLY_KEYS) + ")");
       }
     }
     BacktestSettings settings = base;
@@ -116,6 +155,7 @@ public final class SettingsFile {
     engine.maxPairsPerBasket(intOf(values, "engine.maxPairsPerBasket", current.maxPairsPerBasket()));
     engine.trackingHalfLifeMillis(longOf(values, "engine.trackingHalfLifeMillis", current.trackingHalfLifeMillis()));
     engine.seed(longOf(values, "engine.seed", current.seed()));
+    engine.horizons(horizons(values, current.horizons()));
     settings = settings.withEngine(engine.build());
     settings = settings.withRefreshEveryMillis(longOf(values, "backtest.refreshEveryMillis", settings.refreshEveryMillis()))
         .withSummaryEveryMillis(longOf(values, "backtest.summaryEveryMillis", settings.summaryEveryMillis()))
@@ -129,8 +169,35 @@ public final class SettingsFile {
         doubleOf(values, "evaluation.minConfidence", evaluation.minConfidence()),
         doubleOf(values, "evaluation.maxConfidence", evaluation.maxConfidence()),
         values.containsKey("evaluation.includeBundles") ? booleanOf(values, "evaluation.includeBundles")
-            : evaluation.includeBundles());
+            : evaluation.includeBundles(),
+        values.containsKey("evaluation.ranking") ? SuggestionRanking.fromWireName(values.get("evaluation.ranking"))
+            : evaluation.ranking());
     return settings.withEvaluation(evaluation);
+  }
+
+  /** The engine's horizons with the run configuration's horizon keys applied (by horizon name, as {@link RunConfig}). */
+  private static List<HorizonSpec> horizons(Map<String, String> values, List<HorizonSpec> current) {
+    List<HorizonSpec> out = new ArrayList<>(current.size());
+    for (String key : HORIZON_KEYS) {
+      if (values.containsKey(key)) {
+        String name = key.substring("horizon.".length(), key.lastIndexOf('.'));
+        if (current.stream().noneMatch(h -> h.name().equals(name))) {
+          throw new IllegalArgumentException(key + ": the engine has no horizon '" + name + "'");
+        }
+      }
+    }
+    for (HorizonSpec h : current) {
+      String prefix = "horizon." + h.name() + ".";
+      if (h.isWindow()) {
+        long length = longOf(values, prefix + "lengthMillis", h.lengthMillis());
+        int panes = intOf(values, prefix + "panes", h.paneCount());
+        out.add(new HorizonSpec(h.name(), h.kind(), length, panes, 0));
+      } else {
+        out.add(HorizonSpec.decay(h.name(), Duration.ofMillis(longOf(values, prefix + "halfLifeMillis",
+            h.halfLifeMillis()))));
+      }
+    }
+    return out;
   }
 
   private static int intOf(Map<String, String> values, String key, int fallback) {

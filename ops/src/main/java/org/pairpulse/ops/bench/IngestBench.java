@@ -51,6 +51,8 @@ import picocli.CommandLine.Option;
  *       default {@link EngineConfig}) until every basket is counted. Checkpoints and refreshes are off here
  *       ({@code checkpoint.store=none}, {@code refresh.interval.ms=0}); the cost of one checkpoint of the
  *       final state is printed separately;</li>
+ *   <li>where the time goes, without Kafka on one thread: decode, front and engine per basket
+ *       ({@code --stage-baskets});</li>
  *   <li>a stream {@code --long-factor} times longer through decode, front and engines (no Kafka), to show
  *       the state's bytes before and after; bounded by {@code --long-seconds}.</li>
  * </ol>
@@ -81,6 +83,10 @@ public final class IngestBench implements Callable<Integer> {
 
   @Option(names = "--long-seconds", defaultValue = "150", description = "time bound of the long stream (default ${DEFAULT-VALUE})")
   long longSeconds;
+
+  @Option(names = "--stage-baskets", defaultValue = "500000",
+      description = "baskets of the per-stage breakdown without Kafka (default ${DEFAULT-VALUE})")
+  long stageBaskets;
 
   @Option(names = "--seed", defaultValue = "20261202", description = "workload seed")
   long seed;
@@ -140,6 +146,7 @@ public final class IngestBench implements Callable<Integer> {
         say("one snapshot of the merged state: %,d bytes in %.0f ms; pairs counted %,d, tracked %,d",
             snapshot.length, (System.nanoTime() - snapStart) / 1e6, view.stats().pairUpdates(), view.stats().trackedPairs());
       }
+      stages(System.currentTimeMillis() - 2 * DAY);
       if (longFactor > 0) {
         longStream(System.currentTimeMillis() - (longFactor + 1L) * DAY);
       }
@@ -221,6 +228,54 @@ public final class IngestBench implements Callable<Integer> {
     double elapsed = (System.nanoTime() - begin) / 1e9;
     say("  %s: %,d records in %.2f s (checksum %d)", decode ? "decode" : "bare", records, elapsed, items);
     return records / elapsed;
+  }
+
+  /**
+   * Where a basket's time goes, without Kafka, one thread: the same records decoded only, then decoded and
+   * passed through the partition fronts (checks, dedupe, watermark), then also counted by the engines. Each
+   * stage's cost is the difference of two passes, in microseconds per basket; the slowest stage bounds the
+   * full path (the consumer thread decodes and runs the fronts, the engine thread counts).
+   */
+  private void stages(long t0) throws InvalidEventException {
+    int n = (int) Math.min(baskets, stageBaskets);
+    IngestWorkload workload = new IngestWorkload(catalog, zipf, meanItems, t0, DAY, n, seed + 2);
+    byte[][] values = new byte[n][];
+    for (int i = 0; i < n; i++) {
+      workload.nextId();
+      values[i] = workload.nextValue();
+    }
+    EventDecoder decoder = new EventDecoder(EventLimits.defaults());
+    double[] micros = new double[3];
+    for (int pass = 0; pass < 3; pass++) {
+      PairEngine[] engines = new PairEngine[partitions];
+      PartitionFront[] fronts = new PartitionFront[partitions];
+      for (int p = 0; p < partitions; p++) {
+        engines[p] = pass == 2 ? new PairEngine(EngineConfig.defaults()) : null;
+        fronts[p] = new PartitionFront(FrontSettings.defaults());
+      }
+      long[] counted = new long[1];
+      long begin = System.nanoTime();
+      for (int i = 0; i < n; i++) {
+        BasketEvent event = decoder.decode(values[i], null);
+        int p = i % partitions;
+        if (pass == 0) {
+          counted[0] += ((org.pairpulse.ingest.event.Basket) event).items().size();
+          continue;
+        }
+        PairEngine engine = engines[p];
+        fronts[p].accept(event, (id, t, items) -> {
+          if (engine != null) {
+            engine.addBasket(t, items);
+          }
+          counted[0]++;
+        });
+      }
+      micros[pass] = (System.nanoTime() - begin) / 1e3 / n;
+      say("  stage pass %d (%s): %.2f us per basket (checksum %d)", pass + 1,
+          new String[] {"decode", "decode + front", "decode + front + engine"}[pass], micros[pass], counted[0]);
+    }
+    say("per basket, one thread, no Kafka: decode %.2f us, front %.2f us, engine %.2f us (engine alone %,.0f baskets/s)",
+        micros[0], micros[1] - micros[0], micros[2] - micros[1], 1e6 / Math.max(1e-9, micros[2] - micros[1]));
   }
 
   /** A stream longFactor times longer through decode, front and engine (no Kafka): state bytes before and after. */

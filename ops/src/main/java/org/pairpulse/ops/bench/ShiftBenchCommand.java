@@ -44,8 +44,9 @@ import picocli.CommandLine.Spec;
  * </pre>
  * (one line). m counts the planted emerging and fading changes inside the run; the delay is from the planted change
  * to the alert, in simulated minutes (median over the detected ones, {@code NA} when none); false alerts follow
- * {@link Detection}; the hit rates are over the evaluated baskets from the first planted change (day 3, 19:00) to the
- * end. Run: {@code ops/pairpulse bench shift}; about 3 minutes of CPU with the defaults (7 minutes of wall clock on
+ * {@link Detection}; the hit rates are over the evaluated baskets of the simulated day after each planted change
+ * ({@link BacktestRun#daysAfterChanges()}: day 3 19:00 to day 4 19:00 and day 5 00:00 to day 6 00:00 with the
+ * defaults). Run: {@code ops/pairpulse bench shift}; about 3 minutes of CPU with the defaults (7 minutes of wall clock on
  * the shared, loaded 2-core machine where it was measured).
  */
 @Command(name = "shift", mixinStandardHelpOptions = true, sortOptions = false, usageHelpAutoWidth = true,
@@ -55,7 +56,7 @@ import picocli.CommandLine.Spec;
             + " the most popular items. Prints progress, then one line:",
         "RESULT shift detected=<k>/<m> delay_sim_minutes_median=<n> false_alerts_per_sim_day=<x> hit_at_10=<x>"
             + " hit_at_10_nightly=<x> hit_at_10_popular=<x>",
-        "Hit rates are over the baskets from the first planted change (day 3, 19:00) to the end."},
+        "Hit rates are over the baskets of the simulated day (24 h) after each planted change."},
     exitCodeListHeading = "%nExit codes:%n",
     exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
 public final class ShiftBenchCommand implements Callable<Integer> {
@@ -124,6 +125,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
         out.println("  written: " + run.writeJson(directory));
       }
       run.printSummary(out);
+      printDaysAfterChanges(out, run);
       out.printf(Locale.ROOT, "  %.1f s in all%n", seconds(started));
       out.println(resultLine(run));
       out.flush();
@@ -142,7 +144,11 @@ public final class ShiftBenchCommand implements Callable<Integer> {
         if (!Files.isRegularFile(config)) {
           throw new IllegalArgumentException("--config: no such file: " + config);
         }
-        settings = SettingsFile.read(config, settings);
+        PrintWriter err = spec.commandLine().getErr();
+        settings = SettingsFile.read(config, settings, note -> {
+          err.println("bench shift: " + config + ": " + note);
+          err.flush();
+        });
       }
       settings = settings.withRefreshEveryMillis(refreshEvery.toMillis());
       EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
@@ -166,7 +172,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     if (run.result().evaluation() == null) {
       hits = " hit_at_10=NA hit_at_10_nightly=NA hit_at_10_popular=NA";
     } else {
-      Map<EvaluationMethod, Tally> after = run.afterFirstChange();
+      Map<EvaluationMethod, Tally> after = run.daysAfterChangesTallies(false);
       hits = String.format(Locale.ROOT, " hit_at_10=%s hit_at_10_nightly=%s hit_at_10_popular=%s",
           rate(after.get(EvaluationMethod.INCREMENTAL)), rate(after.get(EvaluationMethod.NIGHTLY)),
           rate(after.get(EvaluationMethod.POPULAR)));
@@ -175,6 +181,26 @@ public final class ShiftBenchCommand implements Callable<Integer> {
         + " false_alerts_per_sim_day=%s%s", detection.detected(), detection.events().size(), delay,
         Double.isNaN(detection.falseAlertsPerSimulatedDay()) ? "NA"
             : String.format(Locale.ROOT, "%.3f", detection.falseAlertsPerSimulatedDay()), hits);
+  }
+
+  /** The hit rates of the RESULT line, with their period and the planted-pair trials among them. */
+  private static void printDaysAfterChanges(PrintWriter out, BacktestRun run) {
+    if (run.result().evaluation() == null || run.daysAfterChanges().isEmpty()) {
+      return;
+    }
+    StringBuilder period = new StringBuilder();
+    for (long[] w : run.daysAfterChanges()) {
+      period.append(period.length() == 0 ? "" : ", ").append(Instant.ofEpochMilli(w[0])).append(" .. ")
+          .append(Instant.ofEpochMilli(w[1]));
+    }
+    out.println("  hit@10 over the day after each planted change (" + period + "):");
+    Map<EvaluationMethod, Tally> all = run.daysAfterChangesTallies(false);
+    Map<EvaluationMethod, Tally> focus = run.daysAfterChangesTallies(true);
+    for (EvaluationMethod method : EvaluationMethod.values()) {
+      out.printf(Locale.ROOT, "    %-11s %s over %,d trials; %s over the %,d whose hidden item forms a planted pair%n",
+          method.wireName(), rate(all.get(method)), all.get(method).trials(), rate(focus.get(method)),
+          focus.get(method).trials());
+    }
   }
 
   private static String rate(Tally tally) {

@@ -15,6 +15,7 @@ import java.util.concurrent.TimeUnit;
 import org.apache.kafka.common.config.TopicConfig;
 import org.pairpulse.ingest.broker.EmbeddedKafkaBroker;
 import org.pairpulse.ingest.kafka.IngestConfig;
+import org.pairpulse.ops.evaluation.EvaluationSettings;
 import org.pairpulse.ops.pipeline.Pipeline;
 import org.pairpulse.ops.scenario.PlantedKind;
 import org.pairpulse.ops.scenario.PlantedPair;
@@ -187,8 +188,11 @@ public final class Demo implements AutoCloseable {
     Map<String, String> serve = new HashMap<>();
     serve.put(ServeConfig.HOST, settings.host());
     serve.put(ServeConfig.PORT, Integer.toString(settings.port()));
-    return new Pipeline.Settings(ingest, DemoSettings.engine(), ServeConfig.from(serve), ALERTS_TOPIC, false, List.of(),
-        2_000);
+    // one coarse segment attribute (app, web, store): the dashboard's segment picker and the API's ?segment=
+    return new Pipeline.Settings(ingest, DemoSettings.engine(), ServeConfig.from(serve), ALERTS_TOPIC, false,
+        List.of(DemoSettings.SEGMENT_ATTRIBUTE),
+        2_000)
+        .withEvaluation(EvaluationSettings.defaults()); // the dashboard's evaluation tile: 10 % of the baskets
   }
 
   public DemoSettings settings() {

@@ -169,6 +169,9 @@ public record DemoSettings(long seed, double speed, long durationSimMillis, Stri
    * The demo's engine: the demo horizons, 4,096 tracked items (the catalog has about 2,000), the other
    * settings at their defaults (pair ε 0.001, 16,384 tracked pairs).
    */
+  /** The basket attribute the demo counts segments by: the sales channel (app, web, store). */
+  public static final String SEGMENT_ATTRIBUTE = "channel";
+
   public static EngineConfig engine() {
     return EngineConfig.builder().horizons(horizons()).trackedItemCapacity(4096).build();
   }

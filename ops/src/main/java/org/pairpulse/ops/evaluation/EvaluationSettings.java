@@ -1,6 +1,7 @@
 package org.pairpulse.ops.evaluation;
 
 import java.util.Objects;
+import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.serve.suggest.SuggestionRequest;
 import org.pairpulse.sketch.stats.Measure;
 
@@ -20,6 +21,7 @@ import org.pairpulse.sketch.stats.Measure;
  *       evaluation asks how well the table predicts the hidden item; the 0.30–0.60 band is a promotion rule</td></tr>
  *   <tr><td>includeBundles</td><td>true</td><td>bundle pairs may predict (a hidden case is predicted by its
  *       handset)</td></tr>
+ *   <tr><td>ranking</td><td>posterior</td><td>the suggester's ranking (serve's {@code ranking} option)</td></tr>
  * </table>
  *
  * @param share the share of baskets evaluated, in [0, 1]
@@ -30,17 +32,21 @@ import org.pairpulse.sketch.stats.Measure;
  * @param minConfidence lower end of the confidence band
  * @param maxConfidence upper end of the confidence band
  * @param includeBundles whether bundle pairs may produce suggestions
+ * @param ranking how the suggester orders candidates ({@code association} or {@code posterior})
  */
 public record EvaluationSettings(double share, long seed, int k, String horizon, Measure measure, double minConfidence,
-    double maxConfidence, boolean includeBundles) {
+    double maxConfidence, boolean includeBundles, SuggestionRanking ranking) {
 
   public static final double DEFAULT_SHARE = 0.10;
   public static final int DEFAULT_K = 10;
   public static final int MAX_K = 100;
+  /** The evaluation's default ranking (see README-ops-analysis for the measurement behind it). */
+  public static final SuggestionRanking DEFAULT_RANKING = SuggestionRanking.POSTERIOR;
 
   public EvaluationSettings {
     Objects.requireNonNull(horizon, "horizon");
     Objects.requireNonNull(measure, "measure");
+    Objects.requireNonNull(ranking, "ranking");
     if (!(share >= 0 && share <= 1)) {
       throw new IllegalArgumentException("evaluation share must be in [0, 1], got " + share);
     }
@@ -48,41 +54,46 @@ public record EvaluationSettings(double share, long seed, int k, String horizon,
       throw new IllegalArgumentException("evaluation k must be in 1.." + MAX_K + ", got " + k);
     }
     // the request checks the band
-    new SuggestionRequest(java.util.List.of("x"), horizon, measure, k, minConfidence, maxConfidence, 0, includeBundles);
+    new SuggestionRequest(java.util.List.of("x"), horizon, measure, k, minConfidence, maxConfidence, 0, includeBundles,
+        ranking);
   }
 
   /** The defaults of the table above. */
   public static EvaluationSettings defaults() {
     return new EvaluationSettings(DEFAULT_SHARE, 1, DEFAULT_K, SuggestionRequest.DEFAULT_HORIZON, Measure.SHRUNK_LIFT,
-        0.0, 1.0, true);
+        0.0, 1.0, true, DEFAULT_RANKING);
   }
 
   public EvaluationSettings withShare(double value) {
-    return new EvaluationSettings(value, seed, k, horizon, measure, minConfidence, maxConfidence, includeBundles);
+    return new EvaluationSettings(value, seed, k, horizon, measure, minConfidence, maxConfidence, includeBundles, ranking);
   }
 
   public EvaluationSettings withSeed(long value) {
-    return new EvaluationSettings(share, value, k, horizon, measure, minConfidence, maxConfidence, includeBundles);
+    return new EvaluationSettings(share, value, k, horizon, measure, minConfidence, maxConfidence, includeBundles, ranking);
   }
 
   public EvaluationSettings withK(int value) {
-    return new EvaluationSettings(share, seed, value, horizon, measure, minConfidence, maxConfidence, includeBundles);
+    return new EvaluationSettings(share, seed, value, horizon, measure, minConfidence, maxConfidence, includeBundles, ranking);
   }
 
   public EvaluationSettings withHorizon(String value) {
-    return new EvaluationSettings(share, seed, k, value, measure, minConfidence, maxConfidence, includeBundles);
+    return new EvaluationSettings(share, seed, k, value, measure, minConfidence, maxConfidence, includeBundles, ranking);
   }
 
   public EvaluationSettings withMeasure(Measure value) {
-    return new EvaluationSettings(share, seed, k, horizon, value, minConfidence, maxConfidence, includeBundles);
+    return new EvaluationSettings(share, seed, k, horizon, value, minConfidence, maxConfidence, includeBundles, ranking);
   }
 
   public EvaluationSettings withConfidenceBand(double min, double max) {
-    return new EvaluationSettings(share, seed, k, horizon, measure, min, max, includeBundles);
+    return new EvaluationSettings(share, seed, k, horizon, measure, min, max, includeBundles, ranking);
   }
 
   public EvaluationSettings withIncludeBundles(boolean value) {
-    return new EvaluationSettings(share, seed, k, horizon, measure, minConfidence, maxConfidence, value);
+    return new EvaluationSettings(share, seed, k, horizon, measure, minConfidence, maxConfidence, value, ranking);
+  }
+
+  public EvaluationSettings withRanking(SuggestionRanking value) {
+    return new EvaluationSettings(share, seed, k, horizon, measure, minConfidence, maxConfidence, includeBundles, value);
   }
 
   /** The cut-offs hit rates are reported at: 1, 5 and k (those not above k, distinct, ascending). */

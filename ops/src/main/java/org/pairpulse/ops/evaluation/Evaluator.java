@@ -59,6 +59,8 @@ public final class Evaluator implements EvaluationStatus {
   private final int[] cutoffs;
   private final Consumer<Trial> listener;
   private final Predicate<Trial> focus;
+  /** False for a live evaluation: totals only, no per-trial log (it would grow for as long as the process runs). */
+  private final boolean keepLog;
 
   // the trial log: event time and the rank of each method (0..k fits a byte for k <= 100)
   private long[] times = new long[1024];
@@ -89,6 +91,21 @@ public final class Evaluator implements EvaluationStatus {
    *     report on its own (for instance: the hidden item forms a planted pair with a query item); may be null
    */
   public Evaluator(EvaluationSettings settings, Suggester suggester, Consumer<Trial> listener, Predicate<Trial> focus) {
+    this(settings, suggester, listener, focus, true);
+  }
+
+  /**
+   * An evaluator in fixed memory, for a live stream that runs for months: it keeps the running totals
+   * ({@link #summary()}, the metrics, {@link #trials()}) but no log of trials, so the tallies over intervals and
+   * days are not available (they throw {@link IllegalStateException}). The listener sees every trial.
+   */
+  public static Evaluator withoutLog(EvaluationSettings settings, Suggester suggester, Consumer<Trial> listener) {
+    return new Evaluator(settings, suggester, listener, null, false);
+  }
+
+  private Evaluator(EvaluationSettings settings, Suggester suggester, Consumer<Trial> listener, Predicate<Trial> focus,
+      boolean keepLog) {
+    this.keepLog = keepLog;
     this.settings = Objects.requireNonNull(settings, "settings");
     this.suggester = Objects.requireNonNull(suggester, "suggester");
     this.cutoffs = settings.cutoffs();
@@ -139,7 +156,7 @@ public final class Evaluator implements EvaluationStatus {
     List<String> query = new ArrayList<>(sorted);
     query.remove(hidden);
     SuggestionRequest request = new SuggestionRequest(query, settings.horizon(), settings.measure(), settings.k(),
-        settings.minConfidence(), settings.maxConfidence(), 0.0, settings.includeBundles());
+        settings.minConfidence(), settings.maxConfidence(), 0.0, settings.includeBundles(), settings.ranking());
     int incrementalRank = rankOf(hidden, suggester.suggest(incremental, request));
     int nightlyRank = rankOf(hidden, suggester.suggest(nightly, request));
     int popularRank = popularRank(hidden, distinct, incremental);
@@ -198,22 +215,15 @@ public final class Evaluator implements EvaluationStatus {
   }
 
   private void record(Trial trial) {
-    if (size == times.length) {
-      times = Arrays.copyOf(times, size * 2);
-      focused = Arrays.copyOf(focused, size * 2);
-      for (int m = 0; m < ranks.length; m++) {
-        ranks[m] = Arrays.copyOf(ranks[m], size * 2);
-      }
+    if (keepLog) {
+      log(trial);
     }
-    times[size] = trial.eventMillis();
-    focused[size] = focus != null && focus.test(trial);
     Totals old = totals;
     long[][] hits = new long[old.hits().length][];
     double[] rr = old.reciprocalRankSums().clone();
     for (EvaluationMethod method : EvaluationMethod.values()) {
       int m = method.ordinal();
       int rank = trial.rank(method);
-      ranks[m][size] = (byte) rank;
       hits[m] = old.hits()[m].clone();
       if (rank > 0) {
         rr[m] += 1.0 / rank;
@@ -224,16 +234,37 @@ public final class Evaluator implements EvaluationStatus {
         }
       }
     }
-    size++;
     totals = new Totals(old.trials() + 1, hits, rr);
     if (trialCounter != null) {
       trialCounter.increment();
     }
   }
 
+  private void log(Trial trial) {
+    if (size == times.length) {
+      times = Arrays.copyOf(times, size * 2);
+      focused = Arrays.copyOf(focused, size * 2);
+      for (int m = 0; m < ranks.length; m++) {
+        ranks[m] = Arrays.copyOf(ranks[m], size * 2);
+      }
+    }
+    times[size] = trial.eventMillis();
+    focused[size] = focus != null && focus.test(trial);
+    for (EvaluationMethod method : EvaluationMethod.values()) {
+      ranks[method.ordinal()][size] = (byte) trial.rank(method);
+    }
+    size++;
+  }
+
+  private void requireLog() {
+    if (!keepLog) {
+      throw new IllegalStateException("this evaluator keeps no trial log (a live evaluation): only its totals");
+    }
+  }
+
   /** Trials so far. */
   public long trials() {
-    return size;
+    return totals.trials();
   }
 
   /** The tally of one method over the trials whose event time lies in [fromMillis, toMillis). */
@@ -243,6 +274,7 @@ public final class Evaluator implements EvaluationStatus {
 
   /** As {@link #tally(EvaluationMethod, long, long)}, over the focus trials only when {@code focusOnly}. */
   public Tally tally(EvaluationMethod method, long fromMillis, long toMillis, boolean focusOnly) {
+    requireLog();
     byte[] methodRanks = ranks[method.ordinal()];
     byte[] selected = new byte[size];
     int n = 0;
@@ -254,8 +286,35 @@ public final class Evaluator implements EvaluationStatus {
     return Tally.of(cutoffs, selected, 0, n);
   }
 
+  /**
+   * The tally of one method over the trials whose event time satisfies {@code when} (for instance a union of
+   * intervals), the focus trials only when {@code focusOnly}.
+   */
+  public Tally tally(EvaluationMethod method, java.util.function.LongPredicate when, boolean focusOnly) {
+    requireLog();
+    byte[] methodRanks = ranks[method.ordinal()];
+    byte[] selected = new byte[size];
+    int n = 0;
+    for (int i = 0; i < size; i++) {
+      if (when.test(times[i]) && (!focusOnly || focused[i])) {
+        selected[n++] = methodRanks[i];
+      }
+    }
+    return Tally.of(cutoffs, selected, 0, n);
+  }
+
+  /** Every method's tally over the trials whose event time satisfies {@code when}. */
+  public Map<EvaluationMethod, Tally> tallies(java.util.function.LongPredicate when, boolean focusOnly) {
+    Map<EvaluationMethod, Tally> map = new EnumMap<>(EvaluationMethod.class);
+    for (EvaluationMethod method : EvaluationMethod.values()) {
+      map.put(method, tally(method, when, focusOnly));
+    }
+    return map;
+  }
+
   /** The tally of one method over every trial. */
   public Tally tally(EvaluationMethod method) {
+    requireLog();
     return Tally.of(cutoffs, ranks[method.ordinal()], 0, size);
   }
 
@@ -280,6 +339,7 @@ public final class Evaluator implements EvaluationStatus {
 
   /** The UTC days (start of day, epoch millis) that hold trials, ascending. */
   public List<Long> days() {
+    requireLog();
     TreeMap<Long, Boolean> days = new TreeMap<>();
     for (int i = 0; i < size; i++) {
       days.put(Math.floorDiv(times[i], DAY_MILLIS) * DAY_MILLIS, Boolean.TRUE);

@@ -18,13 +18,17 @@ import java.util.concurrent.TimeoutException;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.NewTopic;
 import org.apache.kafka.common.errors.TopicExistsException;
+import org.pairpulse.ingest.event.EventDecoder;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ingest.kafka.Ingestor;
+import org.pairpulse.ops.evaluation.EvaluationSettings;
+import org.pairpulse.ops.live.LiveEvaluation;
 import org.pairpulse.serve.IngestHealth;
 import org.pairpulse.serve.ServeConfig;
 import org.pairpulse.serve.ServeServer;
 import org.pairpulse.serve.SketchHealth;
 import org.pairpulse.serve.alerts.AlertSink;
+import org.pairpulse.serve.alerts.KafkaAlertSink;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.time.EventClock;
 import org.slf4j.Logger;
@@ -48,10 +52,13 @@ import org.slf4j.LoggerFactory;
  * }</pre>
  *
  * <h2>Segments and the cohort floor</h2>
- * Only segment {@value ServeServer#ALL} (every basket) exists: ingest counts every basket in one engine per
- * partition and carries basket attributes without counting them, so {@link Settings#segmentAttributes()}
- * must be empty. The cohort floor ({@code serve.cohortFloor}) applies to every statistic serve publishes:
- * API, dashboard and alerts all read the floored view.
+ * Segment {@value ServeServer#ALL} (every basket) always exists. With {@link Settings#segmentAttributes()} (ingest's
+ * {@code segments.attributes}), ingest also counts each basket in segment {@code <attribute>=<value>} for each
+ * configured attribute it carries, and publishes one pair table per segment every refresh; the server serves
+ * them as they are discovered ({@link Ingestor#segmentTables()} to {@link ServeServer.Builder#discoveredSegments}),
+ * a segment being named only once its N passes the cohort floor. The cohort floor ({@code serve.cohortFloor})
+ * applies to every statistic serve publishes, in every segment: API, dashboard and alerts all read the floored
+ * view.
  *
  * <h2>Threads</h2>
  * Ingest's poll and engine threads, serve's Jetty pool, table watcher and alert dispatcher, and one
@@ -71,21 +78,53 @@ public final class Pipeline implements AutoCloseable {
    *     ingest; empty: no topic
    * @param createAlertTopic create {@code alertTopic} when missing (1 partition, the cluster's default
    *     replication)
-   * @param segmentAttributes basket attributes to count segments by; must be empty (see the class comment)
+   * @param segmentAttributes basket attributes to count segments by (ingest's {@code segments.attributes}; when
+   *     {@code ingest} sets that key too, both must name the same attributes); empty: segment all only
    * @param sketchHealthMillis how often the state's fill and error bounds are captured (one merged copy)
+   * @param evaluation the live test-then-train evaluation ({@link LiveEvaluation}: dashboard and metrics); null
+   *     or a share of 0: none
    */
   public record Settings(Map<String, Object> ingest, EngineConfig engine, ServeConfig serve, String alertTopic,
-      boolean createAlertTopic, List<String> segmentAttributes, long sketchHealthMillis) {
+      boolean createAlertTopic, List<String> segmentAttributes, long sketchHealthMillis,
+      EvaluationSettings evaluation) {
     public Settings {
       ingest = Map.copyOf(ingest);
       Objects.requireNonNull(engine, "engine");
       Objects.requireNonNull(serve, "serve");
       alertTopic = alertTopic == null ? "" : alertTopic;
       segmentAttributes = List.copyOf(segmentAttributes);
+      Object inIngest = ingest.get(IngestConfig.SEGMENT_ATTRIBUTES);
+      if (inIngest != null && !segmentAttributes.isEmpty() && !attributeList(inIngest).equals(segmentAttributes)) {
+        throw new IllegalArgumentException("segment attributes " + segmentAttributes + " differ from ingest's "
+            + IngestConfig.SEGMENT_ATTRIBUTES + "=" + inIngest);
+      }
       if (sketchHealthMillis < 100) {
         throw new IllegalArgumentException("sketchHealthMillis must be >= 100, got " + sketchHealthMillis);
       }
     }
+
+    /** Settings without a live evaluation. */
+    public Settings(Map<String, Object> ingest, EngineConfig engine, ServeConfig serve, String alertTopic,
+        boolean createAlertTopic, List<String> segmentAttributes, long sketchHealthMillis) {
+      this(ingest, engine, serve, alertTopic, createAlertTopic, segmentAttributes, sketchHealthMillis, null);
+    }
+
+    /** These settings with the live evaluation {@code value} (null: none). */
+    public Settings withEvaluation(EvaluationSettings value) {
+      return new Settings(ingest, engine, serve, alertTopic, createAlertTopic, segmentAttributes, sketchHealthMillis,
+          value);
+    }
+
+    boolean evaluates() {
+      return evaluation != null && evaluation.share() > 0;
+    }
+  }
+
+  private static List<String> attributeList(Object value) {
+    if (value instanceof List<?> list) {
+      return list.stream().map(Object::toString).map(String::trim).toList();
+    }
+    return java.util.Arrays.stream(value.toString().split(",")).map(String::trim).filter(v -> !v.isEmpty()).toList();
   }
 
   private final Settings settings;
@@ -95,10 +134,11 @@ public final class Pipeline implements AutoCloseable {
   private final ServeServer server;
   private final PrometheusMeterRegistry registry;
   private final JvmGcMetrics gcMetrics;
+  private final LiveEvaluation evaluation; // null when none
   private volatile boolean closed;
 
   private Pipeline(Settings settings, Ingestor ingestor, IngestHealthReporter health, SketchHealthPoller sketch,
-      ServeServer server, PrometheusMeterRegistry registry, JvmGcMetrics gcMetrics) {
+      ServeServer server, PrometheusMeterRegistry registry, JvmGcMetrics gcMetrics, LiveEvaluation evaluation) {
     this.settings = settings;
     this.ingestor = ingestor;
     this.health = health;
@@ -106,12 +146,14 @@ public final class Pipeline implements AutoCloseable {
     this.server = server;
     this.registry = registry;
     this.gcMetrics = gcMetrics;
+    this.evaluation = evaluation;
   }
 
   /**
    * Starts the server, then ingest (it connects, creates its topics if asked, restores checkpoints).
    *
-   * @throws UnsupportedOperationException when segment attributes are configured
+   * @throws org.apache.kafka.common.config.ConfigException when an ingest setting (segment attributes included)
+   *     is invalid
    * @throws IllegalStateException when ingest or the server cannot start (the cause says why)
    */
   public static Pipeline start(Settings settings) {
@@ -137,16 +179,15 @@ public final class Pipeline implements AutoCloseable {
    * ({@code /api/v1/health/ready}) waits for the first pair table, the status shows ingest as starting.
    * Then call {@link #startIngest()} (the demo starts its broker meanwhile).
    *
-   * @throws UnsupportedOperationException when segment attributes are configured
+   * @throws org.apache.kafka.common.config.ConfigException when an ingest setting is invalid
    * @throws IllegalStateException when the server cannot start (the cause says why)
    */
   public static Pipeline create(Settings settings, EventClock wallClock, List<AlertSink> extraSinks) {
+    Map<String, Object> ingestProps = new java.util.HashMap<>(settings.ingest());
     if (!settings.segmentAttributes().isEmpty()) {
-      throw new UnsupportedOperationException("segment attributes " + settings.segmentAttributes()
-          + " are configured, but per-segment counting is not available yet: ingest counts every basket in one"
-          + " segment ('all') and carries attributes without counting them; leave the segment attributes empty");
+      ingestProps.put(IngestConfig.SEGMENT_ATTRIBUTES, String.join(",", settings.segmentAttributes()));
     }
-    IngestConfig ingestConfig = new IngestConfig(settings.ingest());
+    IngestConfig ingestConfig = new IngestConfig(ingestProps);
     PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
     new JvmMemoryMetrics().bindTo(registry);
     JvmGcMetrics gc = new JvmGcMetrics();
@@ -161,25 +202,35 @@ public final class Pipeline implements AutoCloseable {
     ServeServer.Builder builder = ServeServer.builder()
         .config(settings.serve())
         .segment(ServeServer.ALL, ingestor.pairTables())
+        .discoveredSegments(ingestor::segmentTables)
         .horizons(settings.engine().horizons())
         .registry(registry)
         .ingestStatus(health)
         .sketchHealth(sketch::latest)
         .wallClock(wallClock);
     extraSinks.forEach(builder::alertSink);
+    java.util.concurrent.atomic.AtomicReference<ServeServer> served = new java.util.concurrent.atomic.AtomicReference<>();
+    LiveEvaluation evaluation = null;
+    if (settings.evaluates()) {
+      evaluation = new LiveEvaluation(KafkaClientProperties.forClient(settings.ingest(), "consumer"),
+          ingestConfig.topics(), new EventDecoder(ingestConfig.eventLimits(wallClock)), ingestConfig.frontSettings(),
+          settings.evaluation(), () -> served.get().view(ServeServer.ALL), registry, trial -> { });
+      builder.evaluation(evaluation);
+    }
     ServeServer server = null;
     try {
       if (!settings.alertTopic().isEmpty()) {
-        builder.alertSink(new KafkaTopicAlertSink(KafkaClientProperties.forClient(settings.ingest(), "producer"),
+        builder.alertSink(new KafkaAlertSink(KafkaClientProperties.forClient(settings.ingest(), "producer"),
             settings.alertTopic(), registry));
       }
       server = builder.build().start();
+      served.set(server);
     } catch (RuntimeException e) {
       sketch.close();
       gc.close();
       throw e;
     }
-    return new Pipeline(settings, ingestor, health, sketch, server, registry, gc);
+    return new Pipeline(settings, ingestor, health, sketch, server, registry, gc, evaluation);
   }
 
   /**
@@ -194,6 +245,9 @@ public final class Pipeline implements AutoCloseable {
     }
     ingestor.start();
     health.started();
+    if (evaluation != null) {
+      evaluation.start(); // reads from the end of the basket topics, which ingest has made sure exist
+    }
     return this;
   }
 
@@ -217,6 +271,11 @@ public final class Pipeline implements AutoCloseable {
 
   public Ingestor ingestor() {
     return ingestor;
+  }
+
+  /** The live evaluation, when the settings run one. */
+  public Optional<LiveEvaluation> evaluation() {
+    return Optional.ofNullable(evaluation);
   }
 
   public ServeServer server() {
@@ -254,6 +313,9 @@ public final class Pipeline implements AutoCloseable {
       return;
     }
     closed = true;
+    if (evaluation != null) {
+      evaluation.close();
+    }
     ingestor.close();
     health.stopped();
     sketch.close();

@@ -7,11 +7,17 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Instant;
 import java.util.ArrayList;
+import java.util.HashMap;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
+import java.util.Properties;
+import java.util.TreeMap;
 import java.util.concurrent.Callable;
+import org.apache.kafka.common.config.ConfigException;
 import org.pairpulse.ingest.file.ProgressDisplay;
+import org.pairpulse.ingest.kafka.IngestConfig;
+import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.ops.backtest.BacktestSettings;
 import org.pairpulse.ops.backtest.SettingsFile;
 import org.pairpulse.sketch.engine.EngineConfig;
@@ -41,8 +47,9 @@ public final class ReportCommand implements Callable<Integer> {
         + " reads them); the lists are as of its newest event time.")
     Path input;
 
-    @Option(names = "--snapshot", paramLabel = "FILE",
-        description = "Saved state instead: an engine snapshot or an ingest partition checkpoint (.ckpt).")
+    @Option(names = "--snapshot", paramLabel = "PATH", description = "Saved state instead: an engine snapshot, an"
+        + " ingest partition checkpoint (.ckpt) or a directory of them (a local checkpoint.dir, merged), with the"
+        + " segments ingest counted.")
     Path snapshot;
   }
 
@@ -52,12 +59,13 @@ public final class ReportCommand implements Callable<Integer> {
   @Option(names = "--out", required = true, paramLabel = "DIR", description = "Output directory.")
   Path out;
 
-  @Option(names = "--segment-attribute", paramLabel = "NAME",
-      description = "A basket attribute whose values are segments (repeatable; --input only), e.g. channel.")
+  @Option(names = "--segment-attribute", paramLabel = "NAME", description = "A basket attribute whose values are"
+      + " segments (repeatable), e.g. channel; default: the settings file's segments.attributes. With --snapshot: only"
+      + " the segments of these attributes.")
   List<String> segmentAttributes = new ArrayList<>();
 
-  @Option(names = "--config", paramLabel = "FILE",
-      description = "Settings file (Java properties): drift.*, serve.cohortFloor, engine.*, ingest's front keys.")
+  @Option(names = "--config", paramLabel = "FILE", description = "Settings file (Java properties): drift.*,"
+      + " serve.cohortFloor, engine.*, ingest's front keys and segments.* (as 'pairpulse run' reads them).")
   Path config;
 
   @Option(names = "--floor", paramLabel = "N", description = "Cohort floor in distinct baskets (default: 50).")
@@ -85,6 +93,7 @@ public final class ReportCommand implements Callable<Integer> {
   public Integer call() throws Exception {
     BacktestSettings base = BacktestSettings.defaults();
     PromoSettings settings;
+    SegmentSettings segments;
     try {
       if (config != null) {
         if (!Files.isRegularFile(config)) {
@@ -94,8 +103,9 @@ public final class ReportCommand implements Callable<Integer> {
       }
       settings = new PromoSettings(minConfidence, maxConfidence, top, horizon, base.drift(),
           floor != null ? floor : base.cohortFloor());
-    } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e, null, null);
+      segments = segmentSettings();
+    } catch (IllegalArgumentException | ConfigException e) {
+      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
     Map<String, PairTable> tables;
     EngineConfig engine;
@@ -103,21 +113,30 @@ public final class ReportCommand implements Callable<Integer> {
       requireFile(source.input, "--input");
       engine = base.engine();
       ProgressDisplay progress = quiet ? null : ProgressDisplay.onStandardError("report", Files.size(source.input));
-      tables = ReportSources.replay(source.input, engine, base, segmentAttributes, progress);
+      Map<String, Long> skipped = new TreeMap<>();
+      tables = ReportSources.replay(source.input, engine, base, segments,
+          (attribute, value, reason) -> skipped.merge(attribute + " (" + reason.wireName() + ")", 1L, Long::sum), progress);
+      PrintWriter stderr = spec.commandLine().getErr();
+      skipped.forEach((what, count) -> stderr.printf(Locale.ROOT, "note: %,d baskets' value of %s made no segment; they"
+          + " count in 'all' only (segments.max.values=%d per attribute; values are plain names)%n", count, what,
+          segments.maxValuesPerAttribute()));
+      stderr.flush();
     } else {
-      requireFile(source.snapshot, "--snapshot");
-      if (!segmentAttributes.isEmpty()) {
-        throw new ParameterException(spec.commandLine(), "--segment-attribute needs --input: a snapshot holds one"
-            + " segment");
+      if (!Files.isRegularFile(source.snapshot) && !Files.isDirectory(source.snapshot)) {
+        throw new ParameterException(spec.commandLine(), "--snapshot: no such file or directory: " + source.snapshot);
       }
-      engine = ReportSources.snapshotConfig(source.snapshot);
-      tables = ReportSources.snapshot(source.snapshot);
+      try {
+        engine = ReportSources.snapshotConfig(source.snapshot);
+        tables = ReportSources.snapshot(source.snapshot, segments.attributes());
+      } catch (IllegalArgumentException e) {
+        throw new ParameterException(spec.commandLine(), "--snapshot: " + e.getMessage(), e);
+      }
     }
     PromoReport report;
     try {
       report = PromoReport.build(tables, engine.horizons(), settings);
     } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e, null, null);
+      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
     Files.createDirectories(out);
     try (Writer csv = Files.newBufferedWriter(out.resolve(PromoCsv.FILE), StandardCharsets.UTF_8);
@@ -140,6 +159,34 @@ public final class ReportCommand implements Callable<Integer> {
         + out.resolve(PromoHtml.FILE));
     stdout.flush();
     return 0;
+  }
+
+  /**
+   * The segments: {@code --segment-attribute}, else the settings file's {@code segments.attributes}; the bound and
+   * the segment engines' fraction from the settings file ({@code segments.max.values},
+   * {@code segments.tracked.fraction}), checked as ingest checks them.
+   */
+  private SegmentSettings segmentSettings() throws java.io.IOException {
+    Map<String, Object> props = new HashMap<>();
+    if (config != null) {
+      Properties file = new Properties();
+      try (java.io.Reader reader = Files.newBufferedReader(config, StandardCharsets.UTF_8)) {
+        file.load(reader);
+      }
+      for (String key : List.of(IngestConfig.SEGMENT_ATTRIBUTES, IngestConfig.SEGMENT_MAX_VALUES,
+          IngestConfig.SEGMENT_TRACKED_FRACTION)) {
+        if (file.getProperty(key) != null) {
+          props.put(key, file.getProperty(key).trim());
+        }
+      }
+    }
+    if (!segmentAttributes.isEmpty()) {
+      props.put(IngestConfig.SEGMENT_ATTRIBUTES, String.join(",", segmentAttributes));
+    }
+    props.put(IngestConfig.BOOTSTRAP_SERVERS, "unused:9092"); // required keys of the whole ingest configuration
+    props.put(IngestConfig.TOPICS, "unused");
+    props.put(IngestConfig.CHECKPOINT_STORE, "none");
+    return new IngestConfig(props).segmentSettings();
   }
 
   private void requireFile(Path file, String option) {

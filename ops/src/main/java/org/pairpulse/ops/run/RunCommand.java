@@ -54,11 +54,6 @@ public final class RunCommand implements Callable<Integer> {
       out.flush();
       return 0;
     }
-    if (!run.segmentAttributes().isEmpty()) {
-      throw new ParameterException(spec.commandLine(), config + ": " + RunConfig.SEGMENT_ATTRIBUTES + "="
-          + String.join(",", run.segmentAttributes()) + ": per-segment counting is not available yet (ingest counts"
-          + " every basket as one segment 'all'); remove the key to run");
-    }
     CountDownLatch finished = new CountDownLatch(1);
     StopFlag stop = new StopFlag();
     Thread hook = new Thread(() -> {

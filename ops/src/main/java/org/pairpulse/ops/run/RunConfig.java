@@ -28,6 +28,8 @@ import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.common.config.ConfigDef;
 import org.apache.kafka.common.config.ConfigException;
 import org.pairpulse.ingest.kafka.IngestConfig;
+import org.pairpulse.ingest.segment.SegmentSettings;
+import org.pairpulse.ops.evaluation.EvaluationSettings;
 import org.pairpulse.ops.pipeline.Pipeline;
 import org.pairpulse.serve.ServeConfig;
 import org.pairpulse.sketch.engine.EngineConfig;
@@ -41,15 +43,17 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
  * <table>
  *   <caption>Key families</caption>
  *   <tr><th>keys</th><th>what</th><th>defined by</th></tr>
- *   <tr><td>{@code bootstrap.servers}, {@code topics}, {@code group.id}, {@code checkpoint.*}, ...</td>
- *       <td>input, consumer group, checkpoints, event checks</td><td>{@link IngestConfig}</td></tr>
+ *   <tr><td>{@code bootstrap.servers}, {@code topics}, {@code group.id}, {@code checkpoint.*},
+ *       {@code segments.*}, ...</td>
+ *       <td>input, consumer group, checkpoints, event checks, segment attributes</td><td>{@link IngestConfig}</td></tr>
  *   <tr><td>{@code kafka.*}, {@code kafka.consumer.*}, {@code kafka.producer.*}, {@code kafka.admin.*}</td>
  *       <td>passed to the Kafka clients (SASL, TLS, tuning); also used by the alerts producer</td><td>Kafka</td></tr>
  *   <tr><td>{@code engine.*}, {@code horizon.*}</td><td>ε/δ, capacities, horizons</td><td>{@link EngineConfig},
  *       {@link HorizonSpec}</td></tr>
  *   <tr><td>{@code serve.*}, {@code drift.*}, {@code alerts.*}</td><td>HTTP, token, cohort floor, drift
  *       thresholds, alert topic and webhook</td><td>{@link ServeConfig}</td></tr>
- *   <tr><td>{@code segments.attributes}, {@code alerts.kafka.enabled}, {@code run.*}</td><td>this command</td>
+ *   <tr><td>{@code alerts.kafka.enabled}, {@code run.*}, {@code evaluation.*}</td><td>this command (the
+ *       live evaluation's keys are those a backtest settings file uses too)</td>
  *       <td>here</td></tr>
  * </table>
  *
@@ -84,14 +88,16 @@ public final class RunConfig {
 
   /** Keys of Kafka clients pass through with this prefix ({@code kafka.X}, {@code kafka.<client>.X}). */
   public static final String KAFKA_PREFIX = IngestConfig.KAFKA_PREFIX;
-  public static final String SEGMENT_ATTRIBUTES = "segments.attributes";
+  public static final String SEGMENT_ATTRIBUTES = IngestConfig.SEGMENT_ATTRIBUTES;
   public static final String ALERTS_KAFKA_ENABLED = "alerts.kafka.enabled";
   public static final String SKETCH_HEALTH_MILLIS = "run.sketchHealthIntervalMillis";
+  public static final String EVALUATION_SHARE = "evaluation.share";
+  public static final String EVALUATION_K = "evaluation.k";
+  public static final String EVALUATION_HORIZON = "evaluation.horizon";
 
   private static final List<Key> KEYS = keys();
   private static final Map<String, Key> BY_NAME = byName(KEYS);
   private static final Pattern REFERENCE = Pattern.compile("\\$\\{(env|file):([^}]+)}");
-  private static final Pattern ATTRIBUTE = Pattern.compile("[A-Za-z0-9_.-]{1,64}");
 
   private final String source;
   private final Map<String, String> values;
@@ -284,7 +290,7 @@ public final class RunConfig {
         .build();
   }
 
-  /** The configured segment attributes (must be empty to start: see {@link Pipeline}). */
+  /** The configured segment attributes ({@code segments.attributes}); empty: segment all only. */
   public List<String> segmentAttributes() {
     return list(values.get(SEGMENT_ATTRIBUTES));
   }
@@ -295,7 +301,7 @@ public final class RunConfig {
     boolean alertTopic = Boolean.parseBoolean(values.get(ALERTS_KAFKA_ENABLED));
     return new Pipeline.Settings(ingestProperties(), engine(), serve,
         alertTopic ? serve.string(ServeConfig.KAFKA_TOPIC) : "", Boolean.parseBoolean(values.get(IngestConfig.TOPICS_CREATE)),
-        segmentAttributes(), longValue(SKETCH_HEALTH_MILLIS));
+        segmentAttributes(), longValue(SKETCH_HEALTH_MILLIS), evaluation());
   }
 
   private long longValue(String key) {
@@ -342,6 +348,14 @@ public final class RunConfig {
     out.append(String.format(Locale.ROOT, "# memory: one partition's engine state is %,d bytes (fixed by engine.* and"
         + " horizon.*); heap: about 3 x that x partitions owned + 256 MB (ops/RUNBOOK.md, Memory)", stateBytes))
         .append(System.lineSeparator());
+    SegmentSettings segments = segmentSettings();
+    if (segments.enabled()) {
+      long segmentBytes = segmentStateBytes();
+      out.append(String.format(Locale.ROOT, "# segments: %s; each segment engine is %,d bytes; a partition holds at most"
+          + " 1 + %d x %d engines: up to %,d bytes of state per partition", String.join(",", segments.attributes()),
+          segmentBytes, segments.attributes().size(), segments.maxValuesPerAttribute(),
+          stateBytes + segmentBytes * (segments.maxEnginesPerPartition() - 1))).append(System.lineSeparator());
+    }
     return out.toString();
   }
 
@@ -351,9 +365,20 @@ public final class RunConfig {
         .append(System.lineSeparator());
   }
 
-  /** The state bytes of one partition's engine: an empty engine of this configuration, measured. */
+  /** The state bytes of one partition's engine of segment all: an empty engine of this configuration, measured. */
   public long stateBytesPerPartition() {
     return new PairEngine(engine()).stateBytes();
+  }
+
+  /** Ingest's segment settings ({@code segments.*}). */
+  public SegmentSettings segmentSettings() {
+    return new IngestConfig(ingestProperties()).segmentSettings();
+  }
+
+  /** The state bytes of one segment engine (an empty one, measured); 0 without segment attributes. */
+  public long segmentStateBytes() {
+    SegmentSettings segments = segmentSettings();
+    return segments.enabled() ? new PairEngine(segments.segmentEngine(engine())).stateBytes() : 0;
   }
 
   /** The key table of the documentation (Markdown): key, type, default, allowed, meaning. */
@@ -599,22 +624,42 @@ public final class RunConfig {
   }
 
   private static void runKeys(List<Key> keys) {
-    keys.add(new Key(SEGMENT_ATTRIBUTES, "list", "", "comma-separated attribute names ([A-Za-z0-9_.-]{1,64})",
-        "basket attributes to keep segment statistics for (e.g. channel,region); NOT AVAILABLE YET: ingest counts"
-            + " every basket as one segment, so 'run' refuses to start when this is set", Part.RUN, value -> {
-              for (String attribute : list(value)) {
-                if (!ATTRIBUTE.matcher(attribute).matches()) {
-                  return "'" + attribute + "' is not an attribute name";
-                }
-              }
-              return null;
-            }));
     keys.add(new Key(ALERTS_KAFKA_ENABLED, "boolean", "true", "true or false",
         "send alert events to alerts.kafka.topic on the input cluster (same kafka.* settings); false: no topic",
         Part.RUN, value -> value.equals("true") || value.equals("false") ? null : "not true or false"));
     keys.add(longKey(SKETCH_HEALTH_MILLIS, 30_000, 1000, Long.MAX_VALUE,
         "how often the state's fill and error bounds are captured for the status page and /metrics (each time one"
             + " merged copy of the state is made)", Part.RUN));
+    keys.add(new Key(EVALUATION_SHARE, "double", "0.05", "[0, 1]",
+        "share of baskets the live evaluation tests before ingest counts them (one item hidden; hit rate against a"
+            + " table rebuilt once a day and the most popular items, on the dashboard and in /metrics); 0: none. In a"
+            + " group, set it on one instance only", Part.RUN, value -> {
+              try {
+                double v = Double.parseDouble(value);
+                return v >= 0 && v <= 1 ? null : "out of range";
+              } catch (NumberFormatException e) {
+                return "not a number";
+              }
+            }));
+    keys.add(new Key(EVALUATION_K, "int", Integer.toString(EvaluationSettings.DEFAULT_K), "1.." + EvaluationSettings.MAX_K,
+        "suggestions asked for per tested basket: the k of hit rate at k", Part.RUN, value -> {
+          try {
+            int v = Integer.parseInt(value);
+            return v >= 1 && v <= EvaluationSettings.MAX_K ? null : "out of range";
+          } catch (NumberFormatException e) {
+            return "not an integer";
+          }
+        }));
+    keys.add(new Key(EVALUATION_HORIZON, "string", HorizonSpec.RECENT.name(), "recent, day or baseline",
+        "the horizon the evaluation's suggestions use", Part.RUN,
+        value -> List.of(HorizonSpec.RECENT.name(), HorizonSpec.DAY.name(), HorizonSpec.BASELINE.name()).contains(value)
+            ? null : "not a horizon"));
+  }
+
+  /** The live evaluation's settings ({@code evaluation.*}); a share of 0 turns it off. */
+  public EvaluationSettings evaluation() {
+    return EvaluationSettings.defaults().withShare(doubleValue(EVALUATION_SHARE)).withK(intValue(EVALUATION_K))
+        .withHorizon(values.get(EVALUATION_HORIZON));
   }
 
   private static Key real(String name, double defaultValue, String rule, double lowExclusive, double highExclusive,

@@ -28,6 +28,7 @@ import org.pairpulse.ops.evaluation.Trial;
 import org.pairpulse.ops.scenario.ScenarioConfig;
 import org.pairpulse.ops.scenario.ScenarioFiles;
 import org.pairpulse.ops.scenario.ScenarioGenerator;
+import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.sketch.engine.EngineConfig;
 import picocli.CommandLine;
 
@@ -95,8 +96,11 @@ class BacktestTest {
 
   @Test
   void aBasketIsTestedBeforeItTrains() {
+    // the association ranking: its answers come from pairs only, so a rank > 0 would show that the table knew the
+    // pair (the posterior ranking also answers from popularity: x would be found for {z} without the pair)
     BacktestSettings settings = BacktestSettings.defaults().withEngine(SMALL).withCohortFloor(0)
-        .withRefreshEveryMillis(MINUTE).withEvaluation(EvaluationSettings.defaults().withShare(1.0));
+        .withRefreshEveryMillis(MINUTE)
+        .withEvaluation(EvaluationSettings.defaults().withShare(1.0).withRanking(SuggestionRanking.ASSOCIATION));
     List<Trial> trials = new ArrayList<>();
     Backtest backtest = new Backtest(settings, new Backtest.Listener() {
       @Override

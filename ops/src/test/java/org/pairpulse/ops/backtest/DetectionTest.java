@@ -66,6 +66,27 @@ class DetectionTest {
   }
 
   @Test
+  void theDaysAfterThePlantedChangesAreTheDayAfterEach() {
+    // the shift benchmark's hit rates: [change, change + 24 h) for the emerging start and the fading end, united
+    Detection detection = Detection.score(TRUTH, List.of(), START, START + 8 * DAY - 1);
+    BacktestRun run = new BacktestRun("none", null, null, detection);
+    List<long[]> windows = run.daysAfterChanges();
+    assertEquals(2, windows.size());
+    long emerging = START + 3 * DAY + 19 * HOUR;
+    long fading = START + 5 * DAY;
+    assertEquals(List.of(emerging, emerging + DAY, fading, fading + DAY),
+        List.of(windows.get(0)[0], windows.get(0)[1], windows.get(1)[0], windows.get(1)[1]));
+    assertFalse(BacktestRun.inWindows(windows, emerging - 1));
+    assertTrue(BacktestRun.inWindows(windows, emerging));
+    assertFalse(BacktestRun.inWindows(windows, emerging + DAY), "day 4 19:00 to day 5 00:00 is after both days");
+    assertTrue(BacktestRun.inWindows(windows, fading + DAY - 1));
+    assertFalse(BacktestRun.inWindows(windows, fading + DAY));
+    // a replay without a planted change inside has no such days
+    assertTrue(new BacktestRun("none", null, null, Detection.score(TRUTH, List.of(), START, START + DAY))
+        .daysAfterChanges().isEmpty());
+  }
+
+  @Test
   void changesOutsideTheReplayAreNotCountedAndMissesHaveNoDelay() {
     // a replay of days 0..4 only: the fading change (day 5) is outside, the emerging one is missed
     Detection detection = Detection.score(TRUTH, List.of(raised(AlertKind.FADING, "e1", "e2", START + 4 * DAY)),

@@ -161,6 +161,35 @@ class DemoEndToEndTest {
 
   @Test
   @Order(5)
+  void liveEvaluationReachesTheStatusAndTheMetrics() throws Exception {
+    // the evaluation reads the live part of the run (it starts at the end of the fast-forward)
+    long trials = demo.pipeline().evaluation().orElseThrow().trials();
+    assertTrue(trials > 100, "live trials: " + trials);
+    JsonNode evaluation = get("/api/v1/status").path("evaluation");
+    assertTrue(evaluation.path("baskets").asLong() >= 100, evaluation.toString());
+    List<String> methods = new java.util.ArrayList<>();
+    evaluation.path("methods").forEach(m -> methods.add(m.path("method").asText()));
+    assertEquals(List.of("incremental", "nightly", "popular"), methods);
+    assertTrue(evaluation.path("series").size() >= 2, evaluation.toString());
+    String scrape = getText("/metrics");
+    assertTrue(scrape.contains("pairpulse_evaluation_trials_total"), "evaluation metrics in /metrics");
+  }
+
+  @Test
+  @Order(6)
+  void channelSegmentsAreServed() throws Exception {
+    // the scenario's channels (app, web, store) each hold thousands of baskets: all pass the cohort floor
+    JsonNode status = get("/api/v1/status");
+    List<String> segments = new java.util.ArrayList<>();
+    status.path("segments").forEach(n -> segments.add(n.asText()));
+    assertTrue(segments.containsAll(List.of("all", "channel=app", "channel=web", "channel=store")), segments.toString());
+    JsonNode all = get("/api/v1/pairs/top?horizon=baseline&count=1").path("pairs").get(0);
+    JsonNode app = get("/api/v1/pairs/top?horizon=baseline&count=1&segment=channel=app").path("pairs").get(0);
+    assertTrue(app.path("baskets").asDouble() < all.path("baskets").asDouble(), "a segment holds fewer baskets: " + app + " " + all);
+  }
+
+  @Test
+  @Order(7)
   void shutsDownCleanly() throws Exception {
     long startNanos = System.nanoTime();
     // the pipeline first (final checkpoint and commit), with the broker still up to read what it committed

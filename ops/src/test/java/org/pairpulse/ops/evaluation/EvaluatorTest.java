@@ -2,6 +2,7 @@ package org.pairpulse.ops.evaluation;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
@@ -12,6 +13,7 @@ import org.junit.jupiter.api.Test;
 import org.pairpulse.serve.floor.CohortFloor;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.suggest.Suggester;
+import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.PairTables;
@@ -20,6 +22,8 @@ import org.pairpulse.sketch.table.PairTable;
 /** Test-then-train on a tiny stream whose answers are worked out by hand. */
 class EvaluatorTest {
   static final long T0 = 1_780_272_000_000L;
+  /** The hand counts below are for the association ranking (Σ ln shrunk lift); the posterior has its own test. */
+  static final EvaluationSettings ASSOCIATION = EvaluationSettings.defaults().withRanking(SuggestionRanking.ASSOCIATION);
 
   /**
    * The training stream, all at T0: {a, b} ×10, {a} ×5, {c, d} ×10, {p} ×30, {q} ×20. In {@code recent}: n_p = 30,
@@ -70,7 +74,7 @@ class EvaluatorTest {
     FlooredTable table = trainedTable();
     FlooredTable nightly = FlooredTable.of(PairTable.empty(), CohortFloor.none());
     List<Trial> trials = new ArrayList<>();
-    Evaluator evaluator = new Evaluator(EvaluationSettings.defaults().withShare(1.0), Suggester.defaults(), trials::add);
+    Evaluator evaluator = new Evaluator(ASSOCIATION.withShare(1.0), Suggester.defaults(), trials::add);
     List<List<String>> baskets = List.of(List.of("a", "b"), List.of("a", "c"), List.of("p", "q"), List.of("c", "d", "q"));
     for (int i = 0; i < baskets.size(); i++) {
       assertTrue(evaluator.evaluate("t" + i, T0 + i, baskets.get(i), table, nightly).isPresent());
@@ -118,7 +122,7 @@ class EvaluatorTest {
     // basket {p, q}: nothing pairs with p or q; popular rank 1 (the hidden one is the most popular left)
     FlooredTable table = trainedTable();
     FlooredTable nightly = FlooredTable.of(PairTable.empty(), CohortFloor.none());
-    Evaluator evaluator = new Evaluator(EvaluationSettings.defaults().withShare(1.0), Suggester.defaults(), null);
+    Evaluator evaluator = new Evaluator(ASSOCIATION.withShare(1.0), Suggester.defaults(), null);
     evaluator.evaluate("x1", T0, List.of("a", "b"), table, nightly);
     evaluator.evaluate("x2", T0, List.of("p", "q"), table, nightly);
     Tally incremental = evaluator.tally(EvaluationMethod.INCREMENTAL);
@@ -128,6 +132,36 @@ class EvaluatorTest {
     assertEquals(0.5, popular.hitRate(1), 1e-12);
     assertEquals(1.0, popular.hitRate(5), 1e-12);
     assertEquals((1.0 / 3 + 1.0) / 2, popular.meanReciprocalRank(), 1e-12);
+  }
+
+  @Test
+  void posteriorRanksOnTheTinyStream() {
+    // N = 75. Query {a}: b = ln(10/75) + ln((10 + 10)/(15·10/75 + 10)) = ln(2/9) comes after p = ln(30/75) and
+    // q = ln(20/75), which no pair links to a (independent: their log support alone): rank 3. Query {b}: a =
+    // ln(15/75 · 20/12) = ln(1/3), after p only: rank 2. Query {p} or {q}: no published pair, so the answer is the
+    // prior alone, most frequent first without the query item: the other one is first (as for the popular baseline).
+    FlooredTable table = trainedTable();
+    List<Trial> trials = new ArrayList<>();
+    Evaluator evaluator = new Evaluator(EvaluationSettings.defaults().withShare(1.0), Suggester.defaults(), trials::add);
+    assertEquals(SuggestionRanking.POSTERIOR, evaluator.settings().ranking(), "the evaluation's default");
+    for (int i = 0; i < 40; i++) {
+      evaluator.evaluate("ab" + i, T0, List.of("a", "b"), table, table);
+      evaluator.evaluate("pq" + i, T0, List.of("p", "q"), table, table);
+    }
+    int hiddenA = 0;
+    int hiddenB = 0;
+    for (Trial trial : trials) {
+      int expected = switch (trial.hidden()) {
+        case "a" -> 2;
+        case "b" -> 3;
+        default -> 1;
+      };
+      hiddenA += trial.hidden().equals("a") ? 1 : 0;
+      hiddenB += trial.hidden().equals("b") ? 1 : 0;
+      assertEquals(expected, trial.incrementalRank(), trial.toString());
+      assertEquals(expected, trial.nightlyRank(), trial.toString());
+    }
+    assertTrue(hiddenA > 0 && hiddenB > 0, "both hidden items occurred: " + hiddenA + ", " + hiddenB);
   }
 
   @Test
@@ -153,7 +187,7 @@ class EvaluatorTest {
   void metricsAndStatusFollowTheTrials() {
     FlooredTable table = trainedTable();
     SimpleMeterRegistry registry = new SimpleMeterRegistry();
-    Evaluator evaluator = new Evaluator(EvaluationSettings.defaults().withShare(1.0), Suggester.defaults(), null);
+    Evaluator evaluator = new Evaluator(ASSOCIATION.withShare(1.0), Suggester.defaults(), null);
     assertTrue(evaluator.summary().isEmpty());
     evaluator.bindTo(registry);
     evaluator.evaluate("x1", T0, List.of("a", "b"), table, table);
@@ -170,5 +204,26 @@ class EvaluatorTest {
     assertEquals(10, summary.k());
     assertEquals(0.5, summary.hitRate(), 1e-12);
     assertEquals("recent", summary.horizon());
+  }
+
+  @Test
+  void anEvaluatorWithoutLogKeepsTheSameTotals() {
+    FlooredTable table = trainedTable();
+    List<Trial> logged = new java.util.ArrayList<>();
+    List<Trial> unlogged = new java.util.ArrayList<>();
+    Evaluator withLog = new Evaluator(ASSOCIATION.withShare(1.0), Suggester.defaults(), logged::add);
+    Evaluator withoutLog = Evaluator.withoutLog(ASSOCIATION.withShare(1.0), Suggester.defaults(), unlogged::add);
+    List<List<String>> baskets = List.of(List.of("a", "b"), List.of("p", "q"), List.of("a", "b", "c"), List.of("a"));
+    for (int i = 0; i < baskets.size(); i++) {
+      withLog.evaluate("w" + i, T0 + i, baskets.get(i), table, table);
+      withoutLog.evaluate("w" + i, T0 + i, baskets.get(i), table, table);
+    }
+    assertEquals(logged, unlogged, "the same trials");
+    assertEquals(withLog.trials(), withoutLog.trials());
+    assertEquals(withLog.summary(), withoutLog.summary());
+    assertEquals(withLog.tally(EvaluationMethod.INCREMENTAL).hitRate(10), withoutLog.summary().orElseThrow().hitRate(),
+        1e-12);
+    assertThrows(IllegalStateException.class, () -> withoutLog.tally(EvaluationMethod.POPULAR));
+    assertThrows(IllegalStateException.class, withoutLog::days);
   }
 }

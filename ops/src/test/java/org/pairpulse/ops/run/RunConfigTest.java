@@ -16,11 +16,13 @@ import java.util.Map;
 import java.util.Properties;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
+import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ops.MainTestAccess;
 import org.pairpulse.ops.monitoring.AlertRules;
 import org.pairpulse.ops.pipeline.Pipeline;
 import org.pairpulse.serve.ServeConfig;
 import org.pairpulse.sketch.engine.EngineConfig;
+import org.pairpulse.sketch.engine.PairEngine;
 
 /** The configuration file of {@code pairpulse run}: effective values, clear errors, masked secrets, its docs. */
 class RunConfigTest {
@@ -55,6 +57,20 @@ class RunConfigTest {
     assertEquals("pairpulse.alerts", settings.alertTopic());
     assertTrue(settings.createAlertTopic());
     assertEquals(List.of(), settings.segmentAttributes());
+    assertEquals(0.05, settings.evaluation().share(), "the live evaluation's share");
+    assertEquals(10, settings.evaluation().k());
+    assertEquals("recent", settings.evaluation().horizon());
+  }
+
+  @Test
+  void evaluationKeysAreChecked() throws IOException {
+    RunConfigException e = assertThrows(RunConfigException.class, () -> example(Map.of("evaluation.share", "1.5",
+        "evaluation.k", "0", "evaluation.horizon", "week")));
+    assertTrue(e.getMessage().contains("evaluation.share=1.5: out of range"), e.getMessage());
+    assertTrue(e.getMessage().contains("evaluation.k=0: out of range"), e.getMessage());
+    assertTrue(e.getMessage().contains("evaluation.horizon=week: not a horizon"), e.getMessage());
+    assertEquals(0.0, example(Map.of("evaluation.share", "0")).pipelineSettings().evaluation().share(),
+        "0 turns it off");
   }
 
   @Test
@@ -151,10 +167,34 @@ class RunConfigTest {
     run = MainTestAccess.run("run", "--config", dir.resolve("missing.properties").toString());
     assertEquals(2, run.exitCode());
     assertTrue(run.err().contains("cannot read"), run.err());
-    Files.writeString(file, "bootstrap.servers=k:9092\ntopics=t\nsegments.attributes=channel\n", StandardCharsets.UTF_8);
+    Files.writeString(file, "bootstrap.servers=k:9092\ntopics=t\nsegments.attributes=channel,sales region\n"
+        + "segments.max.values=0\nsegments.tracked.fraction=1.5\n", StandardCharsets.UTF_8);
     run = MainTestAccess.run("run", "--config", file.toString());
-    assertEquals(2, run.exitCode(), "segments are refused before anything connects");
-    assertTrue(run.err().contains("per-segment counting is not available yet"), run.err());
+    assertEquals(2, run.exitCode(), "bad segment settings are usage errors before anything connects");
+    assertTrue(run.err().contains("line 3: segments.attributes=channel,sales region: 'sales region' is not an attribute"
+        + " name"), run.err());
+    assertTrue(run.err().contains("line 4: segments.max.values=0: Value must be at least 1"), run.err());
+    assertTrue(run.err().contains("line 5: segments.tracked.fraction=1.5: must be in (0, 1]"), run.err());
+  }
+
+  @Test
+  void segmentAttributesReachIngestAndTheMemoryEstimate() throws IOException {
+    RunConfig config = example(Map.of("segments.attributes", "channel, region", "segments.max.values", "8"));
+    Pipeline.Settings settings = config.pipelineSettings();
+    assertEquals(List.of("channel", "region"), settings.segmentAttributes());
+    assertEquals(List.of("channel", "region"), new IngestConfig(settings.ingest()).segmentSettings().attributes());
+    assertEquals(8, new IngestConfig(settings.ingest()).segmentSettings().maxValuesPerAttribute());
+    // a segment engine is the all engine with a quarter of the tracked capacities: measured, it is smaller
+    long all = config.stateBytesPerPartition();
+    long segment = config.segmentStateBytes();
+    assertTrue(segment > 0 && segment < all, all + " vs " + segment);
+    EngineConfig engine = settings.engine();
+    assertEquals(segment, new PairEngine(engine.toBuilder().trackedPairCapacity(engine.trackedPairCapacity() / 4)
+        .trackedItemCapacity(engine.trackedItemCapacity() / 4).build()).stateBytes(), "a quarter of each tracked capacity");
+    String described = config.describe();
+    assertTrue(described.contains(String.format(java.util.Locale.ROOT, "up to %,d bytes of state per partition",
+        all + 16 * segment)), described);
+    assertTrue(described.contains("* segments.attributes"), described);
   }
 
   @Test

@@ -39,6 +39,7 @@ import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.floor.PairKey;
 import org.pairpulse.serve.metrics.ServeMeters;
 import org.pairpulse.serve.suggest.Suggester;
+import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.serve.suggest.SuggestionRequest;
 import org.pairpulse.serve.trend.TrendHistory;
 import org.pairpulse.sketch.horizon.HorizonSpec;
@@ -467,7 +468,7 @@ public final class ApiServer implements AutoCloseable {
   }
 
   private static final Set<String> SUGGEST_PARAMS = Set.of("items", "segment", "horizon", "measure", "count",
-      "minConfidence", "maxConfidence", "minSupport", "includeBundles");
+      "minConfidence", "maxConfidence", "minSupport", "includeBundles", "ranking");
 
   private void suggestions(Context ctx, boolean post) {
     long start = System.nanoTime();
@@ -510,9 +511,15 @@ public final class ApiServer implements AutoCloseable {
     if (minConfidence > maxConfidence) {
       throw ApiException.badRequest("minConfidence (" + minConfidence + ") is above maxConfidence (" + maxConfidence + ")");
     }
-    SuggestionRequest request = new SuggestionRequest(items, horizon(p, view), measure(p, Measure.SHRUNK_LIFT),
-        count(p, SuggestionRequest.DEFAULT_COUNT), minConfidence, maxConfidence, p.fraction("minSupport", 0.0),
-        p.bool("includeBundles", false));
+    SuggestionRequest request;
+    try {
+      request = new SuggestionRequest(items, horizon(p, view), measure(p, Measure.SHRUNK_LIFT),
+          count(p, SuggestionRequest.DEFAULT_COUNT), minConfidence, maxConfidence, p.fraction("minSupport", 0.0),
+          p.bool("includeBundles", false), SuggestionRanking.fromWireName(
+              p.one("ranking").orElse(SuggestionRequest.DEFAULT_RANKING.wireName())));
+    } catch (IllegalArgumentException e) { // an unknown ranking, or posterior with a measure that is not a lift
+      throw ApiException.badRequest(Params.shorten(e.getMessage()));
+    }
     byte[] body = cached(new CacheKey("suggestions", segment.name(), view.version(), request),
         () -> Wire.suggestions(c.suggester().suggest(view, request), segment.name()));
     json(ctx, body);

@@ -35,10 +35,19 @@ final class SuggestIndex {
     final double[] confidence;
     final double[] support;
     final boolean[] bundle;
+    /**
+     * ln s(c) = ln(n_c / N) of item id c in this horizon, NaN when its count is not published (held back by the
+     * floor, or not tracked): the prior of the posterior ranking.
+     */
+    final double[] lnSupport;
+    /** Ids of the items with a published count, most frequent first (n_c descending, then id string ascending). */
+    final int[] popular;
     private final ConcurrentHashMap<Measure, double[]> contributions = new ConcurrentHashMap<>();
 
-    Horizon(String name, int[] start, int entries) {
+    Horizon(String name, int[] start, int entries, double[] lnSupport, int[] popular) {
       this.name = name;
+      this.lnSupport = lnSupport;
+      this.popular = popular;
       this.start = start;
       this.other = new int[entries];
       this.stats = new PairStats[entries];
@@ -70,6 +79,12 @@ final class SuggestIndex {
         idOf.putIfAbsent(p.itemB(), idOf.size());
       }
     }
+    for (String h : horizonNames) {
+      // items published without a published pair: candidates of the posterior ranking only (sorted: deterministic ids)
+      for (String item : new java.util.TreeSet<>(table.items(h).keySet())) {
+        idOf.putIfAbsent(item, idOf.size());
+      }
+    }
     this.ids = idOf;
     this.names = new String[idOf.size()];
     idOf.forEach((name, id) -> names[id] = name);
@@ -78,7 +93,25 @@ final class SuggestIndex {
       for (int id = 0; id < names.length; id++) {
         start[id + 1] = start[id] + Math.min(limit, table.neighbours(names[id], h).size());
       }
-      Horizon horizon = new Horizon(h, start, start[names.length]);
+      double[] lnSupport = new double[names.length];
+      java.util.Arrays.fill(lnSupport, Double.NaN);
+      double baskets = table.baskets(h);
+      Map<String, org.pairpulse.sketch.stats.Estimate> counts = table.items(h);
+      List<Integer> published = new java.util.ArrayList<>(counts.size());
+      for (Map.Entry<String, org.pairpulse.sketch.stats.Estimate> item : counts.entrySet()) {
+        double support = item.getValue().value() / baskets;
+        if (support > 0 && !Double.isInfinite(support)) { // false for NaN (N under the floor)
+          int id = idOf.get(item.getKey());
+          lnSupport[id] = Math.log(Math.min(1.0, support));
+          published.add(id);
+        }
+      }
+      published.sort((x, y) -> {
+        int byCount = Double.compare(lnSupport[y], lnSupport[x]);
+        return byCount != 0 ? byCount : names[x].compareTo(names[y]);
+      });
+      int[] popular = published.stream().mapToInt(Integer::intValue).toArray();
+      Horizon horizon = new Horizon(h, start, start[names.length], lnSupport, popular);
       for (int id = 0; id < names.length; id++) {
         List<PairStats> row = table.neighbours(names[id], h);
         int e = start[id];

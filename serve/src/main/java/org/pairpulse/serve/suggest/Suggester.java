@@ -1,6 +1,7 @@
 package org.pairpulse.serve.suggest;
 
 import java.util.ArrayList;
+import java.util.Collections;
 import java.util.Comparator;
 import java.util.List;
 import java.util.PriorityQueue;
@@ -39,6 +40,29 @@ import org.pairpulse.sketch.table.PairStats;
  * (conviction is +∞ at confidence 1; the lift's lower bound may be 0). Directed measures
  * (confidence, conviction) are read in the direction x ⇒ c. Pairs whose measure is NaN are
  * skipped. Ties in score are broken by item id, so answers are deterministic.
+ *
+ * <h2>Rankings</h2>
+ * The sum above is the {@linkplain SuggestionRanking#ASSOCIATION association} ranking (the default): it
+ * ranks by how much the basket raises a candidate's probability, so a rare item tied to the basket comes
+ * first. The {@linkplain SuggestionRanking#POSTERIOR posterior} ranking (lift measures only) adds the
+ * candidate's own log support:
+ * <pre>
+ *   score(c) = ln s(c) + Σ_x ln m(x ⇒ c),   s(c) = n_c / N in the request's horizon
+ * </pre>
+ * which is ln P(c | basket) up to a term that does not depend on c, under the naive-Bayes assumption that
+ * the basket's items are independent given c (and overall): P(c | x₁..x_n) ∝ P(c) Π P(x_i | c) and
+ * P(x | c) = lift(x, c)·P(x) (Hastie, Tibshirani, Friedman, The Elements of Statistical Learning, 2nd ed.,
+ * 2009, section 6.6.3, "The Naive Bayes Classifier", cited from memory). It ranks by how likely the candidate is to be
+ * in the basket. A candidate reached through a pair but without a published count of its own is left out
+ * (its prior is unknown). Published items that no basket item's pair reaches are also candidates: with no
+ * published pair they are taken as independent of the basket (each term ln 1 = 0, score ln s(c)); their
+ * rules x ⇒ c then have confidence s(c) and support s(x)·s(c), which the band and the support floor test as
+ * usual (s(x) over the basket items with a published count), so with the default band 0.30–0.60 only very
+ * common items can qualify this way. A basket without any published pair therefore still gets an answer under
+ * this ranking: with no evidence of association the posterior is the prior. They are scanned
+ * most frequent first and the scan stops as soon as no further item could enter the answer; they carry no
+ * evidence rows. Bundle pairs are excluded exactly as under the association ranking, and every count read
+ * is a published (floored) one.
  */
 public final class Suggester {
   /** Default scan limit per basket item: the 500 best neighbours by the table's measure. */
@@ -95,20 +119,28 @@ public final class Suggester {
 
     /** The slot of {@code id}, claimed if new. Linear probing; ids are non-negative. */
     int slot(int id) {
+      int slot = probe(id);
+      if (keys[slot] == -1) {
+        keys[slot] = id;
+        used[usedCount++] = slot;
+      }
+      return slot;
+    }
+
+    /** The slot of {@code id}, or -1 when it has none (nothing is claimed). */
+    int find(int id) {
+      int slot = probe(id);
+      return keys[slot] == id ? slot : -1;
+    }
+
+    /** The slot holding {@code id}, or the empty slot where it would go. */
+    private int probe(int id) {
       int mask = keys.length - 1;
       int slot = (id * 0x9E3779B1) >>> 7 & mask;
-      while (true) {
-        int key = keys[slot];
-        if (key == id) {
-          return slot;
-        }
-        if (key == -1) {
-          keys[slot] = id;
-          used[usedCount++] = slot;
-          return slot;
-        }
+      while (keys[slot] != id && keys[slot] != -1) {
         slot = (slot + 1) & mask;
       }
+      return slot;
     }
 
     void clear() {
@@ -133,8 +165,8 @@ public final class Suggester {
   });
 
   /**
-   * Suggestions for {@code request} from {@code table}. An unknown horizon, or a basket whose items
-   * are all unknown, gives an empty list (never an exception).
+   * Suggestions for {@code request} from {@code table}. An unknown horizon, or under the association ranking a
+   * basket whose items are all unknown, gives an empty list (never an exception).
    */
   public SuggestionResult suggest(FlooredTable table, SuggestionRequest request) {
     List<String> basket = request.basket();
@@ -161,7 +193,8 @@ public final class Suggester {
       sc.basket[known++] = id;
       entries += h.start[id + 1] - h.start[id];
     }
-    sc.ensure(entries + basket.size());
+    boolean posterior = request.ranking() == SuggestionRanking.POSTERIOR;
+    sc.ensure(entries + basket.size() + (posterior ? h.popular.length : 0));
     try {
       for (int b = 0; b < known; b++) {
         sc.flags[sc.slot(sc.basket[b])] = -1; // basket items are never candidates
@@ -193,6 +226,9 @@ public final class Suggester {
           sc.flags[slot] = f;
         }
       }
+      if (posterior) {
+        addPriors(h, sc);
+      }
       // best `count` eligible candidates: score, then id string ascending
       String[] names = index.names;
       int[] keys = sc.keys;
@@ -214,6 +250,9 @@ public final class Suggester {
           best.poll();
         }
       }
+      if (posterior) {
+        addIndependent(request, index, h, sc, best);
+      }
       List<Integer> ranked = new ArrayList<>(best);
       ranked.sort(worstFirst.reversed());
       List<Suggestion> suggestions = new ArrayList<>(ranked.size());
@@ -223,6 +262,62 @@ public final class Suggester {
       return new SuggestionResult(basket, unknown, request.horizon(), measure.wireName(), table.version(), suggestions);
     } finally {
       sc.clear();
+    }
+  }
+
+  /** Posterior ranking: adds ln s(c) to every candidate reached through a pair; without a published s(c) it is out. */
+  private static void addPriors(SuggestIndex.Horizon h, Scratch sc) {
+    for (int i = 0; i < sc.usedCount; i++) {
+      int slot = sc.used[i];
+      if (sc.flags[slot] < 0) {
+        continue; // a basket item
+      }
+      double prior = h.lnSupport[sc.keys[slot]];
+      if (Double.isNaN(prior)) {
+        sc.flags[slot] &= ~ELIGIBLE;
+      } else {
+        sc.scores[slot] += prior;
+      }
+    }
+  }
+
+  /**
+   * Posterior ranking: the published items that no basket item's pair reached, taken as independent of the basket
+   * (every lift 1, score ln s(c)), most frequent first, until no further one can enter the best {@code count}. Such an
+   * item's rules x ⇒ c have confidence s(c) and support s(x)·s(c) under independence; it is eligible when s(c) lies in
+   * the band and the largest s(x)·s(c) over the basket reaches the support floor.
+   */
+  private static void addIndependent(SuggestionRequest request, SuggestIndex index, SuggestIndex.Horizon h, Scratch sc,
+      PriorityQueue<Integer> best) {
+    String[] names = index.names;
+    double maxBasketSupport = 0;
+    for (String item : request.basket()) {
+      Integer id = index.ids.get(item);
+      double lnS = id == null ? Double.NaN : h.lnSupport[id];
+      if (!Double.isNaN(lnS)) {
+        maxBasketSupport = Math.max(maxBasketSupport, Math.exp(lnS));
+      }
+    }
+    for (int id : h.popular) {
+      double prior = h.lnSupport[id];
+      if (best.size() >= request.count() && prior < sc.scores[best.peek()]) {
+        return; // sorted by prior: no later item can enter
+      }
+      if (sc.find(id) >= 0 || Collections.binarySearch(request.basket(), names[id]) >= 0) {
+        continue; // a candidate already scored, or a basket item (the basket is sorted)
+      }
+      double support = Math.exp(prior);
+      if (!(support >= request.minConfidence() && support <= request.maxConfidence()
+          && maxBasketSupport * support >= request.minSupport())) {
+        continue;
+      }
+      int slot = sc.slot(id);
+      sc.scores[slot] = prior;
+      sc.flags[slot] = SEEN | ELIGIBLE;
+      best.add(slot);
+      if (best.size() > request.count()) {
+        best.poll();
+      }
     }
   }
 

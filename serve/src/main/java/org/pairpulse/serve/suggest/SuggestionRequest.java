@@ -19,9 +19,13 @@ import org.pairpulse.sketch.stats.Measure;
  * @param maxConfidence upper end of the confidence band, in [minConfidence, 1]; default {@value #DEFAULT_MAX_CONFIDENCE}
  * @param minSupport the support floor, in [0, 1]; default 0
  * @param includeBundles whether bundle pairs may produce suggestions; default false
+ * @param ranking how eligible candidates are ordered; default {@link #DEFAULT_RANKING}. {@code posterior} needs a
+ *     lift measure ({@code lift}, {@code shrunk_lift}, {@code lift_lower}): its per-pair terms estimate
+ *     P(x | c) / P(x)
  */
 public record SuggestionRequest(List<String> basket, String horizon, Measure measure, int count,
-    double minConfidence, double maxConfidence, double minSupport, boolean includeBundles) {
+    double minConfidence, double maxConfidence, double minSupport, boolean includeBundles,
+    SuggestionRanking ranking) {
 
   public static final String DEFAULT_HORIZON = "recent";
   public static final int DEFAULT_COUNT = 10;
@@ -31,12 +35,25 @@ public record SuggestionRequest(List<String> basket, String horizon, Measure mea
    */
   public static final double DEFAULT_MIN_CONFIDENCE = 0.30;
   public static final double DEFAULT_MAX_CONFIDENCE = 0.60;
+  /** The default ranking (see README-serve for the measurement behind the choice). */
+  public static final SuggestionRanking DEFAULT_RANKING = SuggestionRanking.ASSOCIATION;
+
+  /** A request with the default ranking. */
+  public SuggestionRequest(List<String> basket, String horizon, Measure measure, int count, double minConfidence,
+      double maxConfidence, double minSupport, boolean includeBundles) {
+    this(basket, horizon, measure, count, minConfidence, maxConfidence, minSupport, includeBundles, DEFAULT_RANKING);
+  }
 
   /** @throws IllegalArgumentException when an option is outside its range (see the record doc) */
   public SuggestionRequest {
     Objects.requireNonNull(basket, "basket");
     Objects.requireNonNull(horizon, "horizon");
     Objects.requireNonNull(measure, "measure");
+    Objects.requireNonNull(ranking, "ranking");
+    if (ranking == SuggestionRanking.POSTERIOR && !isLiftMeasure(measure)) {
+      throw new IllegalArgumentException("ranking 'posterior' needs a lift measure (lift, shrunk_lift, lift_lower), got '"
+          + measure.wireName() + "'");
+    }
     TreeSet<String> distinct = new TreeSet<>();
     for (String item : basket) {
       if (item == null || item.isEmpty()) {
@@ -63,6 +80,11 @@ public record SuggestionRequest(List<String> basket, String horizon, Measure mea
     }
   }
 
+  /** Whether {@code measure} estimates P(x | c) / P(x), the per-pair factor of the naive-Bayes posterior. */
+  public static boolean isLiftMeasure(Measure measure) {
+    return measure == Measure.LIFT || measure == Measure.SHRUNK_LIFT || measure == Measure.LIFT_LOWER;
+  }
+
   /** A request with every default for these items. */
   public static SuggestionRequest of(String... items) {
     return of(List.of(items));
@@ -71,31 +93,36 @@ public record SuggestionRequest(List<String> basket, String horizon, Measure mea
   /** A request with every default for these items. */
   public static SuggestionRequest of(List<String> items) {
     return new SuggestionRequest(items, DEFAULT_HORIZON, Measure.SHRUNK_LIFT, DEFAULT_COUNT,
-        DEFAULT_MIN_CONFIDENCE, DEFAULT_MAX_CONFIDENCE, 0.0, false);
+        DEFAULT_MIN_CONFIDENCE, DEFAULT_MAX_CONFIDENCE, 0.0, false, DEFAULT_RANKING);
   }
 
   public SuggestionRequest withHorizon(String value) {
-    return new SuggestionRequest(basket, value, measure, count, minConfidence, maxConfidence, minSupport, includeBundles);
+    return new SuggestionRequest(basket, value, measure, count, minConfidence, maxConfidence, minSupport, includeBundles, ranking);
   }
 
   public SuggestionRequest withMeasure(Measure value) {
-    return new SuggestionRequest(basket, horizon, value, count, minConfidence, maxConfidence, minSupport, includeBundles);
+    return new SuggestionRequest(basket, horizon, value, count, minConfidence, maxConfidence, minSupport, includeBundles, ranking);
   }
 
   public SuggestionRequest withCount(int value) {
-    return new SuggestionRequest(basket, horizon, measure, value, minConfidence, maxConfidence, minSupport, includeBundles);
+    return new SuggestionRequest(basket, horizon, measure, value, minConfidence, maxConfidence, minSupport, includeBundles, ranking);
   }
 
   /** The confidence band [min, max]; (0, 1) switches it off. */
   public SuggestionRequest withConfidenceBand(double min, double max) {
-    return new SuggestionRequest(basket, horizon, measure, count, min, max, minSupport, includeBundles);
+    return new SuggestionRequest(basket, horizon, measure, count, min, max, minSupport, includeBundles, ranking);
   }
 
   public SuggestionRequest withMinSupport(double value) {
-    return new SuggestionRequest(basket, horizon, measure, count, minConfidence, maxConfidence, value, includeBundles);
+    return new SuggestionRequest(basket, horizon, measure, count, minConfidence, maxConfidence, value, includeBundles, ranking);
   }
 
   public SuggestionRequest withIncludeBundles(boolean value) {
-    return new SuggestionRequest(basket, horizon, measure, count, minConfidence, maxConfidence, minSupport, value);
+    return new SuggestionRequest(basket, horizon, measure, count, minConfidence, maxConfidence, minSupport, value, ranking);
+  }
+
+  public SuggestionRequest withRanking(SuggestionRanking value) {
+    return new SuggestionRequest(basket, horizon, measure, count, minConfidence, maxConfidence, minSupport, includeBundles,
+        value);
   }
 }

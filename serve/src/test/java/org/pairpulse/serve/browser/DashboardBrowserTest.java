@@ -14,6 +14,7 @@ import java.nio.file.StandardCopyOption;
 import java.time.Duration;
 import java.util.List;
 import java.util.Map;
+import java.util.Optional;
 import java.util.concurrent.atomic.AtomicReference;
 import java.util.logging.Level;
 import java.util.stream.Collectors;
@@ -38,8 +39,10 @@ import org.openqa.selenium.logging.LogEntry;
 import org.openqa.selenium.logging.LogType;
 import org.openqa.selenium.logging.LoggingPreferences;
 import org.openqa.selenium.support.ui.WebDriverWait;
+import org.pairpulse.serve.EvaluationStatus;
 import org.pairpulse.serve.IngestHealth;
 import org.pairpulse.serve.ServeConfig;
+import org.pairpulse.serve.EvaluationStatus;
 import org.pairpulse.serve.ServeServer;
 import org.pairpulse.serve.SketchHealth;
 import org.pairpulse.serve.fixtures.Http;
@@ -68,6 +71,21 @@ class DashboardBrowserTest {
   private static Http http;
   private static long version;
 
+  /** A fixed evaluation summary: its values are arbitrary, the test checks how the tile renders them. */
+  private static final EvaluationStatus.Summary EVALUATION = evaluationSummary();
+
+  private static EvaluationStatus.Summary evaluationSummary() {
+    List<EvaluationStatus.Period> series = new java.util.ArrayList<>();
+    for (int day = 0; day < 6; day++) {
+      series.add(new EvaluationStatus.Period(KestrelShop.END - (6 - day) * 86_400_000L, 400 + day,
+          Map.of("incremental", 0.30 + 0.01 * day, "nightly", 0.27, "popular", 0.20 - 0.01 * day)));
+    }
+    return new EvaluationStatus.Summary(2_406, 10, 0.325, 0.171, "recent", List.of(
+        new EvaluationStatus.MethodScore("incremental", 0.325, 0.171),
+        new EvaluationStatus.MethodScore("nightly", 0.27, 0.15),
+        new EvaluationStatus.MethodScore("popular", 0.175, 0.06)), series);
+  }
+
   @BeforeAll
   static void start() throws IOException {
     requireBrowser();
@@ -78,7 +96,8 @@ class DashboardBrowserTest {
         Map.of("late", 14L, "invalid", 3L), KestrelShop.END, "");
     server = ServeServer.builder().config(ServeConfig.defaults().with(ServeConfig.PORT, 0)
             .with(ServeConfig.WATCH_MILLIS, 60_000))
-        .segment("all", tables).ingestStatus(() -> ingest).sketchHealth(sketch::get).build().start();
+        .segment("all", tables).ingestStatus(() -> ingest).sketchHealth(sketch::get).evaluation(() -> Optional.of(EVALUATION))
+        .build().start();
     KestrelShop.play(stream, 4000, System::currentTimeMillis, table -> {
       sketch.set(SketchHealth.capture(stream.engine())); // on the engine's writer thread, as the wiring does
       tables.publish(table);
@@ -207,6 +226,20 @@ class DashboardBrowserTest {
 
   @Test
   @Order(4)
+  void evaluationTileShowsTheBaselinesAndTheirCourse() {
+    WebElement tile = driver.findElement(By.id("tile-evaluation"));
+    assertTrue(tile.isDisplayed());
+    assertEquals("32.5 % hit rate", driver.findElement(By.id("evaluation-rate")).getText());
+    assertEquals("served 32.5 % · daily rebuild 27.0 % · most popular 17.5 %",
+        driver.findElement(By.id("evaluation-methods")).getText());
+    assertTrue(driver.findElement(By.id("evaluation-detail")).getText().contains("2,406 baskets"));
+    WebElement chart = driver.findElement(By.id("evaluation-chart"));
+    assertEquals("6", chart.getDomAttribute("data-points"));
+    assertTrue(paintedPixels(chart.findElement(By.tagName("canvas"))) > 100, "the evaluation chart drew its lines");
+  }
+
+  @Test
+  @Order(5)
   void noConsoleErrors() {
     List<LogEntry> entries = driver.manage().logs().get(LogType.BROWSER).getAll();
     List<String> severe = entries.stream().filter(e -> e.getLevel().intValue() >= Level.WARNING.intValue())

@@ -77,6 +77,9 @@ final class SimpleSuggester {
         }
       }
     }
+    if (request.ranking() == SuggestionRanking.POSTERIOR) {
+      posterior(table, request, inBasket, candidates);
+    }
     Comparator<Candidate> worstFirst = Comparator.comparingDouble((Candidate c) -> c.score)
         .thenComparing((Candidate c) -> c.item, Comparator.reverseOrder());
     PriorityQueue<Candidate> best = new PriorityQueue<>(request.count() + 1, worstFirst);
@@ -96,6 +99,48 @@ final class SimpleSuggester {
       suggestions.add(new Suggestion(candidate.item, candidate.score, evidence(request, candidate)));
     }
     return new SuggestionResult(basket, unknown, request.horizon(), measure.wireName(), table.version(), suggestions);
+  }
+
+  /** ln(n_c / N) of a published item, NaN otherwise: the posterior ranking's prior. */
+  private static double lnSupport(FlooredTable table, String item, String horizon) {
+    double support = table.itemCount(item, horizon).map(e -> e.value()).orElse(Double.NaN) / table.baskets(horizon);
+    return support > 0 && !Double.isInfinite(support) ? Math.log(Math.min(1.0, support)) : Double.NaN;
+  }
+
+  /**
+   * The posterior ranking, obviously: every candidate reached through a pair gets ln s(c) (or is dropped without
+   * one); every other published item is a candidate scored ln s(c), eligible by its independence estimates.
+   */
+  private static void posterior(FlooredTable table, SuggestionRequest request, Set<String> inBasket,
+      Map<String, Candidate> candidates) {
+    String horizon = request.horizon();
+    for (Candidate candidate : candidates.values()) {
+      double prior = lnSupport(table, candidate.item, horizon);
+      if (Double.isNaN(prior)) {
+        candidate.eligible = false;
+      } else {
+        candidate.score += prior;
+      }
+    }
+    double maxBasketSupport = 0;
+    for (String item : inBasket) {
+      double prior = lnSupport(table, item, horizon);
+      if (!Double.isNaN(prior)) {
+        maxBasketSupport = Math.max(maxBasketSupport, Math.exp(prior));
+      }
+    }
+    for (String item : table.items(horizon).keySet()) {
+      double prior = lnSupport(table, item, horizon);
+      if (inBasket.contains(item) || candidates.containsKey(item) || Double.isNaN(prior)) {
+        continue;
+      }
+      double support = Math.exp(prior);
+      Candidate candidate = new Candidate(item);
+      candidate.score = prior;
+      candidate.eligible = support >= request.minConfidence() && support <= request.maxConfidence()
+          && maxBasketSupport * support >= request.minSupport();
+      candidates.put(item, candidate);
+    }
   }
 
   private static List<Evidence> evidence(SuggestionRequest request, Candidate candidate) {

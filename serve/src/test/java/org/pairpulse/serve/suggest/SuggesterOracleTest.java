@@ -19,6 +19,7 @@ import org.pairpulse.sketch.table.PairTable;
  * (scores to the last bit, evidence, order) for random baskets and options over a real engine's table.
  */
 class SuggesterOracleTest {
+  private static final Measure[] LIFT_MEASURES = {Measure.LIFT, Measure.SHRUNK_LIFT, Measure.LIFT_LOWER};
 
   @Test
   void indexedSuggesterEqualsTheOracle() {
@@ -31,6 +32,8 @@ class SuggesterOracleTest {
     Measure[] measures = Measure.values();
     String[] horizons = {"recent", "day", "baseline", "nope"};
     int nonEmpty = 0;
+    int posteriorNonEmpty = 0;
+    int independentAnswers = 0;
     for (double floor : new double[] {0, 50}) {
       FlooredTable view = FlooredTable.of(table, CohortFloor.of(floor));
       for (int cap : new int[] {3, 500}) {
@@ -50,14 +53,29 @@ class SuggesterOracleTest {
               .withConfidenceBand(low, low + (1 - low) * random.nextDouble())
               .withMinSupport(random.nextInt(4) == 0 ? 0.01 : 0)
               .withIncludeBundles(random.nextBoolean());
+          if (random.nextInt(3) == 0) { // the posterior ranking, with one of the lift measures it needs
+            request = request.withMeasure(LIFT_MEASURES[random.nextInt(LIFT_MEASURES.length)])
+                .withRanking(SuggestionRanking.POSTERIOR);
+            if (random.nextBoolean()) {
+              request = request.withConfidenceBand(0, 1); // no band: independent items may enter
+            }
+          }
           SuggestionResult expected = oracle.suggest(view, request);
           assertEquals(expected, fast.suggest(view, request), request.toString());
           if (!expected.suggestions().isEmpty()) {
             nonEmpty++;
+            if (request.ranking() == SuggestionRanking.POSTERIOR) {
+              posteriorNonEmpty++;
+              if (expected.suggestions().stream().anyMatch(x -> x.evidence().isEmpty())) {
+                independentAnswers++;
+              }
+            }
           }
         }
       }
     }
     assertTrue(nonEmpty > 200, "the comparison covered real answers: " + nonEmpty);
+    assertTrue(posteriorNonEmpty > 50, "the posterior ranking was compared on real answers: " + posteriorNonEmpty);
+    assertTrue(independentAnswers > 10, "answers with items that no pair reached: " + independentAnswers);
   }
 }

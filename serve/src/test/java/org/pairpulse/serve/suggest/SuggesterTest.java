@@ -161,6 +161,95 @@ class SuggesterTest {
   }
 
   @Test
+  void posteriorRankingAddsLogSupportAndFlipsTheOrder() {
+    FlooredTable table = open(shop().build(1));
+    SuggestionRequest posterior = SuggestionRequest.of("a").withRanking(SuggestionRanking.POSTERIOR);
+    // in the band (a⇒b, a⇒c at 0.4): b = ln(0.2 · 5/3) = ln(1/3) beats c = ln(0.05 · 10/3) = ln(1/6),
+    // the reverse of the association ranking (c first, see above)
+    SuggestionResult result = suggester.suggest(table, posterior);
+    assertEquals(List.of("b", "c"), result.suggestions().stream().map(Suggestion::item).toList());
+    assertEquals(Math.log(0.2) + Math.log(5.0 / 3), result.suggestions().get(0).score(), EPS);
+    assertEquals(Math.log(0.05) + Math.log(10.0 / 3), result.suggestions().get(1).score(), EPS);
+    // without a band: d = ln(0.4 · 20/50) = ln 0.16, then e and x, which no pair with a reaches, as independent
+    // items: their score is their log support alone and they carry no evidence
+    SuggestionResult open = suggester.suggest(table, posterior.withConfidenceBand(0, 1));
+    assertEquals(List.of("b", "c", "d", "e", "x"), open.suggestions().stream().map(Suggestion::item).toList());
+    assertEquals(Math.log(0.16), open.suggestions().get(2).score(), EPS);
+    assertEquals(Math.log(0.1), open.suggestions().get(3).score(), EPS);
+    assertEquals(Math.log(0.08), open.suggestions().get(4).score(), EPS);
+    assertTrue(open.suggestions().get(3).evidence().isEmpty());
+    // the count cuts the independent items first: they come last here
+    assertEquals(List.of("b", "c", "d"), suggester.suggest(table, posterior.withConfidenceBand(0, 1).withCount(3))
+        .suggestions().stream().map(Suggestion::item).toList());
+  }
+
+  @Test
+  void posteriorWithRawLiftIsBayesRule() {
+    // Bayes' rule: ln s(c) + ln lift(x, c) = ln(n_c/N · N·n_xc/(n_x·n_c)) = ln(n_xc / n_x) = ln P(c | x), the
+    // confidence x ⇒ c, for a single basket item; with two items the naive-Bayes product adds the second log lift
+    FlooredTable table = open(shop().build(1));
+    SuggestionRequest request = SuggestionRequest.of("a").withMeasure(Measure.LIFT)
+        .withRanking(SuggestionRanking.POSTERIOR).withConfidenceBand(0, 1);
+    for (Suggestion s : suggester.suggest(table, request).suggestions()) {
+      double expected = switch (s.item()) {
+        case "b", "c" -> Math.log(0.4); // 40/100
+        case "d" -> Math.log(0.1); // 10/100
+        case "e" -> Math.log(0.1); // no pair: independent, P(e | a) = P(e) = 100/1000
+        case "x" -> Math.log(0.08);
+        default -> throw new AssertionError(s.item());
+      };
+      assertEquals(expected, s.score(), EPS, s.item());
+    }
+    // {a, x}: b = ln(200/1000) + ln(1000·40/(100·200)) + ln(1000·32/(80·200)) = ln(0.2 · 2 · 2) = ln 0.8
+    Suggestion b = suggester.suggest(table, SuggestionRequest.of("a", "x").withMeasure(Measure.LIFT)
+        .withRanking(SuggestionRanking.POSTERIOR).withConfidenceBand(0, 1)).suggestions().stream()
+        .filter(s -> s.item().equals("b")).findFirst().orElseThrow();
+    assertEquals(Math.log(0.8), b.score(), EPS);
+  }
+
+  @Test
+  void posteriorKeepsBundlesOutAndReadsOnlyPublishedCounts() {
+    PairTable bundles = Tables.defaultHorizons().baskets(1000).item("phone", 100).item("case", 98)
+        .item("charger", 300).pair("phone", "case", 96).pair("phone", "charger", 45).build(1);
+    SuggestionRequest request = SuggestionRequest.of("phone").withRanking(SuggestionRanking.POSTERIOR)
+        .withConfidenceBand(0, 1);
+    assertEquals(List.of("charger"), suggester.suggest(open(bundles), request).suggestions().stream()
+        .map(Suggestion::item).toList());
+    assertEquals(List.of("case", "charger"), suggester.suggest(open(bundles), request.withIncludeBundles(true))
+        .suggestions().stream().map(Suggestion::item).toList());
+    // under the floor ab (40 baskets) is held back: b is suggested as independent of a, its score owes nothing to
+    // the hidden pair; an item under the floor itself is never suggested
+    PairTable thin = Tables.defaultHorizons().baskets(1000).item("a", 100).item("b", 200).item("c", 150)
+        .item("rare", 20).pair("a", "b", 40).pair("a", "c", 60).build(1);
+    SuggestionResult floored = suggester.suggest(FlooredTable.of(thin, CohortFloor.defaults()),
+        SuggestionRequest.of("a").withRanking(SuggestionRanking.POSTERIOR).withConfidenceBand(0, 1));
+    assertEquals(List.of("c", "b"), floored.suggestions().stream().map(Suggestion::item).toList());
+    assertEquals(Math.log(0.2), floored.suggestions().get(1).score(), EPS);
+    assertTrue(floored.suggestions().get(1).evidence().isEmpty());
+  }
+
+  @Test
+  void posteriorAnswersABasketWithoutPublishedPairsWithThePrior() {
+    // no evidence of association: the posterior is the prior, most frequent first (the association ranking says
+    // nothing); an item of the basket is never suggested, known or not
+    FlooredTable table = open(shop().build(1));
+    SuggestionRequest request = SuggestionRequest.of("nope").withRanking(SuggestionRanking.POSTERIOR)
+        .withConfidenceBand(0, 1).withCount(3);
+    SuggestionResult result = suggester.suggest(table, request);
+    assertEquals(List.of("d", "b", "a"), result.suggestions().stream().map(Suggestion::item).toList());
+    assertEquals(List.of("nope"), result.unknownItems());
+    // {d, nope}: a, d's only neighbour, falls to ln(0.1 · 20/50) = ln 0.04 (d leans away from it), below the
+    // independent b (0.2), e (0.1), x (0.08) and c (0.05)
+    SuggestionResult withD = suggester.suggest(table, SuggestionRequest.of("d", "nope")
+        .withRanking(SuggestionRanking.POSTERIOR).withConfidenceBand(0, 1));
+    assertEquals(List.of("b", "e", "x", "c", "a"), withD.suggestions().stream().map(Suggestion::item).toList());
+    assertEquals(Math.log(0.04), withD.suggestions().get(4).score(), EPS);
+    assertTrue(suggester.suggest(table, SuggestionRequest.of("nope")).suggestions().isEmpty(), "association: nothing");
+    // a support floor needs a basket item with a published count: s(x)·s(c) is unknown otherwise
+    assertTrue(suggester.suggest(table, request.withMinSupport(0.001)).suggestions().isEmpty());
+  }
+
+  @Test
   void requestValidation() {
     assertThrows(IllegalArgumentException.class, () -> SuggestionRequest.of(List.of()));
     assertThrows(IllegalArgumentException.class, () -> SuggestionRequest.of("a", ""));
@@ -169,5 +258,11 @@ class SuggesterTest {
     assertThrows(IllegalArgumentException.class, () -> SuggestionRequest.of("a").withConfidenceBand(-0.1, 0.6));
     assertThrows(IllegalArgumentException.class, () -> SuggestionRequest.of("a").withMinSupport(1.5));
     assertThrows(IllegalArgumentException.class, () -> new Suggester(0));
+    // the posterior needs a lift measure (its terms estimate P(x | c) / P(x))
+    IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
+        () -> SuggestionRequest.of("a").withMeasure(Measure.CONFIDENCE).withRanking(SuggestionRanking.POSTERIOR));
+    assertTrue(e.getMessage().contains("lift"), e.getMessage());
+    assertThrows(IllegalArgumentException.class, () -> SuggestionRanking.fromWireName("popular"));
+    assertEquals(SuggestionRanking.POSTERIOR, SuggestionRanking.fromWireName("posterior"));
   }
 }
