@@ -12,6 +12,7 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.EnumMap;
+import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 import java.util.Objects;
@@ -21,13 +22,16 @@ import org.pairpulse.ingest.event.DeadLetterReason;
 import org.pairpulse.ingest.event.EventDecoder;
 import org.pairpulse.ingest.event.EventLimits;
 import org.pairpulse.ingest.event.InvalidEventException;
+import org.pairpulse.ingest.front.BasketSink;
 import org.pairpulse.ingest.front.FrontSettings;
 import org.pairpulse.ingest.front.PartitionFront;
 import org.pairpulse.sketch.engine.PairEngine;
 
 /**
  * Backfill and offline runs: reads files with the same decoding, checks, dedupe and assembly as the Kafka
- * path, into one engine (a file is one ordered stream, like one partition).
+ * path, into one engine or any {@link BasketSink} (a file is one ordered stream, like one partition). A sink
+ * sees each basket with its id and attributes (whole baskets; assembled ones carry none) before anything
+ * counts it: the hook a replay that evaluates before it trains needs.
  *
  * <ul>
  *   <li>JSON lines ({@code .jsonl}, {@code .ndjson}, {@code .json}): one event per line, plain or a
@@ -50,7 +54,7 @@ public final class FileSource {
   private final EventDecoder decoder;
   private final CsvLineReader csv;
   private final PartitionFront front;
-  private final PairEngine engine;
+  private final BasketSink sink;
   private final Writer deadLetterWriter;
 
   /**
@@ -58,11 +62,23 @@ public final class FileSource {
    * @param deadLetterWriter where unusable lines go as JSON lines, or null to only count them
    */
   public FileSource(EventLimits limits, FrontSettings settings, PairEngine engine, Writer deadLetterWriter) {
+    this(limits, settings, engineSink(Objects.requireNonNull(engine, "engine")), deadLetterWriter);
+  }
+
+  /**
+   * @param sink where the baskets go, in order, on the caller's thread
+   * @param deadLetterWriter where unusable lines go as JSON lines, or null to only count them
+   */
+  public FileSource(EventLimits limits, FrontSettings settings, BasketSink sink, Writer deadLetterWriter) {
     this.decoder = new EventDecoder(limits);
     this.csv = new CsvLineReader(limits);
     this.front = new PartitionFront(settings);
-    this.engine = Objects.requireNonNull(engine, "engine");
+    this.sink = Objects.requireNonNull(sink, "sink");
     this.deadLetterWriter = deadLetterWriter;
+  }
+
+  private static BasketSink engineSink(PairEngine engine) {
+    return (id, eventMillis, items) -> engine.addBasket(eventMillis, items.toArray(new String[0]));
   }
 
   /** The front (its watermark and counters) shared by every file read through this source. */
@@ -81,6 +97,18 @@ public final class FileSource {
     long lines = 0;
     long[] baskets = new long[1];
     long duplicates = 0;
+    BasketSink counted = new BasketSink() {
+      @Override
+      public void basket(String basketId, long eventMillis, List<String> items) {
+        basket(basketId, eventMillis, items, Map.of());
+      }
+
+      @Override
+      public void basket(String basketId, long eventMillis, List<String> items, Map<String, String> attributes) {
+        sink.basket(basketId, eventMillis, items, attributes);
+        baskets[0]++;
+      }
+    };
     InputStream raw = Files.newInputStream(file);
     InputStream counting = new FilterInputStream(raw) {
       @Override
@@ -129,7 +157,7 @@ public final class FileSource {
           deadLetter(deadLetters, e.reason(), e.detail(), file, lines, line);
           continue;
         }
-        switch (front.accept(event, (id, t, items) -> add(t, items, baskets))) {
+        switch (front.accept(event, counted)) {
           case ACCEPTED -> { }
           case DUPLICATE -> duplicates++;
           case LATE -> deadLetter(deadLetters, DeadLetterReason.LATE, "event time before the watermark " + front.watermarkMillis(),
@@ -143,7 +171,7 @@ public final class FileSource {
         }
       }
     }
-    front.flush((id, t, items) -> add(t, items, baskets));
+    front.flush(counted);
     if (progress != null) {
       progress.finish(bytesRead[0], lines, baskets[0], sum(deadLetters));
     }
@@ -151,11 +179,6 @@ public final class FileSource {
       deadLetterWriter.flush();
     }
     return new Result(lines, baskets[0], duplicates, deadLetters);
-  }
-
-  private void add(long eventMillis, java.util.List<String> items, long[] baskets) {
-    engine.addBasket(eventMillis, items.toArray(new String[0]));
-    baskets[0]++;
   }
 
   private void deadLetter(Map<DeadLetterReason, Long> counts, DeadLetterReason reason, String detail, Path file, long line,

@@ -511,7 +511,11 @@ public final class Ingestor implements AutoCloseable {
 
   private void refresh(long now) {
     lastRefreshMillis = now;
-    pendingRefresh = worker.refresh(++tableVersion, now).thenAccept(this::publish);
+    long startNanos = System.nanoTime();
+    pendingRefresh = worker.refresh(++tableVersion, now).thenAccept(tables -> {
+      metrics.refreshed(System.nanoTime() - startNanos); // before the tables are visible: a reader sees both
+      publish(tables);
+    });
   }
 
   /** Publishes a refresh: all, every segment in it, and an empty table for known segments no partition holds now. */

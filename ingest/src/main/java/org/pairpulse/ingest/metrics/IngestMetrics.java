@@ -46,6 +46,9 @@ import org.pairpulse.sketch.time.EventClock;
 public final class IngestMetrics {
   public static final String PREFIX = "pairpulse.ingest.";
 
+  /** The refresh timer's name, shared with serve's status metrics ({@code pairpulse_refresh_duration_seconds}). */
+  public static final String REFRESH_DURATION = "pairpulse.refresh.duration";
+
   private final MeterRegistry registry;
   private final EventClock clock;
   private final Counter records;
@@ -59,6 +62,7 @@ public final class IngestMetrics {
   private final Map<DeadLetterReason, Counter> deadLetters = new EnumMap<>(DeadLetterReason.class);
   private final DistributionSummary checkpointSize;
   private final Timer checkpointDuration;
+  private final Timer refreshDuration;
   private final Map<String, Gauge> lagGauges = new ConcurrentHashMap<>();
   private final Map<String, AtomicLong> lags = new ConcurrentHashMap<>();
   private final AtomicLong stateBytes = new AtomicLong();
@@ -89,6 +93,9 @@ public final class IngestMetrics {
     }
     checkpointSize = DistributionSummary.builder(PREFIX + "checkpoint.size").baseUnit("bytes").register(registry);
     checkpointDuration = Timer.builder(PREFIX + "checkpoint.duration").register(registry);
+    // the name serve reports as the refresh duration: ingest is the refresher when ops wires the two
+    refreshDuration = Timer.builder(REFRESH_DURATION).description("Time to build and publish one pair table")
+        .register(registry);
     Gauge.builder(PREFIX + "checkpoint.age", this, m -> (m.clock.millis() - m.lastCheckpointMillis) / 1000.0)
         .baseUnit("seconds").register(registry);
     Gauge.builder(PREFIX + "state.bytes", stateBytes, AtomicLong::get).baseUnit("bytes").register(registry);
@@ -128,6 +135,11 @@ public final class IngestMetrics {
 
   public void restored() {
     restores.increment();
+  }
+
+  /** One refresh (merge of the partitions' engines per segment and the pair tables) took {@code nanos}. */
+  public void refreshed(long nanos) {
+    refreshDuration.record(nanos, TimeUnit.NANOSECONDS);
   }
 
   public void checkpointed(long bytes, long nanos) {

@@ -19,6 +19,7 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.pairpulse.ingest.event.DeadLetterReason;
 import org.pairpulse.ingest.event.EventLimits;
+import org.pairpulse.ingest.front.BasketSink;
 import org.pairpulse.ingest.front.FrontSettings;
 import org.pairpulse.ingest.testkit.Workload;
 import org.pairpulse.sketch.engine.PairEngine;
@@ -27,6 +28,33 @@ class FileSourceTest {
   static final long T = Instant.parse("2026-12-01T10:00:00Z").toEpochMilli();
   final EventLimits limits = EventLimits.defaults();
   final FrontSettings settings = new FrontSettings(3_600_000, 3_600_000, 1000, 60_000, 3_600_000, 1000, 50);
+
+  @Test
+  void aSinkSeesEachBasketWithItsIdAndAttributes(@TempDir Path dir) throws Exception {
+    Path file = dir.resolve("orders.jsonl");
+    Files.write(file, List.of(
+        "{\"id\":\"o1\",\"time\":" + T + ",\"items\":[\"a\",\"b\"],\"attributes\":{\"channel\":\"app\"}}",
+        "{\"basket\":\"o2\",\"time\":" + (T + 1000) + ",\"item\":\"a\"}",
+        "{\"basket\":\"o2\",\"time\":" + (T + 2000) + ",\"item\":\"c\",\"end\":true}",
+        "{\"id\":\"o1\",\"time\":" + T + ",\"items\":[\"a\",\"b\"]}"));
+    List<String> seen = new java.util.ArrayList<>();
+    BasketSink sink = new BasketSink() {
+      @Override
+      public void basket(String basketId, long eventMillis, List<String> items) {
+        basket(basketId, eventMillis, items, Map.of());
+      }
+
+      @Override
+      public void basket(String basketId, long eventMillis, List<String> items, Map<String, String> attributes) {
+        seen.add(basketId + "@" + (eventMillis - T) + " " + items + " " + attributes);
+      }
+    };
+    FileSource.Result result = new FileSource(limits, settings, sink, null).read(file, null);
+    assertEquals(List.of("o1@0 [a, b] {channel=app}", "o2@2000 [a, c] {}"), seen,
+        "whole baskets with their attributes; an assembled basket carries none, at its last line's time");
+    assertEquals(2, result.baskets());
+    assertEquals(1, result.duplicates());
+  }
 
   @Test
   void jsonLinesWithBasketsLineItemsCloudEventsAndPoison(@TempDir Path dir) throws Exception {

@@ -4,6 +4,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertNotNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import io.micrometer.core.instrument.Timer;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
@@ -23,6 +24,7 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.extension.ExtendWith;
 import org.pairpulse.ingest.checkpoint.PartitionCheckpoint;
 import org.pairpulse.ingest.event.DeadLetterReason;
+import org.pairpulse.ingest.metrics.IngestMetrics;
 import org.pairpulse.ingest.testkit.Await;
 import org.pairpulse.ingest.testkit.Broker;
 import org.pairpulse.ingest.testkit.SharedBroker;
@@ -71,6 +73,10 @@ class KafkaIngestTest {
           () -> "N of the current table " + ingestor.pairTables().current().horizon("day").map(h -> h.baskets()));
       PairTable table = ingestor.pairTables().current();
       assertEquals(w.baskets, table.horizon("day").map(h -> h.baskets()).orElse(0.0), 0.0, "N of the published pair table");
+      Timer refreshes = registry.get(IngestMetrics.REFRESH_DURATION).timer();
+      assertTrue(refreshes.count() >= table.version(), "every published table's refresh is timed: " + refreshes.count()
+          + " timed, table version " + table.version());
+      assertTrue(refreshes.totalTime(TimeUnit.NANOSECONDS) > 0);
     }
     // the dead letters: original bytes and headers, plus the reason header; exactly once each (read_committed)
     Map<DeadLetterReason, Long> byReason = new EnumMap<>(DeadLetterReason.class);

@@ -25,7 +25,7 @@ import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.Snapshots;
 
-/** The replay source reads files exactly as ingest's file source does, and carries ids and attributes. */
+/** The replay source reads files through ingest's file source, and carries ids and attributes. */
 class ReplaySourceTest {
   @TempDir
   static Path directory;
