@@ -12,7 +12,6 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.EnumMap;
-import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 import java.util.Objects;
@@ -97,18 +96,10 @@ public final class FileSource {
     long lines = 0;
     long[] baskets = new long[1];
     long duplicates = 0;
-    BasketSink counted = new BasketSink() {
-      @Override
-      public void basket(String basketId, long eventMillis, List<String> items) {
-        basket(basketId, eventMillis, items, Map.of());
-      }
-
-      @Override
-      public void basket(String basketId, long eventMillis, List<String> items, Map<String, String> attributes) {
-        sink.basket(basketId, eventMillis, items, attributes);
-        baskets[0]++;
-      }
-    };
+    BasketSink counted = BasketSink.withAttributes((basketId, eventMillis, items, attributes) -> {
+      sink.basket(basketId, eventMillis, items, attributes);
+      baskets[0]++;
+    });
     InputStream raw = Files.newInputStream(file);
     InputStream counting = new FilterInputStream(raw) {
       @Override

@@ -16,4 +16,25 @@ public interface BasketSink {
   default void basket(String basketId, long eventMillis, List<String> items, Map<String, String> attributes) {
     basket(basketId, eventMillis, items);
   }
+
+  /** A sink that wants every basket's attributes (an empty map for assembled baskets). */
+  @FunctionalInterface
+  interface WithAttributes {
+    void basket(String basketId, long eventMillis, List<String> items, Map<String, String> attributes);
+  }
+
+  /** The sink that hands every basket to {@code sink} with its attributes. */
+  static BasketSink withAttributes(WithAttributes sink) {
+    return new BasketSink() {
+      @Override
+      public void basket(String basketId, long eventMillis, List<String> items) {
+        sink.basket(basketId, eventMillis, items, Map.of());
+      }
+
+      @Override
+      public void basket(String basketId, long eventMillis, List<String> items, Map<String, String> attributes) {
+        sink.basket(basketId, eventMillis, items, attributes);
+      }
+    };
+  }
 }

@@ -38,17 +38,8 @@ class FileSourceTest {
         "{\"basket\":\"o2\",\"time\":" + (T + 2000) + ",\"item\":\"c\",\"end\":true}",
         "{\"id\":\"o1\",\"time\":" + T + ",\"items\":[\"a\",\"b\"]}"));
     List<String> seen = new java.util.ArrayList<>();
-    BasketSink sink = new BasketSink() {
-      @Override
-      public void basket(String basketId, long eventMillis, List<String> items) {
-        basket(basketId, eventMillis, items, Map.of());
-      }
-
-      @Override
-      public void basket(String basketId, long eventMillis, List<String> items, Map<String, String> attributes) {
-        seen.add(basketId + "@" + (eventMillis - T) + " " + items + " " + attributes);
-      }
-    };
+    BasketSink sink = BasketSink.withAttributes((basketId, eventMillis, items, attributes) ->
+        seen.add(basketId + "@" + (eventMillis - T) + " " + items + " " + attributes));
     FileSource.Result result = new FileSource(limits, settings, sink, null).read(file, null);
     assertEquals(List.of("o1@0 [a, b] {channel=app}", "o2@2000 [a, c] {}"), seen,
         "whole baskets with their attributes; an assembled basket carries none, at its last line's time");

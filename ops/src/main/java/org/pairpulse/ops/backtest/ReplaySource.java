@@ -2,8 +2,6 @@ package org.pairpulse.ops.backtest;
 
 import java.io.IOException;
 import java.nio.file.Path;
-import java.util.List;
-import java.util.Map;
 import java.util.Objects;
 import java.util.function.Consumer;
 import org.pairpulse.ingest.event.EventLimits;
@@ -28,17 +26,8 @@ public final class ReplaySource {
   private Consumer<ReplayBasket> target;
 
   public ReplaySource(EventLimits limits, FrontSettings settings) {
-    this.files = new FileSource(limits, settings, new BasketSink() {
-      @Override
-      public void basket(String basketId, long eventMillis, List<String> items) {
-        basket(basketId, eventMillis, items, Map.of());
-      }
-
-      @Override
-      public void basket(String basketId, long eventMillis, List<String> items, Map<String, String> attributes) {
-        target.accept(new ReplayBasket(basketId, eventMillis, items, attributes));
-      }
-    }, null);
+    this.files = new FileSource(limits, settings, BasketSink.withAttributes((basketId, eventMillis, items, attributes) ->
+        target.accept(new ReplayBasket(basketId, eventMillis, items, attributes))), null);
   }
 
   /** The front (watermark, counters), shared by every file read through this source. */
