@@ -31,7 +31,8 @@ import picocli.CommandLine.UnmatchedArgumentException;
     description = "Streaming market-basket association engine: pair statistics over sliding windows and decaying"
         + " horizons in fixed memory.",
     subcommands = {BenchCommand.class, BacktestCommand.class, ReportCommand.class,
-        org.pairpulse.ops.demo.DemoCommand.class, org.pairpulse.ops.run.RunCommand.class},
+        org.pairpulse.ops.demo.DemoCommand.class, org.pairpulse.ops.run.RunCommand.class,
+        picocli.CommandLine.HelpCommand.class},
     // picocli's defaults for every command (usage error 2, failure 1), named here because they are our contract
     exitCodeOnInvalidInput = Main.EXIT_USAGE,
     exitCodeOnExecutionException = Main.EXIT_FAILED,

@@ -35,6 +35,13 @@ class MainTest {
   }
 
   @Test
+  void helpCommandShowsACommandsUsage() {
+    Run run = run("help", "backtest");
+    assertEquals(Main.EXIT_OK, run.exitCode(), run.err());
+    assertTrue(run.out().startsWith("Usage: pairpulse backtest"), run.out());
+  }
+
+  @Test
   void versionNamesTheProgram() {
     Run run = run("--version");
     assertEquals(Main.EXIT_OK, run.exitCode());
