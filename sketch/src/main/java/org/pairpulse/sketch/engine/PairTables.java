@@ -83,9 +83,7 @@ public final class PairTables {
       stats.add(new PairStats(pairs.labelA[slot], pairs.labelB[slot], state.spec.name(), counts,
           PairMeasures.of(counts, options.settings()), pairs.admittedAtMillis[slot]));
     }
-    Comparator<PairStats> best = Comparator.comparingDouble((PairStats p) -> orderKey(options.sortBy(), p)).reversed()
-        .thenComparing(PairStats::itemA).thenComparing(PairStats::itemB);
-    stats.sort(best);
+    sortBest(stats, options.sortBy());
     Map<String, List<PairStats>> neighbours = new HashMap<>();
     for (PairStats pair : stats) { // stats is sorted, so each list is sorted too
       neighbours.computeIfAbsent(pair.itemA(), k -> new ArrayList<>()).add(pair);
@@ -93,6 +91,24 @@ public final class PairTables {
     }
     neighbours.replaceAll((item, list) -> List.copyOf(list));
     return new HorizonTable(state.spec.name(), baskets, List.copyOf(stats), neighbours, itemCounts);
+  }
+
+  /** A pair with its sort key, computed once (a comparator that computed the measure ran it n log n times). */
+  private record Keyed(double key, PairStats stats) {}
+
+  private static final Comparator<Keyed> BEST_FIRST = Comparator.comparingDouble(Keyed::key).reversed()
+      .thenComparing((Keyed k) -> k.stats().itemA()).thenComparing((Keyed k) -> k.stats().itemB());
+
+  /** Sorts best first by {@code measure} (NaN last), ties by item names. */
+  private static void sortBest(List<PairStats> stats, Measure measure) {
+    List<Keyed> keyed = new ArrayList<>(stats.size());
+    for (PairStats pair : stats) {
+      keyed.add(new Keyed(orderKey(measure, pair), pair));
+    }
+    keyed.sort(BEST_FIRST);
+    for (int i = 0; i < keyed.size(); i++) {
+      stats.set(i, keyed.get(i).stats());
+    }
   }
 
   /** NaN sorts last. */
