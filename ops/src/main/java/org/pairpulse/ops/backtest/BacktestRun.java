@@ -153,9 +153,23 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
       int k = evaluation.settings().k();
       out.printf(Locale.ROOT, "  evaluation (test-then-train, %,d baskets, horizon %s, %s): hit@%d / MRR%n",
           evaluation.trials(), evaluation.settings().horizon(), evaluation.settings().measure().wireName(), k);
+      // the first day's nightly table is the first refresh's, nearly empty: compare from the second day on too
+      long secondDay = Math.floorDiv(result.firstEventMillis(), BacktestSettings.DAY_MILLIS) * BacktestSettings.DAY_MILLIS
+          + BacktestSettings.DAY_MILLIS;
+      long afterFirstDay = evaluation.tally(EvaluationMethod.INCREMENTAL, secondDay, Long.MAX_VALUE).trials();
+      if (afterFirstDay > 0) {
+        out.printf(Locale.ROOT, "    %-11s %-17s from %s (%,d baskets; the first day's nightly table is nearly empty)%n",
+            "", "all trials", Instant.ofEpochMilli(secondDay), afterFirstDay);
+      }
       for (EvaluationMethod method : EvaluationMethod.values()) {
         Tally tally = evaluation.tally(method);
-        out.printf(Locale.ROOT, "    %-11s %.4f / %.4f%n", method.wireName(), tally.hitRate(k), tally.meanReciprocalRank());
+        String all = String.format(Locale.ROOT, "%.4f / %.4f", tally.hitRate(k), tally.meanReciprocalRank());
+        String later = "";
+        if (afterFirstDay > 0) {
+          Tally after = evaluation.tally(method, secondDay, Long.MAX_VALUE);
+          later = String.format(Locale.ROOT, "%.4f / %.4f", after.hitRate(k), after.meanReciprocalRank());
+        }
+        out.printf(Locale.ROOT, "    %-11s %-17s %s%n", method.wireName(), all, later);
       }
     }
     if (detection != null) {

@@ -75,6 +75,8 @@ class BacktestTest {
       assertEquals(Main.EXIT_OK, run.exitCode(), run.err());
       assertTrue(run.out().contains("backtest baskets.jsonl:"), run.out());
       assertTrue(run.out().contains("evaluation (test-then-train"), run.out());
+      // the scenario spans days: each method is also scored from the second day on, when the nightly table is real
+      assertTrue(run.out().contains("the first day's nightly table is nearly empty"), run.out());
       outputs.add(Files.readAllBytes(directory.resolve(out).resolve(BacktestRun.JSON_FILE)));
     }
     assertArrayEquals(outputs.get(0), outputs.get(1));
