@@ -62,7 +62,8 @@ import org.slf4j.LoggerFactory;
  *
  * <h2>Threads</h2>
  * Ingest's poll and engine threads, serve's Jetty pool, table watcher and alert dispatcher, and one
- * sketch-health thread here. {@link #close()} may be called from a shutdown hook.
+ * sketch-health thread here, and the live evaluation's consumer thread when it runs. {@link #close()} may be called
+ * from a shutdown hook.
  */
 public final class Pipeline implements AutoCloseable {
   private static final Logger LOG = LoggerFactory.getLogger(Pipeline.class);
