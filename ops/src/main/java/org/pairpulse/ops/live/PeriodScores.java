@@ -2,7 +2,6 @@ package org.pairpulse.ops.live;
 
 import java.util.ArrayDeque;
 import java.util.ArrayList;
-import java.util.EnumMap;
 import java.util.List;
 import java.util.Map;
 import org.pairpulse.ops.evaluation.EvaluationMethod;
@@ -23,19 +22,15 @@ final class PeriodScores {
   private final Totals all = new Totals(Long.MIN_VALUE);
   private final ArrayDeque<Totals> periods = new ArrayDeque<>();
 
-  /** Counts of one period (or of everything). */
+  /** Counts of one period (or of everything), per method by {@link EvaluationMethod#ordinal()}. */
   private static final class Totals {
     final long startMillis;
     long trials;
-    final Map<EvaluationMethod, long[]> hits = new EnumMap<>(EvaluationMethod.class);
-    final Map<EvaluationMethod, double[]> reciprocal = new EnumMap<>(EvaluationMethod.class);
+    final long[] hits = new long[EvaluationMethod.values().length];
+    final double[] reciprocal = new double[EvaluationMethod.values().length];
 
     Totals(long startMillis) {
       this.startMillis = startMillis;
-      for (EvaluationMethod m : EvaluationMethod.values()) {
-        hits.put(m, new long[1]);
-        reciprocal.put(m, new double[1]);
-      }
     }
 
     void add(Trial trial, int k) {
@@ -43,16 +38,16 @@ final class PeriodScores {
       for (EvaluationMethod m : EvaluationMethod.values()) {
         int rank = trial.rank(m);
         if (rank >= 1 && rank <= k) {
-          hits.get(m)[0]++;
+          hits[m.ordinal()]++;
         }
         if (rank >= 1) {
-          reciprocal.get(m)[0] += 1.0 / rank;
+          reciprocal[m.ordinal()] += 1.0 / rank;
         }
       }
     }
 
     double hitRate(EvaluationMethod m) {
-      return trials == 0 ? 0 : (double) hits.get(m)[0] / trials;
+      return trials == 0 ? 0 : (double) hits[m.ordinal()] / trials;
     }
   }
 
@@ -99,7 +94,7 @@ final class PeriodScores {
     List<MethodScore> out = new ArrayList<>();
     for (EvaluationMethod m : EvaluationMethod.values()) {
       out.add(new MethodScore(m.wireName(), all.hitRate(m),
-          all.trials == 0 ? 0 : all.reciprocal.get(m)[0] / all.trials));
+          all.trials == 0 ? 0 : all.reciprocal[m.ordinal()] / all.trials));
     }
     return out;
   }

@@ -52,13 +52,19 @@ class ReportCommandTest {
     return new String[] {Integer.toString(exitCode), out.toString(), err.toString()};
   }
 
+  /** {@code report --input} of the scenario file with segments by channel, floor 20, into {@code out}; exit 0. */
+  private String[] reportByChannel(String out) {
+    String[] result = run("report", "--input", directory.resolve(ScenarioFiles.JSON_LINES_FILE).toString(),
+        "--segment-attribute", "channel", "--config", directory.resolve("small.properties").toString(), "--floor", "20",
+        "--quiet", "--out", directory.resolve(out).toString());
+    assertEquals("0", result[0], result[2]);
+    return result;
+  }
+
   @Test
   void writesTheListsPerSegmentAndTheSameListFromASnapshot() throws IOException {
     Path input = directory.resolve(ScenarioFiles.JSON_LINES_FILE);
-    String[] byInput = run("report", "--input", input.toString(), "--segment-attribute", "channel", "--config",
-        directory.resolve("small.properties").toString(), "--floor", "20", "--quiet", "--out",
-        directory.resolve("by-input").toString());
-    assertEquals("0", byInput[0], byInput[2]);
+    String[] byInput = reportByChannel("by-input");
     assertTrue(byInput[1].contains("4 segment(s)"), byInput[1]);
     List<String> rows = Files.readAllLines(directory.resolve("by-input").resolve(PromoCsv.FILE));
     assertEquals(String.join(",", PromoCsv.COLUMNS), rows.get(0));
@@ -91,10 +97,7 @@ class ReportCommandTest {
   @Test
   void aCheckpointDirectoryGivesTheSameListsPerSegmentAsTheReplay() throws IOException {
     Path input = directory.resolve(ScenarioFiles.JSON_LINES_FILE);
-    String[] byInput = run("report", "--input", input.toString(), "--segment-attribute", "channel", "--config",
-        directory.resolve("small.properties").toString(), "--floor", "20", "--quiet", "--out",
-        directory.resolve("segments-by-input").toString());
-    assertEquals("0", byInput[0], byInput[2]);
+    reportByChannel("segments-by-input");
     EngineConfig config = EngineConfig.builder().trackedPairCapacity(1024).trackedItemCapacity(1024).build();
     SegmentSettings segments = new SegmentSettings(List.of("channel"), SegmentSettings.DEFAULT_MAX_VALUES,
         SegmentSettings.DEFAULT_TRACKED_FRACTION);
