@@ -18,6 +18,9 @@ import org.pairpulse.sketch.hash.ItemHash;
  * <h2>Design</h2>
  * <pre>
  *   counters: double[depth * width], row r occupies [r * width, (r + 1) * width)
+ *             (a sketch made by {@link #interleaved} shares one array with n − 1 others: its counter i
+ *             lives at i * n + k, so the k-th sketches' counters for one column lie side by side and
+ *             updating all n with one key touches each row's cache line once)
  *   width  = 2^k >= e / epsilon      (Cormode and Muthukrishnan 2005, Theorem 1)
  *   depth  = ceil(ln(1 / delta))
  *   column of row r = low bits of x_r, x_0 = key ^ seed, x_{r+1} = mix64(x_r + golden ratio constant)
@@ -46,8 +49,16 @@ public final class CountMinSketch {
   private final long seed;
   private final UpdateRule rule;
   private final double[] counters;
+  /** Distance between this sketch's consecutive counters in {@link #counters}: 1, or n when interleaved. */
+  private final int stride;
+  /** Position of this sketch's first counter in {@link #counters}. */
+  private final int offset;
+  /** 1 / (width − 1): a row counter's expected share of the other keys' weight, per unit of that weight. */
+  private final double othersShare;
   /** Reused by {@link #debiasedEstimate} (the sketch has one writer; readers use published tables). */
   private final double[] scratch;
+  /** Reused by {@link #debiasedEstimate}: the key's row hashes. */
+  private final long[] rowScratch;
   private double totalWeight;
 
   /**
@@ -55,6 +66,10 @@ public final class CountMinSketch {
    * @param depth number of rows, 1..32
    */
   public CountMinSketch(int width, int depth, UpdateRule rule, long seed) {
+    this(width, depth, rule, seed, null, 1, 0);
+  }
+
+  private CountMinSketch(int width, int depth, UpdateRule rule, long seed, double[] shared, int stride, int offset) {
     if (width < 2 || Integer.bitCount(width) != 1) {
       throw new IllegalArgumentException("width must be a power of two >= 2, got " + width);
     }
@@ -69,13 +84,34 @@ public final class CountMinSketch {
     this.mask = width - 1;
     this.seed = seed;
     this.rule = rule;
-    this.counters = new double[width * depth];
+    this.counters = shared != null ? shared : new double[width * depth];
+    this.stride = stride;
+    this.offset = offset;
+    this.othersShare = 1.0 / (width - 1);
     this.scratch = new double[depth];
+    this.rowScratch = new long[depth];
   }
 
   /** A sketch sized by the Cormode–Muthukrishnan formulas for error {@code epsilon} and failure {@code delta}. */
   public static CountMinSketch forError(double epsilon, double delta, UpdateRule rule, long seed) {
     return new CountMinSketch(widthFor(epsilon), depthFor(delta), rule, seed);
+  }
+
+  /**
+   * {@code n} sketches of one shape and seed whose counters share one array, column by column (see the
+   * class comment). Each behaves exactly as a sketch of its own; a caller that adds the same key to all
+   * of them (horizons of one stream) pays each row's cache miss once instead of {@code n} times.
+   */
+  public static CountMinSketch[] interleaved(int n, int width, int depth, UpdateRule rule, long seed) {
+    if (n < 1 || (long) n * width * depth > (1L << 28)) {
+      throw new IllegalArgumentException("cannot interleave " + n + " sketches of " + width + " x " + depth);
+    }
+    double[] shared = new double[n * width * depth];
+    CountMinSketch[] sketches = new CountMinSketch[n];
+    for (int k = 0; k < n; k++) {
+      sketches[k] = new CountMinSketch(width, depth, rule, seed, shared, n, k);
+    }
+    return sketches;
   }
 
   /** Counters per row for relative error {@code epsilon}: ⌈e/ε⌉ rounded up to a power of two. */
@@ -105,19 +141,84 @@ public final class CountMinSketch {
     if (rule == UpdateRule.LINEAR) {
       for (int row = 0, base = 0; row < depth; row++, base += width) {
         h = ItemHash.mix64(h + ROW_STEP);
-        counters[base + ((int) h & mask)] += weight;
+        counters[(base + ((int) h & mask)) * stride + this.offset] += weight;
       }
     } else {
       double target = minOf(key) + weight;
       for (int row = 0, base = 0; row < depth; row++, base += width) {
         h = ItemHash.mix64(h + ROW_STEP);
-        int index = base + ((int) h & mask);
+        int index = (base + ((int) h & mask)) * stride + this.offset;
         if (counters[index] < target) {
           counters[index] = target;
         }
       }
     }
     totalWeight += weight;
+  }
+
+  /**
+   * Writes the key's per-row hashes into {@code rows[offset .. offset + depth)}. Sketches with the same
+   * seed and depth share them whatever their width (each takes the low bits it needs), so a caller that
+   * updates several such sketches with one key hashes it once and uses the {@code …Hashed} methods.
+   */
+  public void rowHashes(long key, long[] rows, int offset) {
+    long h = key ^ seed;
+    for (int row = 0; row < depth; row++) {
+      h = ItemHash.mix64(h + ROW_STEP);
+      rows[offset + row] = h;
+    }
+  }
+
+  /** {@link #add} with the key's row hashes from {@link #rowHashes} (of a sketch with equal seed and depth). */
+  public void addHashed(long[] rows, int offset, double weight) {
+    assert weight >= 0 : "negative weight " + weight;
+    if (rule == UpdateRule.LINEAR) {
+      for (int row = 0, base = 0; row < depth; row++, base += width) {
+        counters[(base + ((int) rows[offset + row] & mask)) * stride + this.offset] += weight;
+      }
+    } else {
+      double target = estimateHashed(rows, offset) + weight;
+      for (int row = 0, base = 0; row < depth; row++, base += width) {
+        int index = (base + ((int) rows[offset + row] & mask)) * stride + this.offset;
+        if (counters[index] < target) {
+          counters[index] = target;
+        }
+      }
+    }
+    totalWeight += weight;
+  }
+
+  /** {@link #estimate} with the key's row hashes from {@link #rowHashes}. */
+  public double estimateHashed(long[] rows, int offset) {
+    double min = Double.POSITIVE_INFINITY;
+    for (int row = 0, base = 0; row < depth; row++, base += width) {
+      double value = counters[(base + ((int) rows[offset + row] & mask)) * stride + this.offset];
+      if (value < min) {
+        min = value;
+      }
+    }
+    return min;
+  }
+
+  /** {@link #debiasedEstimate} with the key's row hashes from {@link #rowHashes}. */
+  public double debiasedEstimateHashed(long[] rows, int offset) {
+    double upper = estimateHashed(rows, offset);
+    if (rule != UpdateRule.LINEAR) {
+      return upper;
+    }
+    double[] sorted = scratch;
+    for (int row = 0, base = 0; row < depth; row++, base += width) {
+      double counter = counters[(base + ((int) rows[offset + row] & mask)) * stride + this.offset];
+      double corrected = counter - (totalWeight - counter) * othersShare;
+      int j = row - 1; // insertion sort: depth is small
+      while (j >= 0 && sorted[j] > corrected) {
+        sorted[j + 1] = sorted[j];
+        j--;
+      }
+      sorted[j + 1] = corrected;
+    }
+    double median = (depth & 1) == 1 ? sorted[depth / 2] : 0.5 * (sorted[depth / 2 - 1] + sorted[depth / 2]);
+    return Math.max(Math.max(0, upper - maxError()), Math.min(upper, median));
   }
 
   /** The point estimate: the smallest counter of the key's columns. Never below the true weight. */
@@ -130,7 +231,7 @@ public final class CountMinSketch {
     long h = key ^ seed;
     for (int row = 0, base = 0; row < depth; row++, base += width) {
       h = ItemHash.mix64(h + ROW_STEP);
-      double value = counters[base + ((int) h & mask)];
+      double value = counters[(base + ((int) h & mask)) * stride + this.offset];
       if (value < min) {
         min = value;
       }
@@ -147,26 +248,10 @@ public final class CountMinSketch {
    * its counters do not carry the additive noise the correction assumes.
    */
   public double debiasedEstimate(long key) {
-    double upper = minOf(key);
-    if (rule != UpdateRule.LINEAR) {
-      return upper;
-    }
-    double[] rows = scratch;
-    long h = key ^ seed;
-    for (int row = 0, base = 0; row < depth; row++, base += width) {
-      h = ItemHash.mix64(h + ROW_STEP);
-      double counter = counters[base + ((int) h & mask)];
-      double corrected = counter - (totalWeight - counter) / (width - 1);
-      int j = row - 1; // insertion sort: depth is small
-      while (j >= 0 && rows[j] > corrected) {
-        rows[j + 1] = rows[j];
-        j--;
-      }
-      rows[j + 1] = corrected;
-    }
-    double median = (depth & 1) == 1 ? rows[depth / 2] : 0.5 * (rows[depth / 2 - 1] + rows[depth / 2]);
-    return Math.max(Math.max(0, upper - maxError()), Math.min(upper, median));
+    rowHashes(key, rowScratch, 0);
+    return debiasedEstimateHashed(rowScratch, 0);
   }
+
 
   /** Same as {@link #estimate}: the count-min estimate is an upper bound. */
   public double upperBound(long key) {
@@ -217,8 +302,8 @@ public final class CountMinSketch {
   /** Adds {@code other} counter by counter; both must share width, depth and seed. */
   public void merge(CountMinSketch other) {
     requireCompatible(other);
-    for (int i = 0; i < counters.length; i++) {
-      counters[i] += other.counters[i];
+    for (int i = 0, n = width * depth; i < n; i++) {
+      counters[i * stride + offset] += other.counters[i * other.stride + other.offset];
     }
     totalWeight += other.totalWeight;
   }
@@ -232,8 +317,8 @@ public final class CountMinSketch {
     if (rule != UpdateRule.LINEAR || other.rule != UpdateRule.LINEAR) {
       throw new IllegalStateException("only linear count-min sketches can be subtracted");
     }
-    for (int i = 0; i < counters.length; i++) {
-      counters[i] -= other.counters[i];
+    for (int i = 0, n = width * depth; i < n; i++) {
+      counters[i * stride + offset] -= other.counters[i * other.stride + other.offset];
     }
     totalWeight -= other.totalWeight;
   }
@@ -243,34 +328,51 @@ public final class CountMinSketch {
     if (!(factor > 0) || Double.isInfinite(factor)) {
       throw new IllegalArgumentException("scale factor must be positive and finite, got " + factor);
     }
-    for (int i = 0; i < counters.length; i++) {
-      counters[i] *= factor;
+    for (int i = 0, n = width * depth; i < n; i++) {
+      counters[i * stride + offset] *= factor;
     }
     totalWeight *= factor;
   }
 
   public void clear() {
-    Arrays.fill(counters, 0.0);
+    if (stride == 1) {
+      Arrays.fill(counters, 0.0);
+    } else {
+      for (int i = 0, n = width * depth; i < n; i++) {
+        counters[i * stride + offset] = 0.0;
+      }
+    }
     totalWeight = 0;
   }
 
   public CountMinSketch copy() {
     CountMinSketch copy = new CountMinSketch(width, depth, rule, seed);
-    System.arraycopy(counters, 0, copy.counters, 0, counters.length);
+    for (int i = 0, n = width * depth; i < n; i++) {
+      copy.counters[i] = counters[i * stride + offset];
+    }
     copy.totalWeight = totalWeight;
     return copy;
   }
 
   /** Heap bytes of the counters (the only part that grows with the configuration). */
   public long stateBytes() {
-    return 16L + 8L * counters.length + 48;
+    return 16L + 8L * width * depth + 48;
   }
 
   /** True when both sketches have the same shape, seed, rule and identical counters. */
   public boolean sameCountersAs(CountMinSketch other) {
     return isCompatible(other) && rule == other.rule
-        && Arrays.equals(counters, other.counters)
+        && sameCounters(other)
         && Double.compare(totalWeight, other.totalWeight) == 0;
+  }
+
+  private boolean sameCounters(CountMinSketch other) {
+    for (int i = 0, n = width * depth; i < n; i++) {
+      if (Double.compare(counters[i * stride + offset], other.counters[i * other.stride + other.offset]) != 0) {
+        return false;
+      }
+    }
+    return true;
   }
 
   private boolean isCompatible(CountMinSketch other) {
@@ -288,16 +390,16 @@ public final class CountMinSketch {
   /** Writes counters and total; the shape is written by the owner of the sketch. */
   public void writeCounters(DataOutput out) throws IOException {
     out.writeDouble(totalWeight);
-    for (double counter : counters) {
-      out.writeDouble(counter);
+    for (int i = 0, n = width * depth; i < n; i++) {
+      out.writeDouble(counters[i * stride + offset]);
     }
   }
 
   /** Reads what {@link #writeCounters} wrote into this (same-shape) sketch. */
   public void readCounters(DataInput in) throws IOException {
     totalWeight = in.readDouble();
-    for (int i = 0; i < counters.length; i++) {
-      counters[i] = in.readDouble();
+    for (int i = 0, n = width * depth; i < n; i++) {
+      counters[i * stride + offset] = in.readDouble();
     }
   }
 }

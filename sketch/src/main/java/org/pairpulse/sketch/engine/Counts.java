@@ -44,7 +44,7 @@ final class Counts {
     double bias = table.admissionBias[slot * table.horizonCount + state.index];
     if (!state.isWindow()) {
       double scale = state.scaleAt(engine.watermarkMillis);
-      double upper = table.decays[slot * table.decayCount + state.kindOrdinal];
+      double upper = table.decays[table.decayIndex(slot, state.kindOrdinal)];
       double lower = Math.max(0, upper - table.admissionError[slot * table.decayCount + state.kindOrdinal]);
       double value = Math.max(lower, upper - bias);
       return new Estimate(value / scale, lower / scale, upper / scale);
@@ -62,12 +62,12 @@ final class Counts {
       }
       long pane = state.paneOfSlot[p];
       if (admittedPane == Long.MIN_VALUE || pane > admittedPane) { // exact since admission
-        double count = table.panes[slot * table.paneCells + state.paneCellOffset + p];
+        double count = table.panes[table.paneIndex(slot, state.paneCellOffset + p)];
         upper += count;
         lower += count;
         value += count;
       } else if (pane == admittedPane) { // sketch estimate at admission + exact since
-        double count = table.panes[slot * table.paneCells + state.paneCellOffset + p];
+        double count = table.panes[table.paneIndex(slot, state.paneCellOffset + p)];
         double paneLower = Math.max(0, count - sketches[p].maxError());
         upper += count;
         lower += paneLower;

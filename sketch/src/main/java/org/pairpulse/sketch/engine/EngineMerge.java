@@ -162,9 +162,11 @@ final class EngineMerge {
         }
       }
       for (int c = 0; c < mine.paneCells; c++) {
-        mine.panes[s * mine.paneCells + c] = (int) Math.min(Math.round(e.panes[c]), Integer.MAX_VALUE);
+        mine.panes[mine.paneIndex(s, c)] = (int) Math.min(Math.round(e.panes[c]), Integer.MAX_VALUE);
       }
-      System.arraycopy(e.decays, 0, mine.decays, s * mine.decayCount, mine.decayCount);
+      for (int d = 0; d < mine.decayCount; d++) {
+        mine.decays[mine.decayIndex(s, d)] = e.decays[d];
+      }
       System.arraycopy(e.admissionPane, 0, mine.admissionPane, s * mine.windowCount, mine.windowCount);
       System.arraycopy(e.admissionError, 0, mine.admissionError, s * mine.decayCount, mine.decayCount);
       System.arraycopy(e.bias, 0, mine.admissionBias, s * mine.horizonCount, mine.horizonCount);
@@ -208,11 +210,11 @@ final class EngineMerge {
           long pane = source.paneOfSlot[p];
           e.panes[state.paneCellOffset + p] = admitted != Long.MIN_VALUE && pane < admitted
               ? (pair ? source.pairSketch[p] : source.itemSketch[p]).estimate(e.key)
-              : table.panes[s * table.paneCells + state.paneCellOffset + p];
+              : table.panes[table.paneIndex(s, state.paneCellOffset + p)];
         }
       } else {
         double factor = scale == null ? 1.0 : scale[state.index];
-        e.decays[state.kindOrdinal] = table.decays[s * table.decayCount + state.kindOrdinal] * factor;
+        e.decays[state.kindOrdinal] = table.decays[table.decayIndex(s, state.kindOrdinal)] * factor;
         e.admissionError[state.kindOrdinal] = table.admissionError[s * table.decayCount + state.kindOrdinal] * factor;
         e.bias[state.index] = table.admissionBias[s * table.horizonCount + state.index] * factor;
       }

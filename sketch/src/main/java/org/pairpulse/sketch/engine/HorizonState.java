@@ -45,6 +45,15 @@ final class HorizonState {
   final int kindOrdinal;
 
   HorizonState(HorizonSpec spec, int index, int paneCellOffset, int kindOrdinal, EngineConfig config) {
+    this(spec, index, paneCellOffset, kindOrdinal, config, null, null);
+  }
+
+  /**
+   * A decay may be handed its two sketches ({@code decayItem}, {@code decayPair}): the engine interleaves
+   * the sketches of all its decays, which take every basket alike (see {@link CountMinSketch#interleaved}).
+   */
+  HorizonState(HorizonSpec spec, int index, int paneCellOffset, int kindOrdinal, EngineConfig config,
+      CountMinSketch decayItem, CountMinSketch decayPair) {
     this.spec = spec;
     this.index = index;
     this.paneCellOffset = paneCellOffset;
@@ -59,13 +68,23 @@ final class HorizonState {
     this.itemSketch = new CountMinSketch[paneCount];
     this.pairSketch = new CountMinSketch[paneCount];
     for (int p = 0; p < paneCount; p++) {
+      if (decayItem != null) {
+        itemSketch[p] = decayItem;
+        pairSketch[p] = decayPair;
+        continue;
+      }
       // one seed for all panes and horizons: panes of a window must align to be summed and merged
       itemSketch[p] = new CountMinSketch(itemWidth, itemDepth, config.updateRule(), config.seed());
-      pairSketch[p] = new CountMinSketch(pairWidth, pairDepth, config.updateRule(), config.seed() ^ 0x9A1L);
+      pairSketch[p] = new CountMinSketch(pairWidth, pairDepth, config.updateRule(), pairSeed(config));
     }
     this.basketWeight = new double[paneCount];
     this.paneOfSlot = new long[paneCount];
     Arrays.fill(paneOfSlot, Long.MIN_VALUE);
+  }
+
+  /** Seed of every pair sketch (item sketches use the configuration's seed). */
+  static long pairSeed(EngineConfig config) {
+    return config.seed() ^ 0x9A1L;
   }
 
   boolean isWindow() {

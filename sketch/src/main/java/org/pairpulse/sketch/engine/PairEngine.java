@@ -61,6 +61,18 @@ public final class PairEngine {
   // per-basket scratch, reused (no allocation per basket for baskets of up to 64 items)
   private long[] hashScratch = new long[64];
   private String[] itemScratch = new String[64];
+  /** Per basket item: its tracked slot after this basket counted it, or −1. */
+  private int[] itemSlotScratch = new int[64];
+  private final int itemDepth;
+  private final int pairDepth;
+  /** Row hashes of the basket's items (itemDepth per item) and pairs (pairDepth per pair). */
+  private long[] itemRows;
+  private long[] pairRows;
+  private long[] pairKeys = new long[0];
+  private int[] pairFirst = new int[0];
+  private int[] pairSecond = new int[0];
+  /** Weight of each counted pair of the current basket: 1, or the cap's step k. */
+  private double pairWeight;
   /** Per horizon, the ring slot of the current basket's pane (0 for a decay, −1 if it left the window). */
   private final int[] paneOfHorizon;
   private final double[] weightOfHorizon;
@@ -77,10 +89,17 @@ public final class PairEngine {
     int windows = 0;
     int decays = 0;
     int burst = -1;
+    int decayCount = (int) specs.stream().filter(spec -> !spec.isWindow()).count();
+    CountMinSketch[] decayItems = CountMinSketch.interleaved(decayCount, CountMinSketch.widthFor(config.itemEpsilon()),
+        CountMinSketch.depthFor(config.itemDelta()), config.updateRule(), config.seed());
+    CountMinSketch[] decayPairs = CountMinSketch.interleaved(decayCount, CountMinSketch.widthFor(config.decayPairEpsilon()),
+        CountMinSketch.depthFor(config.pairDelta()), config.updateRule(), HorizonState.pairSeed(config));
     for (int h = 0; h < specs.size(); h++) {
       HorizonSpec spec = specs.get(h);
       int ordinal = spec.isWindow() ? windows++ : decays++;
-      horizons[h] = new HorizonState(spec, h, spec.isWindow() ? offset : -1, ordinal, config);
+      horizons[h] = spec.isWindow()
+          ? new HorizonState(spec, h, offset, ordinal, config)
+          : new HorizonState(spec, h, -1, ordinal, config, decayItems[ordinal], decayPairs[ordinal]);
       if (spec.name().equals(config.burstHorizon())) {
         burst = h;
       }
@@ -99,6 +118,11 @@ public final class PairEngine {
     this.weightOfHorizon = new double[horizons.length];
     this.eventPaneOfHorizon = new long[horizons.length];
     this.lateOfHorizon = new boolean[horizons.length];
+    this.itemDepth = horizons[0].itemSketch[0].depth();
+    this.pairDepth = horizons[0].pairSketch[0].depth();
+    this.itemRows = new long[64 * itemDepth];
+    this.pairRows = new long[0];
+    ensurePairScratch(64);
   }
 
   public EngineConfig config() {
@@ -127,54 +151,109 @@ public final class PairEngine {
         horizons[h].basketWeight[pane] += weightOfHorizon[h];
       }
     }
+    int pairCount = selectPairs(distinct);
+    hashRows(distinct, pairCount);
+    addToSketches(distinct, pairCount);
     for (int i = 0; i < distinct; i++) {
       long key = hashScratch[i];
-      addToSketches(key, 1.0, false);
-      track(items, false, key, itemScratch[i], null, key, 0L, 1.0, eventMillis);
+      itemSlotScratch[i] = track(items, false, key, i, -1, itemRows, i * itemDepth, 1.0, eventMillis);
     }
-    addPairs(distinct, eventMillis);
+    for (int k = 0; k < pairCount; k++) {
+      track(pairs, true, pairKeys[k], pairFirst[k], pairSecond[k], pairRows, k * pairDepth, pairWeight, eventMillis);
+    }
+    pairUpdates += pairCount;
   }
 
-  private void addPairs(int distinct, long eventMillis) {
+  /**
+   * Chooses the basket's pairs (all of them, or every step-th under the cap; see {@link PairSampling})
+   * into the pair scratch arrays and sets {@link #pairWeight}; returns how many.
+   */
+  private int selectPairs(int distinct) {
     long pairTotal = (long) distinct * (distinct - 1) / 2;
+    pairWeight = 1.0;
     if (pairTotal == 0) {
-      return;
+      return 0;
     }
     long step = sampling.stepFor(pairTotal);
-    double pairWeight = step;
+    pairWeight = step;
     long start = step == 1 ? 0 : sampling.startFor(hashScratch, distinct, step);
+    int selected = (int) ((pairTotal - start + step - 1) / step);
+    ensurePairScratch(selected);
     // enumerate pairs (i < j) in row-major order and keep those with ordinal ≡ start (mod step)
+    int count = 0;
     long ordinal = 0;
     long next = start;
     for (int i = 0; i < distinct - 1; i++) {
       long rowEnd = ordinal + (distinct - 1 - i);
       while (next < rowEnd) {
         int j = i + 1 + (int) (next - ordinal);
-        long key = ItemHash.pairKey(hashScratch[i], hashScratch[j]);
-        addToSketches(key, pairWeight, true);
-        track(pairs, true, key, itemScratch[i], itemScratch[j], hashScratch[i], hashScratch[j], pairWeight, eventMillis);
-        pairUpdates++;
+        pairKeys[count] = ItemHash.pairKey(hashScratch[i], hashScratch[j]);
+        pairFirst[count] = i;
+        pairSecond[count] = j;
+        count++;
         next += step;
       }
       ordinal = rowEnd;
     }
     if (step > 1) {
-      sampling.recordCapped(pairTotal, (pairTotal - start + step - 1) / step);
+      sampling.recordCapped(pairTotal, count);
+    }
+    return count;
+  }
+
+  /** Row hashes of every item and pair key, once: all item sketches share one seed and depth, as do all pair sketches. */
+  private void hashRows(int distinct, int pairCount) {
+    CountMinSketch itemShape = horizons[0].itemSketch[0];
+    CountMinSketch pairShape = horizons[0].pairSketch[0];
+    for (int i = 0; i < distinct; i++) {
+      itemShape.rowHashes(hashScratch[i], itemRows, i * itemDepth);
+    }
+    for (int k = 0; k < pairCount; k++) {
+      pairShape.rowHashes(pairKeys[k], pairRows, k * pairDepth);
     }
   }
 
-  private void addToSketches(long key, double multiplier, boolean pair) {
+  /**
+   * Adds the basket's items and pairs to every horizon's current sketches, sketch by sketch: the
+   * counter updates of one sketch do not depend on each other, so the processor overlaps their cache
+   * misses.
+   */
+  private void addToSketches(int distinct, int pairCount) {
     for (int h = 0; h < horizons.length; h++) {
       int pane = paneOfHorizon[h];
-      if (pane >= 0) {
-        HorizonState state = horizons[h];
-        CountMinSketch sketch = pair ? state.pairSketch[pane] : state.itemSketch[pane];
-        sketch.add(key, multiplier * weightOfHorizon[h]);
+      if (pane < 0) {
+        continue;
+      }
+      HorizonState state = horizons[h];
+      double weight = weightOfHorizon[h];
+      CountMinSketch itemSketch = state.itemSketch[pane];
+      for (int i = 0; i < distinct; i++) {
+        itemSketch.addHashed(itemRows, i * itemDepth, weight);
+      }
+      CountMinSketch pairSketch = state.pairSketch[pane];
+      double pairAdd = pairWeight * weight;
+      for (int k = 0; k < pairCount; k++) {
+        pairSketch.addHashed(pairRows, k * pairDepth, pairAdd);
       }
     }
   }
 
-  private void track(TrackedTable table, boolean pair, long key, String a, String b, long ha, long hb,
+  private void ensurePairScratch(int pairCount) {
+    if (pairKeys.length < pairCount) {
+      int size = Integer.highestOneBit(pairCount) << 1;
+      pairKeys = new long[size];
+      pairFirst = new int[size];
+      pairSecond = new int[size];
+      pairRows = new long[size * pairDepth];
+    }
+  }
+
+  /**
+   * Counts one key (an item, {@code second < 0}, or the pair of basket items {@code first} and
+   * {@code second}) in the tracked table, after the sketches have it. Returns its slot, or −1 when it is
+   * not tracked.
+   */
+  private int track(TrackedTable table, boolean pair, long key, int first, int second, long[] rows, int rowOffset,
       double multiplier, long eventMillis) {
     int slot = table.find(key);
     if (slot >= 0) {
@@ -185,20 +264,19 @@ public final class PairEngine {
         }
         HorizonState state = horizons[h];
         if (!state.isWindow()) {
-          table.decays[slot * table.decayCount + state.kindOrdinal] += multiplier * weightOfHorizon[h];
+          table.decays[table.decayIndex(slot, state.kindOrdinal)] += multiplier * weightOfHorizon[h];
         } else if (!(lateOfHorizon[h] && beforeAdmission(table, slot, h))) {
           table.addToPane(slot, state.paneCellOffset + pane, multiplier);
         }
       }
-      table.increased(slot);
-      return;
+      return slot;
     }
     HorizonState tracking = horizons[trackingHorizon];
     CountMinSketch trackingSketch = pair ? tracking.pairSketch[0] : tracking.itemSketch[0];
     double add = multiplier * weightOfHorizon[trackingHorizon];
     if (!table.isFull()) {
       // never full so far: nothing was ever evicted or refused, so this key was never seen: exact start
-      slot = table.admit(key, canonical(pair, a, ha), canonical(pair, b, hb), ha, hb, eventMillis);
+      slot = admit(table, pair, key, first, second, eventMillis);
       for (int h = 0; h < horizons.length; h++) {
         int pane = paneOfHorizon[h];
         if (pane < 0) {
@@ -208,31 +286,41 @@ public final class PairEngine {
         if (state.isWindow()) {
           table.addToPane(slot, state.paneCellOffset + pane, multiplier);
         } else {
-          table.decays[slot * table.decayCount + state.kindOrdinal] = multiplier * weightOfHorizon[h];
+          table.decays[table.decayIndex(slot, state.kindOrdinal)] = multiplier * weightOfHorizon[h];
         }
       }
       table.placed(slot);
-      return;
+      return slot;
     }
-    double estimate = trackingSketch.estimate(key);
+    double estimate = trackingSketch.estimateHashed(rows, rowOffset);
     double min = table.minCount();
-    if (!(estimate > min) && !burstHeavy(table, pair, key)) {
+    if (!(estimate > min) && !burstHeavy(table, pair, rows, rowOffset)) {
       table.rejections++;
-      return;
+      return -1;
     }
     double start = Math.min(estimate, min + add);
-    slot = table.admit(key, canonical(pair, a, ha), canonical(pair, b, hb), ha, hb, eventMillis);
-    initialiseFromSketches(table, slot, pair, key, start, estimate);
+    slot = admit(table, pair, key, first, second, eventMillis);
+    initialiseFromSketches(table, slot, pair, rows, rowOffset, start, estimate);
     table.placed(slot);
+    return slot;
   }
 
-  /** A pair's item label: the tracked item's own String when there is one, so labels are held once. */
-  private String canonical(boolean pair, String label, long itemHash) {
+  private int admit(TrackedTable table, boolean pair, long key, int first, int second, long eventMillis) {
     if (!pair) {
-      return label;
+      return table.admit(key, itemScratch[first], null, key, 0L, eventMillis);
     }
-    int itemSlot = items.find(itemHash);
-    return itemSlot >= 0 ? items.labelA[itemSlot] : label;
+    long ha = hashScratch[first];
+    long hb = hashScratch[second];
+    return table.admit(key, canonical(first), canonical(second), ha, hb, eventMillis);
+  }
+
+  /**
+   * A pair's item label: the tracked item's own String when there is one (tracked just before, in this
+   * basket), so labels are held once.
+   */
+  private String canonical(int item) {
+    int slot = itemSlotScratch[item];
+    return slot >= 0 && items.keys[slot] == hashScratch[item] ? items.labelA[slot] : itemScratch[item];
   }
 
   /**
@@ -240,10 +328,10 @@ public final class PairEngine {
    * although its long-horizon weight may not beat the minimum yet. Its starting rank is still at most
    * {@code min + w}, so the Space-Saving bound on the tracking weights is kept.
    */
-  private boolean burstHeavy(TrackedTable table, boolean pair, long key) {
+  private boolean burstHeavy(TrackedTable table, boolean pair, long[] rows, int rowOffset) {
     HorizonState burst = horizons[burstHorizon];
     CountMinSketch sketch = pair ? burst.pairSketch[0] : burst.itemSketch[0];
-    return sketch.estimate(key) > sketch.totalWeight() / table.capacity;
+    return sketch.estimateHashed(rows, rowOffset) > sketch.totalWeight() / table.capacity;
   }
 
   /**
@@ -262,27 +350,27 @@ public final class PairEngine {
    * sketches and are read from there at query time (see {@link Counts}), so admission costs one
    * estimate per horizon, not one per pane.
    */
-  private void initialiseFromSketches(TrackedTable table, int slot, boolean pair, long key, double trackingStart,
-      double trackingEstimate) {
+  private void initialiseFromSketches(TrackedTable table, int slot, boolean pair, long[] rows, int rowOffset,
+      double trackingStart, double trackingEstimate) {
     for (HorizonState state : horizons) {
       CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
       int biasIndex = slot * table.horizonCount + state.index;
       if (state.isWindow()) {
         int newest = state.slotOf(state.newestPane);
-        double estimate = sketches[newest].estimate(key);
-        table.panes[slot * table.paneCells + state.paneCellOffset + newest] = (int) Math.min(estimate, Integer.MAX_VALUE);
+        double estimate = sketches[newest].estimateHashed(rows, rowOffset);
+        table.panes[table.paneIndex(slot, state.paneCellOffset + newest)] = (int) Math.min(estimate, Integer.MAX_VALUE);
         table.admissionPane[slot * table.windowCount + state.kindOrdinal] = state.newestPane;
-        table.admissionBias[biasIndex] = estimate - sketches[newest].debiasedEstimate(key);
+        table.admissionBias[biasIndex] = estimate - sketches[newest].debiasedEstimateHashed(rows, rowOffset);
       } else if (state.index == trackingHorizon) {
         double lower = Math.min(trackingStart, Math.max(0, trackingEstimate - sketches[0].maxError()));
-        table.decays[slot * table.decayCount + state.kindOrdinal] = trackingStart;
+        table.decays[table.decayIndex(slot, state.kindOrdinal)] = trackingStart;
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = trackingStart - lower;
-        table.admissionBias[biasIndex] = trackingStart - Math.min(trackingStart, sketches[0].debiasedEstimate(key));
+        table.admissionBias[biasIndex] = trackingStart - Math.min(trackingStart, sketches[0].debiasedEstimateHashed(rows, rowOffset));
       } else {
-        double estimate = sketches[0].estimate(key);
-        table.decays[slot * table.decayCount + state.kindOrdinal] = estimate;
+        double estimate = sketches[0].estimateHashed(rows, rowOffset);
+        table.decays[table.decayIndex(slot, state.kindOrdinal)] = estimate;
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = Math.min(estimate, sketches[0].maxError());
-        table.admissionBias[biasIndex] = estimate - sketches[0].debiasedEstimate(key);
+        table.admissionBias[biasIndex] = estimate - sketches[0].debiasedEstimateHashed(rows, rowOffset);
       }
     }
   }
@@ -383,6 +471,8 @@ public final class PairEngine {
       int size = Integer.highestOneBit(n) << 1;
       hashScratch = new long[size];
       itemScratch = new String[size];
+      itemSlotScratch = new int[size];
+      itemRows = new long[size * itemDepth];
     }
     int count = 0;
     for (String item : basketItems) {

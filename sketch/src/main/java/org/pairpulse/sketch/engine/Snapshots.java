@@ -234,10 +234,10 @@ public final class Snapshots {
       out.writeLong(table.hashB[s]);
       out.writeLong(table.admittedAtMillis[s]);
       for (int c = 0; c < table.paneCells; c++) {
-        out.writeInt(table.panes[s * table.paneCells + c]);
+        out.writeInt(table.panes[table.paneIndex(s, c)]);
       }
       for (int d = 0; d < table.decayCount; d++) {
-        out.writeDouble(table.decays[s * table.decayCount + d]);
+        out.writeDouble(table.decays[table.decayIndex(s, d)]);
       }
       for (int w = 0; w < table.windowCount; w++) {
         out.writeLong(table.admissionPane[s * table.windowCount + w]);
@@ -267,10 +267,10 @@ public final class Snapshots {
       table.hashB[s] = in.readLong();
       table.admittedAtMillis[s] = in.readLong();
       for (int c = 0; c < table.paneCells; c++) {
-        table.panes[s * table.paneCells + c] = in.readInt();
+        table.panes[table.paneIndex(s, c)] = in.readInt();
       }
       for (int d = 0; d < table.decayCount; d++) {
-        table.decays[s * table.decayCount + d] = in.readDouble();
+        table.decays[table.decayIndex(s, d)] = in.readDouble();
       }
       for (int w = 0; w < table.windowCount; w++) {
         table.admissionPane[s * table.windowCount + w] = in.readLong();

@@ -10,18 +10,23 @@ import java.util.Arrays;
  * <h2>Layout</h2>
  * <pre>
  *   slot s in [0, capacity):  keys[s], labelA[s], labelB[s], hashA[s], hashB[s], admittedAtMillis[s]
- *   panes[s * paneCells + c]            count of the key in window pane c (panes of all windows, one
+ *   panes[paneIndex(s, c)]              count of the key in window pane c (panes of all windows, one
  *                                       after the other): an int, since window weights are integers
- *                                       (1, or the pair cap's step k); saturates at Integer.MAX_VALUE
- *   decays[s * decayCount + d]          count of the key in decay d (forward-decay units)
+ *                                       (1, or the pair cap's step k); saturates at Integer.MAX_VALUE.
+ *                                       Pane-major (c * capacity + s): the cells of the current panes of
+ *                                       all slots lie together, so updates stay in cache and a pane that
+ *                                       leaves is cleared in one run
+ *   decays[decayIndex(s, d)]            count of the key in decay d (forward-decay units), decay-major
  *   admissionPane[s * windowCount + w]  newest pane of window w when s was admitted; Long.MIN_VALUE if
  *                                       the key was counted exactly from its first occurrence. Older
  *                                       panes are read from the pane sketches; the admission pane's cell
  *                                       began as its sketch estimate; newer panes are exact.
  *   admissionError[s * decayCount + d]  overcount bound inherited at admission in decay d (forward units)
  *   admissionBias[s * horizonCount + h] estimate − debiased estimate at admission (point value correction)
- *   trackCount[s]  copy of decays[s * decayCount + trackingDecay], dense for the heap
- *   heap[i]  slot at heap position i (min-heap on trackCount); heapPos[s] = i
+ *   heap[i]     slot at heap position i of a 4-ary min-heap; heapPos[s] = i
+ *   heapKey[i]  the tracking count of heap[i] when it was last placed: at most its current tracking
+ *               count (counts only grow between rescales, which scale both alike). Kept beside the heap
+ *               positions so that a node's four children are compared within one cache line
  * </pre>
  *
  * <h2>Space-Saving with an admission test</h2>
@@ -33,6 +38,12 @@ import java.util.Arrays;
  * {@code W}, so {@code m ≤ W / capacity} and every key heavier than {@code W / capacity} is tracked:
  * the Space-Saving guarantee. The test only skips keys that could not have displaced the minimum, so it
  * saves the heap work without weakening the guarantee.
+ *
+ * <h2>A lazy heap</h2>
+ * Counts only grow, so a slot's heap key may lag behind its count without breaking the one property the
+ * heap must give, the minimum: {@link #minCount()} refreshes the root's key and sifts it down until the
+ * root's key equals its count; then it is at most every key, and every key at most its count. An
+ * increment therefore costs nothing here; the heap work is paid only when the minimum is asked for.
  *
  * <p>The engine fills cells at admission; this class keeps the structure consistent. Not thread-safe.
  */
@@ -57,7 +68,7 @@ final class TrackedTable {
   final double[] admissionBias;
   final int horizonCount;
   /** Copy of each slot's tracking cell, kept dense so the heap's comparisons stay in cache. */
-  private final double[] trackCount;
+  private final double[] heapKey;
 
   private final int[] heap;
   private final int[] heapPos;
@@ -86,7 +97,7 @@ final class TrackedTable {
     this.decays = new double[capacity * decayCount];
     this.admissionPane = new long[capacity * Math.max(windowCount, 1)];
     this.admissionError = new double[capacity * Math.max(decayCount, 1)];
-    this.trackCount = new double[capacity];
+    this.heapKey = new double[capacity];
     this.heap = new int[capacity];
     this.heapPos = new int[capacity];
     this.index = new LongIntHashMap(capacity, 0.5); // low load: evictions remove keys often, and removal shifts clusters
@@ -105,19 +116,42 @@ final class TrackedTable {
     return index.getOrDefault(key, -1);
   }
 
-  /** The tracking count of {@code slot}. */
-  double count(int slot) {
-    return trackCount[slot];
+  /** Index of {@code slot}'s cell for window pane cell {@code paneCell} in {@link #panes}. */
+  int paneIndex(int slot, int paneCell) {
+    return paneCell * capacity + slot;
   }
 
-  /** The smallest tracking count (0 when empty). */
+  /** Index of {@code slot}'s count in decay {@code decay} in {@link #decays}. */
+  int decayIndex(int slot, int decay) {
+    return decay * capacity + slot;
+  }
+
+  /** The tracking count of {@code slot}. */
+  double count(int slot) {
+    return decays[trackingDecay * capacity + slot];
+  }
+
+  /** The smallest tracking count (0 when empty); brings the lazy heap's root up to date first. */
   double minCount() {
-    return size == 0 ? 0 : count(heap[0]);
+    if (size == 0) {
+      return 0;
+    }
+    while (true) {
+      double actual = count(heap[0]);
+      if (actual == heapKey[0]) {
+        return actual;
+      }
+      heapKey[0] = actual;
+      siftDown(0);
+    }
   }
 
   /**
-   * Takes a slot for {@code key}: a fresh one while not full, else the minimum's (evicting it). The
-   * slot's cells are zeroed; the caller fills them and then calls {@link #placed(int)}.
+   * Takes a slot for {@code key}: a fresh one while not full (its cells are zero), else the minimum's
+   * (evicting it; its cells keep the evicted key's values). Either way the caller then sets every decay
+   * cell and, for an evicted slot, every window's admission pane and that pane's cell (cells of older
+   * panes are never read, cells of newer panes are cleared when those panes start), and calls
+   * {@link #placed(int)}.
    */
   int admit(long key, String a, String b, long ha, long hb, long eventMillis) {
     int slot;
@@ -125,11 +159,17 @@ final class TrackedTable {
       slot = size;
       heap[size] = slot;
       heapPos[slot] = size;
+      heapKey[size] = 0;
       size++;
+      clearSlot(slot);
     } else {
+      minCount(); // the root must be the true minimum
       slot = heap[0];
       index.remove(keys[slot]);
       evictions++;
+      if (windowCount > 0) {
+        Arrays.fill(admissionPane, slot * windowCount, slot * windowCount + windowCount, Long.MIN_VALUE);
+      }
     }
     admissions++;
     keys[slot] = key;
@@ -138,8 +178,17 @@ final class TrackedTable {
     hashA[slot] = ha;
     hashB[slot] = hb;
     admittedAtMillis[slot] = eventMillis;
-    Arrays.fill(panes, slot * paneCells, slot * paneCells + paneCells, 0);
-    Arrays.fill(decays, slot * decayCount, slot * decayCount + decayCount, 0.0);
+    index.put(key, slot);
+    return slot;
+  }
+
+  private void clearSlot(int slot) {
+    for (int c = 0; c < paneCells; c++) {
+      panes[paneIndex(slot, c)] = 0;
+    }
+    for (int d = 0; d < decayCount; d++) {
+      decays[decayIndex(slot, d)] = 0.0;
+    }
     if (windowCount > 0) {
       Arrays.fill(admissionPane, slot * windowCount, slot * windowCount + windowCount, Long.MIN_VALUE);
     }
@@ -147,47 +196,37 @@ final class TrackedTable {
       Arrays.fill(admissionError, slot * decayCount, slot * decayCount + decayCount, 0.0);
     }
     Arrays.fill(admissionBias, slot * horizonCount, slot * horizonCount + horizonCount, 0.0);
-    index.put(key, slot);
-    return slot;
   }
 
   /** Restores heap order after {@code slot}'s tracking count was set at admission. */
   void placed(int slot) {
-    trackCount[slot] = decays[slot * decayCount + trackingDecay];
     int pos = heapPos[slot];
+    heapKey[pos] = count(slot);
     siftUp(pos);
-    siftDown(heapPos[slot]);
-  }
-
-  /** Restores heap order after {@code slot}'s tracking count grew. */
-  void increased(int slot) {
-    trackCount[slot] = decays[slot * decayCount + trackingDecay];
     siftDown(heapPos[slot]);
   }
 
   /** Zeroes window pane cell {@code paneCell} of every slot (a pane left its window). */
   void clearPane(int paneCell) {
-    for (int s = 0; s < size; s++) {
-      panes[s * paneCells + paneCell] = 0;
-    }
+    Arrays.fill(panes, paneIndex(0, paneCell), paneIndex(0, paneCell) + capacity, 0);
   }
 
   /** Adds an integer window weight to a pane cell, saturating at Integer.MAX_VALUE. */
   void addToPane(int slot, int paneCell, double weight) {
-    int index = slot * paneCells + paneCell;
+    int index = paneIndex(slot, paneCell);
     panes[index] = (int) Math.min((long) panes[index] + (long) weight, Integer.MAX_VALUE);
   }
 
   /** Multiplies decay {@code decay}'s counts, admission errors and biases by {@code factor} (a rescale). */
   void scaleDecay(int decay, int horizon, double factor) {
     for (int s = 0; s < size; s++) {
-      decays[s * decayCount + decay] *= factor;
+      decays[decayIndex(s, decay)] *= factor;
       admissionError[s * decayCount + decay] *= factor;
       admissionBias[s * horizonCount + horizon] *= factor;
     }
     if (decay == trackingDecay) {
-      for (int s = 0; s < size; s++) {
-        trackCount[s] *= factor;
+      for (int i = 0; i < size; i++) {
+        heapKey[i] *= factor;
       }
     }
   }
@@ -199,58 +238,64 @@ final class TrackedTable {
     for (int s = 0; s < size; s++) {
       heap[s] = s;
       heapPos[s] = s;
-      trackCount[s] = decays[s * decayCount + trackingDecay];
+      heapKey[s] = count(s);
       index.put(keys[s], s);
     }
-    for (int i = size / 2 - 1; i >= 0; i--) {
+    for (int i = (size - 2) / 4; i >= 0; i--) {
       siftDown(i);
     }
   }
 
   private void siftUp(int pos) {
     int slot = heap[pos];
-    double value = count(slot);
+    double value = heapKey[pos];
     while (pos > 0) {
-      int parent = (pos - 1) >>> 1;
-      int parentSlot = heap[parent];
-      if (count(parentSlot) <= value) {
+      int parent = (pos - 1) >>> 2;
+      if (heapKey[parent] <= value) {
         break;
       }
-      heap[pos] = parentSlot;
-      heapPos[parentSlot] = pos;
+      move(parent, pos);
       pos = parent;
     }
     heap[pos] = slot;
+    heapKey[pos] = value;
     heapPos[slot] = pos;
   }
 
   private void siftDown(int pos) {
     int slot = heap[pos];
-    double value = count(slot);
-    int half = size >>> 1;
-    while (pos < half) {
-      int child = 2 * pos + 1;
-      int childSlot = heap[child];
-      double childValue = count(childSlot);
-      int right = child + 1;
-      if (right < size) {
-        int rightSlot = heap[right];
-        double rightValue = count(rightSlot);
-        if (rightValue < childValue) {
-          child = right;
-          childSlot = rightSlot;
-          childValue = rightValue;
+    double value = heapKey[pos];
+    while (true) {
+      int first = 4 * pos + 1;
+      if (first >= size) {
+        break;
+      }
+      int last = Math.min(first + 4, size);
+      int child = first;
+      double childValue = heapKey[first];
+      for (int c = first + 1; c < last; c++) {
+        if (heapKey[c] < childValue) {
+          child = c;
+          childValue = heapKey[c];
         }
       }
       if (value <= childValue) {
         break;
       }
-      heap[pos] = childSlot;
-      heapPos[childSlot] = pos;
+      move(child, pos);
       pos = child;
     }
     heap[pos] = slot;
+    heapKey[pos] = value;
     heapPos[slot] = pos;
+  }
+
+  /** Moves the node at heap position {@code from} to position {@code to}. */
+  private void move(int from, int to) {
+    int slot = heap[from];
+    heap[to] = slot;
+    heapKey[to] = heapKey[from];
+    heapPos[slot] = to;
   }
 
   /**
@@ -260,7 +305,7 @@ final class TrackedTable {
   long stateBytes(TrackedTable shared) {
     long bytes = 8L * keys.length * 4 // keys, hashA, hashB, admittedAtMillis
         + 4L * panes.length + 8L * decays.length + 8L * admissionPane.length + 8L * admissionError.length
-        + 8L * admissionBias.length + 8L * trackCount.length
+        + 8L * admissionBias.length + 8L * heapKey.length
         + 4L * heap.length * 2 // heap, heapPos
         + 2L * 4 * capacity // label references (compressed oops)
         + (long) index.keys.length * 12; // hppc index: long keys + int values
@@ -283,10 +328,13 @@ final class TrackedTable {
     return 40L + label.length();
   }
 
-  /** True when the heap property holds (for assertions in tests). */
+  /**
+   * True when the lazy heap's properties hold (for assertions in tests): heap order on the heap keys,
+   * every heap key at most its slot's count, index and positions consistent.
+   */
   boolean heapValid() {
-    for (int i = 1; i < size; i++) {
-      if (count(heap[(i - 1) >>> 1]) > count(heap[i])) {
+    for (int i = 0; i < size; i++) {
+      if ((i > 0 && heapKey[(i - 1) >>> 2] > heapKey[i]) || heapKey[i] > count(heap[i])) {
         return false;
       }
     }

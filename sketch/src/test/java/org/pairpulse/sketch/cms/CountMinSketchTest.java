@@ -182,4 +182,66 @@ class CountMinSketchTest {
     }
     assertTrue(fullCollisions <= 5, "keys colliding with the heavy key in every row: " + fullCollisions);
   }
+
+  /**
+   * The engine's fast paths against the plain API as the oracle: hashing a key once and updating several
+   * sketches from its row hashes, and sketches whose counters are interleaved in one array, must give
+   * exactly what independent sketches fed key by key give (estimates, debiased estimates, merge, scale,
+   * copy, serialised counters, clear).
+   */
+  @ParameterizedTest
+  @EnumSource(UpdateRule.class)
+  void hashedAndInterleavedSketchesEqualPlainOnes(UpdateRule rule) throws Exception {
+    CountMinSketch[] fast = CountMinSketch.interleaved(3, 512, 4, rule, 99L);
+    CountMinSketch[] plain = new CountMinSketch[3];
+    for (int k = 0; k < 3; k++) {
+      plain[k] = new CountMinSketch(512, 4, rule, 99L);
+    }
+    CountMinSketch narrowPlain = new CountMinSketch(64, 4, rule, 99L); // same seed and depth, other width
+    CountMinSketch narrowFast = new CountMinSketch(64, 4, rule, 99L);
+    long[] rows = new long[8];
+    SplittableRandom random = new SplittableRandom(5);
+    for (int n = 0; n < 20_000; n++) {
+      long key = random.nextLong(3_000) * 0x9E37_79B9L + 11;
+      double weight = 1 + random.nextInt(4);
+      fast[0].rowHashes(key, rows, 4);
+      for (int k = 0; k < 3; k++) {
+        fast[k].addHashed(rows, 4, weight * (k + 1));
+        plain[k].add(key, weight * (k + 1));
+      }
+      narrowFast.addHashed(rows, 4, weight);
+      narrowPlain.add(key, weight);
+    }
+    for (long k = 0; k < 3_000; k++) {
+      long key = k * 0x9E37_79B9L + 11;
+      fast[0].rowHashes(key, rows, 0);
+      for (int s = 0; s < 3; s++) {
+        assertEquals(plain[s].estimate(key), fast[s].estimate(key));
+        assertEquals(plain[s].estimate(key), fast[s].estimateHashed(rows, 0));
+        assertEquals(plain[s].debiasedEstimate(key), fast[s].debiasedEstimateHashed(rows, 0));
+      }
+      assertEquals(narrowPlain.estimate(key), narrowFast.estimateHashed(rows, 0));
+    }
+    for (int s = 0; s < 3; s++) {
+      assertEquals(plain[s].totalWeight(), fast[s].totalWeight());
+      assertTrue(fast[s].copy().sameCountersAs(plain[s]), "copy of interleaved sketch " + s);
+      assertTrue(fast[s].sameCountersAs(plain[s]), "interleaved sketch " + s);
+    }
+    fast[1].scale(0.5);
+    plain[1].scale(0.5);
+    if (rule == UpdateRule.LINEAR) {
+      fast[2].merge(plain[0]);
+      plain[2].merge(plain[0]);
+    }
+    fast[0].clear();
+    plain[0].clear();
+    for (int s = 0; s < 3; s++) {
+      assertTrue(fast[s].sameCountersAs(plain[s]), "after scale, merge and clear, sketch " + s);
+      java.io.ByteArrayOutputStream bytes = new java.io.ByteArrayOutputStream();
+      fast[s].writeCounters(new java.io.DataOutputStream(bytes));
+      CountMinSketch back = new CountMinSketch(512, 4, rule, 99L);
+      back.readCounters(new java.io.DataInputStream(new java.io.ByteArrayInputStream(bytes.toByteArray())));
+      assertTrue(back.sameCountersAs(plain[s]), "serialised interleaved sketch " + s);
+    }
+  }
 }
