@@ -169,23 +169,34 @@ public final class CountMinSketch {
     }
   }
 
-  /** {@link #add} with the key's row hashes from {@link #rowHashes} (of a sketch with equal seed and depth). */
-  public void addHashed(long[] rows, int offset, double weight) {
+  /**
+   * {@link #add} with the key's row hashes from {@link #rowHashes} (of a sketch with equal seed and depth).
+   * Returns the key's {@link #estimate} after the update, read from the counters just written (free,
+   * while they are in cache).
+   */
+  public double addHashed(long[] rows, int offset, double weight) {
     assert weight >= 0 : "negative weight " + weight;
+    totalWeight += weight;
     if (rule == UpdateRule.LINEAR) {
-      for (int row = 0, base = 0; row < depth; row++, base += width) {
-        counters[(base + ((int) rows[offset + row] & mask)) * stride + this.offset] += weight;
-      }
-    } else {
-      double target = estimateHashed(rows, offset) + weight;
+      double min = Double.POSITIVE_INFINITY;
       for (int row = 0, base = 0; row < depth; row++, base += width) {
         int index = (base + ((int) rows[offset + row] & mask)) * stride + this.offset;
-        if (counters[index] < target) {
-          counters[index] = target;
+        double value = counters[index] + weight;
+        counters[index] = value;
+        if (value < min) {
+          min = value;
         }
       }
+      return min;
     }
-    totalWeight += weight;
+    double target = estimateHashed(rows, offset) + weight;
+    for (int row = 0, base = 0; row < depth; row++, base += width) {
+      int index = (base + ((int) rows[offset + row] & mask)) * stride + this.offset;
+      if (counters[index] < target) {
+        counters[index] = target;
+      }
+    }
+    return target; // the smallest counter was target − weight and is now target; none is below
   }
 
   /** {@link #estimate} with the key's row hashes from {@link #rowHashes}. */

@@ -71,6 +71,9 @@ public final class PairEngine {
   private long[] pairKeys = new long[0];
   private int[] pairFirst = new int[0];
   private int[] pairSecond = new int[0];
+  /** Per decay (kind ordinal) and basket item or pair: its estimate right after the basket's update. */
+  private final double[][] itemDecayEstimates;
+  private final double[][] pairDecayEstimates;
   /** Weight of each counted pair of the current basket: 1, or the cap's step k. */
   private double pairWeight;
   /** Per horizon, the ring slot of the current basket's pane (0 for a decay, −1 if it left the window). */
@@ -121,6 +124,8 @@ public final class PairEngine {
     this.itemDepth = horizons[0].itemSketch[0].depth();
     this.pairDepth = horizons[0].pairSketch[0].depth();
     this.itemRows = new long[64 * itemDepth];
+    this.itemDecayEstimates = new double[decayCount][64];
+    this.pairDecayEstimates = new double[decayCount][0];
     this.pairRows = new long[0];
     ensurePairScratch(64);
   }
@@ -156,10 +161,10 @@ public final class PairEngine {
     addToSketches(distinct, pairCount);
     for (int i = 0; i < distinct; i++) {
       long key = hashScratch[i];
-      itemSlotScratch[i] = track(items, false, key, i, -1, itemRows, i * itemDepth, 1.0, eventMillis);
+      itemSlotScratch[i] = track(items, false, key, i, -1, i, itemRows, i * itemDepth, 1.0, eventMillis);
     }
     for (int k = 0; k < pairCount; k++) {
-      track(pairs, true, pairKeys[k], pairFirst[k], pairSecond[k], pairRows, k * pairDepth, pairWeight, eventMillis);
+      track(pairs, true, pairKeys[k], pairFirst[k], pairSecond[k], k, pairRows, k * pairDepth, pairWeight, eventMillis);
     }
     pairUpdates += pairCount;
   }
@@ -227,13 +232,24 @@ public final class PairEngine {
       HorizonState state = horizons[h];
       double weight = weightOfHorizon[h];
       CountMinSketch itemSketch = state.itemSketch[pane];
-      for (int i = 0; i < distinct; i++) {
-        itemSketch.addHashed(itemRows, i * itemDepth, weight);
-      }
       CountMinSketch pairSketch = state.pairSketch[pane];
       double pairAdd = pairWeight * weight;
-      for (int k = 0; k < pairCount; k++) {
-        pairSketch.addHashed(pairRows, k * pairDepth, pairAdd);
+      if (state.isWindow()) {
+        for (int i = 0; i < distinct; i++) {
+          itemSketch.addHashed(itemRows, i * itemDepth, weight);
+        }
+        for (int k = 0; k < pairCount; k++) {
+          pairSketch.addHashed(pairRows, k * pairDepth, pairAdd);
+        }
+      } else { // keep each key's decay estimates, read while the counters are in cache, for the tracked tables
+        double[] itemEstimates = itemDecayEstimates[state.kindOrdinal];
+        double[] pairEstimates = pairDecayEstimates[state.kindOrdinal];
+        for (int i = 0; i < distinct; i++) {
+          itemEstimates[i] = itemSketch.addHashed(itemRows, i * itemDepth, weight);
+        }
+        for (int k = 0; k < pairCount; k++) {
+          pairEstimates[k] = pairSketch.addHashed(pairRows, k * pairDepth, pairAdd);
+        }
       }
     }
   }
@@ -245,16 +261,19 @@ public final class PairEngine {
       pairFirst = new int[size];
       pairSecond = new int[size];
       pairRows = new long[size * pairDepth];
+      for (int d = 0; d < pairDecayEstimates.length; d++) {
+        pairDecayEstimates[d] = new double[size];
+      }
     }
   }
 
   /**
    * Counts one key (an item, {@code second < 0}, or the pair of basket items {@code first} and
-   * {@code second}) in the tracked table, after the sketches have it. Returns its slot, or −1 when it is
-   * not tracked.
+   * {@code second}) in the tracked table, after the sketches have it; {@code scratch} is its index among
+   * the basket's items or pairs. Returns its slot, or −1 when it is not tracked.
    */
-  private int track(TrackedTable table, boolean pair, long key, int first, int second, long[] rows, int rowOffset,
-      double multiplier, long eventMillis) {
+  private int track(TrackedTable table, boolean pair, long key, int first, int second, int scratch, long[] rows,
+      int rowOffset, double multiplier, long eventMillis) {
     int slot = table.find(key);
     if (slot >= 0) {
       for (int h = 0; h < horizons.length; h++) {
@@ -271,8 +290,7 @@ public final class PairEngine {
       }
       return slot;
     }
-    HorizonState tracking = horizons[trackingHorizon];
-    CountMinSketch trackingSketch = pair ? tracking.pairSketch[0] : tracking.itemSketch[0];
+    double[][] decayEstimates = pair ? pairDecayEstimates : itemDecayEstimates;
     double add = multiplier * weightOfHorizon[trackingHorizon];
     if (!table.isFull()) {
       // never full so far: nothing was ever evicted or refused, so this key was never seen: exact start
@@ -292,15 +310,15 @@ public final class PairEngine {
       table.placed(slot);
       return slot;
     }
-    double estimate = trackingSketch.estimateHashed(rows, rowOffset);
+    double estimate = decayEstimates[horizons[trackingHorizon].kindOrdinal][scratch];
     double min = table.minCount();
-    if (!(estimate > min) && !burstHeavy(table, pair, rows, rowOffset)) {
+    if (!(estimate > min) && !burstHeavy(table, pair, decayEstimates[horizons[burstHorizon].kindOrdinal][scratch])) {
       table.rejections++;
       return -1;
     }
     double start = Math.min(estimate, min + add);
     slot = admit(table, pair, key, first, second, eventMillis);
-    initialiseFromSketches(table, slot, pair, rows, rowOffset, start, estimate);
+    initialiseFromSketches(table, slot, pair, rows, rowOffset, decayEstimates, scratch, start, estimate);
     table.placed(slot);
     return slot;
   }
@@ -328,10 +346,10 @@ public final class PairEngine {
    * although its long-horizon weight may not beat the minimum yet. Its starting rank is still at most
    * {@code min + w}, so the Space-Saving bound on the tracking weights is kept.
    */
-  private boolean burstHeavy(TrackedTable table, boolean pair, long[] rows, int rowOffset) {
+  private boolean burstHeavy(TrackedTable table, boolean pair, double burstEstimate) {
     HorizonState burst = horizons[burstHorizon];
     CountMinSketch sketch = pair ? burst.pairSketch[0] : burst.itemSketch[0];
-    return sketch.estimateHashed(rows, rowOffset) > sketch.totalWeight() / table.capacity;
+    return burstEstimate > sketch.totalWeight() / table.capacity;
   }
 
   /**
@@ -351,7 +369,7 @@ public final class PairEngine {
    * estimate per horizon, not one per pane.
    */
   private void initialiseFromSketches(TrackedTable table, int slot, boolean pair, long[] rows, int rowOffset,
-      double trackingStart, double trackingEstimate) {
+      double[][] decayEstimates, int scratch, double trackingStart, double trackingEstimate) {
     for (HorizonState state : horizons) {
       CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
       int biasIndex = slot * table.horizonCount + state.index;
@@ -367,7 +385,7 @@ public final class PairEngine {
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = trackingStart - lower;
         table.admissionBias[biasIndex] = trackingStart - Math.min(trackingStart, sketches[0].debiasedEstimateHashed(rows, rowOffset));
       } else {
-        double estimate = sketches[0].estimateHashed(rows, rowOffset);
+        double estimate = decayEstimates[state.kindOrdinal][scratch];
         table.decays[table.decayIndex(slot, state.kindOrdinal)] = estimate;
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = Math.min(estimate, sketches[0].maxError());
         table.admissionBias[biasIndex] = estimate - sketches[0].debiasedEstimateHashed(rows, rowOffset);
@@ -473,6 +491,9 @@ public final class PairEngine {
       itemScratch = new String[size];
       itemSlotScratch = new int[size];
       itemRows = new long[size * itemDepth];
+      for (int d = 0; d < itemDecayEstimates.length; d++) {
+        itemDecayEstimates[d] = new double[size];
+      }
     }
     int count = 0;
     for (String item : basketItems) {

@@ -16,7 +16,8 @@ import java.util.Arrays;
  *                                       Pane-major (c * capacity + s): the cells of the current panes of
  *                                       all slots lie together, so updates stay in cache and a pane that
  *                                       leaves is cleared in one run
- *   decays[decayIndex(s, d)]            count of the key in decay d (forward-decay units), decay-major
+ *   decays[decayIndex(s, d)]            count of the key in decay d (forward-decay units), slot-major:
+ *                                       an update of a tracked key touches one line for all its decays
  *   admissionPane[s * windowCount + w]  newest pane of window w when s was admitted; Long.MIN_VALUE if
  *                                       the key was counted exactly from its first occurrence. Older
  *                                       panes are read from the pane sketches; the admission pane's cell
@@ -121,14 +122,14 @@ final class TrackedTable {
     return paneCell * capacity + slot;
   }
 
-  /** Index of {@code slot}'s count in decay {@code decay} in {@link #decays}. */
+  /** Index of {@code slot}'s count in decay {@code decay} in {@link #decays}: a slot's decays lie together. */
   int decayIndex(int slot, int decay) {
-    return decay * capacity + slot;
+    return slot * decayCount + decay;
   }
 
   /** The tracking count of {@code slot}. */
   double count(int slot) {
-    return decays[trackingDecay * capacity + slot];
+    return decays[decayIndex(slot, trackingDecay)];
   }
 
   /** The smallest tracking count (0 when empty); brings the lazy heap's root up to date first. */
