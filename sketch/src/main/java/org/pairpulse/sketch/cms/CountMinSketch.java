@@ -213,24 +213,44 @@ public final class CountMinSketch {
 
   /** {@link #debiasedEstimate} with the key's row hashes from {@link #rowHashes}. */
   public double debiasedEstimateHashed(long[] rows, int offset) {
-    double upper = estimateHashed(rows, offset);
     if (rule != UpdateRule.LINEAR) {
-      return upper;
+      return estimateHashed(rows, offset);
     }
-    double[] sorted = scratch;
-    for (int row = 0, base = 0; row < depth; row++, base += width) {
-      double counter = counters[(base + ((int) rows[offset + row] & mask)) * stride + this.offset];
-      double corrected = counter - (totalWeight - counter) * othersShare;
-      int j = row - 1; // insertion sort: depth is small
-      while (j >= 0 && sorted[j] > corrected) {
-        sorted[j + 1] = sorted[j];
-        j--;
+    // the correction c − (W − c)/(width − 1) grows with c, so the median of corrected counters is the
+    // corrected median counter: one pass for min and median, no per-row division
+    double upper;
+    double median;
+    if (depth == 4) {
+      double c0 = counterAt(rows, offset, 0);
+      double c1 = counterAt(rows, offset, 1);
+      double c2 = counterAt(rows, offset, 2);
+      double c3 = counterAt(rows, offset, 3);
+      double low = Math.min(Math.min(c0, c1), Math.min(c2, c3));
+      double high = Math.max(Math.max(c0, c1), Math.max(c2, c3));
+      upper = low;
+      median = 0.5 * ((c0 + c1 + c2 + c3) - low - high);
+    } else {
+      double[] sorted = scratch;
+      for (int row = 0; row < depth; row++) {
+        double counter = counterAt(rows, offset, row);
+        int j = row - 1; // insertion sort: depth is small
+        while (j >= 0 && sorted[j] > counter) {
+          sorted[j + 1] = sorted[j];
+          j--;
+        }
+        sorted[j + 1] = counter;
       }
-      sorted[j + 1] = corrected;
+      upper = sorted[0];
+      median = (depth & 1) == 1 ? sorted[depth / 2] : 0.5 * (sorted[depth / 2 - 1] + sorted[depth / 2]);
     }
-    double median = (depth & 1) == 1 ? sorted[depth / 2] : 0.5 * (sorted[depth / 2 - 1] + sorted[depth / 2]);
-    return Math.max(Math.max(0, upper - maxError()), Math.min(upper, median));
+    double corrected = median - (totalWeight - median) * othersShare;
+    return Math.max(Math.max(0, upper - maxError()), Math.min(upper, corrected));
   }
+
+  private double counterAt(long[] rows, int offset, int row) {
+    return counters[(row * width + ((int) rows[offset + row] & mask)) * stride + this.offset];
+  }
+
 
   /** The point estimate: the smallest counter of the key's columns. Never below the true weight. */
   public double estimate(long key) {
