@@ -177,6 +177,21 @@ public final class CountMinSketch {
   public double addHashed(long[] rows, int offset, double weight) {
     assert weight >= 0 : "negative weight " + weight;
     totalWeight += weight;
+    if (rule == UpdateRule.LINEAR && depth == 4) { // the default depth, unrolled: four independent updates
+      int i0 = (((int) rows[offset] & mask)) * stride + this.offset;
+      int i1 = (width + ((int) rows[offset + 1] & mask)) * stride + this.offset;
+      int i2 = (2 * width + ((int) rows[offset + 2] & mask)) * stride + this.offset;
+      int i3 = (3 * width + ((int) rows[offset + 3] & mask)) * stride + this.offset;
+      double v0 = counters[i0] + weight;
+      double v1 = counters[i1] + weight;
+      double v2 = counters[i2] + weight;
+      double v3 = counters[i3] + weight;
+      counters[i0] = v0;
+      counters[i1] = v1;
+      counters[i2] = v2;
+      counters[i3] = v3;
+      return Math.min(Math.min(v0, v1), Math.min(v2, v3));
+    }
     if (rule == UpdateRule.LINEAR) {
       double min = Double.POSITIVE_INFINITY;
       for (int row = 0, base = 0; row < depth; row++, base += width) {
@@ -201,6 +216,10 @@ public final class CountMinSketch {
 
   /** {@link #estimate} with the key's row hashes from {@link #rowHashes}. */
   public double estimateHashed(long[] rows, int offset) {
+    if (depth == 4) {
+      return Math.min(Math.min(counterAt(rows, offset, 0), counterAt(rows, offset, 1)),
+          Math.min(counterAt(rows, offset, 2), counterAt(rows, offset, 3)));
+    }
     double min = Double.POSITIVE_INFINITY;
     for (int row = 0, base = 0; row < depth; row++, base += width) {
       double value = counters[(base + ((int) rows[offset + row] & mask)) * stride + this.offset];

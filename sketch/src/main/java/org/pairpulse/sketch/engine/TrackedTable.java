@@ -75,6 +75,8 @@ final class TrackedTable {
   private final int[] heapPos;
   private final LongIntHashMap index;
   private int size;
+  /** Slots below this have held a key at some time (their cells may be dirty); the rest are as allocated. */
+  private int everUsed;
 
   long admissions;
   long evictions;
@@ -97,6 +99,7 @@ final class TrackedTable {
     this.panes = new int[capacity * Math.max(paneCells, 1)];
     this.decays = new double[capacity * decayCount];
     this.admissionPane = new long[capacity * Math.max(windowCount, 1)];
+    Arrays.fill(admissionPane, Long.MIN_VALUE); // "counted exactly from its first occurrence" until set
     this.admissionError = new double[capacity * Math.max(decayCount, 1)];
     this.heapKey = new double[capacity];
     this.heap = new int[capacity];
@@ -162,7 +165,11 @@ final class TrackedTable {
       heapPos[slot] = size;
       heapKey[size] = 0;
       size++;
-      clearSlot(slot);
+      if (slot < everUsed) {
+        clearSlot(slot); // held a key before a bulk load shrank the table; a slot never used is all zeros
+      } else {
+        everUsed = slot + 1;
+      }
     } else {
       minCount(); // the root must be the true minimum
       slot = heap[0];
@@ -235,6 +242,7 @@ final class TrackedTable {
   /** Rebuilds heap and index from the slot arrays (after a bulk load). */
   void rebuild(int newSize) {
     size = newSize;
+    everUsed = Math.max(everUsed, newSize);
     index.clear();
     for (int s = 0; s < size; s++) {
       heap[s] = s;
