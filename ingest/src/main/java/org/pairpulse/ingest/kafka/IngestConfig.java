@@ -47,6 +47,7 @@ public final class IngestConfig extends AbstractConfig {
   public static final String POLL_TIMEOUT_MS = "poll.timeout.ms";
   public static final String ENGINE_THREAD = "engine.thread";
   public static final String ENGINE_QUEUE_BATCHES = "engine.queue.batches";
+  public static final String ENGINE_THREADS = "engine.threads";
   public static final String REFRESH_INTERVAL_MS = "refresh.interval.ms";
   public static final String ALLOWED_LATENESS_MS = "allowed.lateness.ms";
   public static final String DEDUPE_HORIZON_MS = "dedupe.horizon.ms";
@@ -119,6 +120,9 @@ public final class IngestConfig extends AbstractConfig {
           "Count baskets on a thread of their own (the poll loop decodes the next batch meanwhile).")
       .define(ENGINE_QUEUE_BATCHES, Type.INT, 8, Range.between(1, 1024), Importance.LOW,
           "Poll batches that may wait for the engine thread before the poll loop blocks (backpressure).")
+      .define(ENGINE_THREADS, Type.INT, 1, Range.between(1, 64), Importance.MEDIUM,
+          "Engine threads (lanes); partition p is counted by lane p mod engine.threads, each lane with its own queue "
+              + "of engine.queue.batches. Ignored (one lane) when engine.thread=false.")
       .define(REFRESH_INTERVAL_MS, Type.LONG, 2_000L, Range.atLeast(0), Importance.MEDIUM,
           "Publish a pair table of this instance's partitions this often; 0: never.")
       .define(ALLOWED_LATENESS_MS, Type.LONG, HOUR, Range.atLeast(0), Importance.HIGH,

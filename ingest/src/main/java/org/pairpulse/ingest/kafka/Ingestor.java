@@ -63,6 +63,7 @@ import org.pairpulse.ingest.metrics.IngestMetrics;
 import org.pairpulse.ingest.segment.SegmentEngines;
 import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.ingest.worker.BasketBatch;
+import org.pairpulse.ingest.worker.EngineLanes;
 import org.pairpulse.ingest.worker.EngineWorker;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
@@ -91,8 +92,8 @@ import org.slf4j.LoggerFactory;
  * The poll loop decodes it ({@link EventDecoder}); an unusable record goes to the dead-letter topic with
  * its reason and processing goes on. A decoded event passes its partition's {@link PartitionFront}
  * (lateness, dedupe, line-item assembly); the baskets that come out are counted by the partition's engine
- * on the engine thread ({@link EngineWorker}). State is per input partition, so partitions move freely
- * between instances of one consumer group.
+ * on an engine thread: {@code engine.threads} lanes, partition p on lane p mod lanes ({@link EngineLanes}). State is
+ * per input partition, so partitions move freely between instances of one consumer group.
  *
  * <h2>Segments</h2>
  * With {@code segments.attributes} (see {@link org.pairpulse.ingest.segment.SegmentSettings}), each partition also
@@ -110,8 +111,8 @@ import org.slf4j.LoggerFactory;
  * with {@code none} there are none.
  *
  * <h2>Threading</h2>
- * {@link #start()} starts the poll thread, which owns the Kafka clients and the fronts; the engine thread
- * owns the engines. The public methods may be called from any thread; requests that need the state
+ * {@link #start()} starts the poll thread, which owns the Kafka clients and the fronts; each engine thread
+ * owns the engines of its partitions. The public methods may be called from any thread; requests that need the state
  * ({@link #view()}) are handed to the poll thread and answered through a future. {@link #close()} stops
  * the loop, takes the final checkpoint, commits and closes the clients (bounded by
  * {@code shutdown.timeout.ms}).
@@ -141,7 +142,7 @@ public final class Ingestor implements AutoCloseable {
   private Consumer<byte[], byte[]> stateReader;
   /** Created when a restore first needs a state partition's log end (see {@link StateTopicStore}). */
   private Admin stateAdmin;
-  private EngineWorker worker;
+  private EngineLanes lanes;
   private EventDecoder decoder;
   private DeadLetters deadLetters;
   private StateTopicStore stateStore;
@@ -274,7 +275,7 @@ public final class Ingestor implements AutoCloseable {
    */
   public CompletableFuture<java.util.SortedMap<String, PairEngine>> segmentViews() {
     CompletableFuture<java.util.SortedMap<String, PairEngine>> result = new CompletableFuture<>();
-    tasks.add(() -> worker.mergedSegmentCopies().whenComplete((engines, error) -> {
+    tasks.add(() -> lanes.mergedSegmentCopies().whenComplete((engines, error) -> {
       if (error != null) {
         result.completeExceptionally(error);
       } else {
@@ -287,7 +288,7 @@ public final class Ingestor implements AutoCloseable {
   /** A merged copy of this instance's partition engines of segment {@code all}, after everything read so far is counted. */
   public CompletableFuture<PairEngine> view() {
     CompletableFuture<PairEngine> result = new CompletableFuture<>();
-    tasks.add(() -> worker.mergedCopy().whenComplete((engine, error) -> {
+    tasks.add(() -> lanes.mergedCopy().whenComplete((engine, error) -> {
       if (error != null) {
         result.completeExceptionally(error);
       } else {
@@ -343,8 +344,8 @@ public final class Ingestor implements AutoCloseable {
 
   private void open() throws ExecutionException, InterruptedException, TimeoutException {
     decoder = new EventDecoder(config.eventLimits(clock));
-    worker = new EngineWorker(engineConfig, segmentSettings, metrics, config.getBoolean(IngestConfig.ENGINE_THREAD),
-        config.getInt(IngestConfig.ENGINE_QUEUE_BATCHES));
+    lanes = new EngineLanes(engineConfig, segmentSettings, metrics, config.getBoolean(IngestConfig.ENGINE_THREAD),
+        config.getInt(IngestConfig.ENGINE_THREADS), config.getInt(IngestConfig.ENGINE_QUEUE_BATCHES));
     int statePartitions;
     int chunkBytes = 0;
     try (Admin admin = Admin.create(adminProps())) {
@@ -497,7 +498,7 @@ public final class Ingestor implements AutoCloseable {
       slot.dirty = true;
       positions.put(tp, slot.nextOffset);
       basketsSinceCheckpoint += batch.size();
-      worker.apply(tp, batch);
+      lanes.apply(tp, batch);
     }
   }
 
@@ -512,7 +513,7 @@ public final class Ingestor implements AutoCloseable {
   private void refresh(long now) {
     lastRefreshMillis = now;
     long startNanos = System.nanoTime();
-    pendingRefresh = worker.refresh(++tableVersion, now).thenAccept(tables -> {
+    pendingRefresh = lanes.refresh(++tableVersion, now).thenAccept(tables -> {
       metrics.refreshed(System.nanoTime() - startNanos); // before the tables are visible: a reader sees both
       publish(tables);
     });
@@ -558,7 +559,7 @@ public final class Ingestor implements AutoCloseable {
       return true;
     }
     long startNanos = System.nanoTime();
-    Map<TopicPartition, EngineWorker.PartitionSnapshot> engines = worker.snapshot(dirty).join();
+    Map<TopicPartition, EngineWorker.PartitionSnapshot> engines = lanes.snapshot(dirty).join();
     List<PartitionCheckpoint> checkpoints = new ArrayList<>(dirty.size());
     for (TopicPartition tp : dirty) {
       Slot slot = slots.get(tp);
@@ -714,7 +715,7 @@ public final class Ingestor implements AutoCloseable {
           LOG.warn("{}: the checkpoint holds segments {} of attributes no longer in segments.attributes; they are dropped",
               tp, dropped);
         }
-        worker.restore(tp, Snapshots.read(cp.engine()), segments).join();
+        lanes.restore(tp, Snapshots.read(cp.engine()), segments).join();
         consumer.seek(tp, cp.nextOffset());
         slot.nextOffset = cp.nextOffset();
         slot.checkpointId = cp.checkpointId();
@@ -723,7 +724,7 @@ public final class Ingestor implements AutoCloseable {
         LOG.info("restored {} from checkpoint {} (next offset {})", tp, cp.checkpointId(), cp.nextOffset());
       } else {
         slot = new Slot(new PartitionFront(frontSettings));
-        worker.drop(List.of(tp)).join();
+        lanes.drop(List.of(tp)).join();
         long start;
         if (starts.containsKey(tp)) {
           start = starts.get(tp);
@@ -744,7 +745,7 @@ public final class Ingestor implements AutoCloseable {
   }
 
   private void forget(Collection<TopicPartition> partitions) {
-    worker.drop(partitions).join();
+    lanes.drop(partitions).join();
     for (TopicPartition tp : partitions) {
       slots.remove(tp);
       positions.remove(tp);
@@ -836,8 +837,8 @@ public final class Ingestor implements AutoCloseable {
     if (stateAdmin != null) {
       stateAdmin.close(Duration.ofSeconds(5));
     }
-    if (worker != null) {
-      worker.close();
+    if (lanes != null) {
+      lanes.close();
     }
   }
 

@@ -41,7 +41,7 @@ import org.pairpulse.sketch.time.EventClock;
  *       <td>baskets whose value of a segment attribute made no segment: counted in {@code all} only</td></tr>
  * </table>
  *
- * Thread-safe: the poll loop and the engine thread both record.
+ * Thread-safe: the poll loop and the engine threads (lanes) all record.
  */
 public final class IngestMetrics {
   public static final String PREFIX = "pairpulse.ingest.";
@@ -65,8 +65,8 @@ public final class IngestMetrics {
   private final Timer refreshDuration;
   private final Map<String, Gauge> lagGauges = new ConcurrentHashMap<>();
   private final Map<String, AtomicLong> lags = new ConcurrentHashMap<>();
-  private final AtomicLong stateBytes = new AtomicLong();
-  private final AtomicLong segmentEngines = new AtomicLong();
+  private final PerLane stateBytes = new PerLane();
+  private final PerLane segmentEngines = new PerLane();
   private final Map<String, Counter> segmentSkips = new ConcurrentHashMap<>();
   private volatile long lastCheckpointMillis;
   private final Rate recordRate;
@@ -98,8 +98,8 @@ public final class IngestMetrics {
         .register(registry);
     Gauge.builder(PREFIX + "checkpoint.age", this, m -> (m.clock.millis() - m.lastCheckpointMillis) / 1000.0)
         .baseUnit("seconds").register(registry);
-    Gauge.builder(PREFIX + "state.bytes", stateBytes, AtomicLong::get).baseUnit("bytes").register(registry);
-    Gauge.builder(PREFIX + "segment.engines", segmentEngines, AtomicLong::get)
+    Gauge.builder(PREFIX + "state.bytes", stateBytes, PerLane::sum).baseUnit("bytes").register(registry);
+    Gauge.builder(PREFIX + "segment.engines", segmentEngines, PerLane::sum)
         .description("segment engines held (besides one 'all' engine per partition)").register(registry);
     recordRate = new Rate(records);
     basketRate = new Rate(baskets);
@@ -152,12 +152,14 @@ public final class IngestMetrics {
     checkpointFailures.increment();
   }
 
-  public void stateBytes(long bytes) {
-    stateBytes.set(bytes);
+  /** The state bytes of the engines of engine lane {@code lane} (the gauge reports the sum over lanes). */
+  public void stateBytes(int lane, long bytes) {
+    stateBytes.set(lane, bytes);
   }
 
-  public void segmentEngines(long count) {
-    segmentEngines.set(count);
+  /** The segment engines of engine lane {@code lane} (the gauge reports the sum over lanes). */
+  public void segmentEngines(int lane, long count) {
+    segmentEngines.set(lane, count);
   }
 
   /** A basket whose value of {@code attribute} made no segment ({@code reason}: over_bound, invalid_value). */
@@ -234,6 +236,22 @@ public final class IngestMetrics {
   /** Checkpoint transactions that failed to commit (each one rewinds the instance's partitions). */
   public double checkpointFailureCount() {
     return checkpointFailures.count();
+  }
+
+  /**
+   * A gauge's value kept per engine lane, reported as the sum: each lane sets only its own value, so lanes never
+   * overwrite each other's totals.
+   */
+  private static final class PerLane {
+    private final Map<Integer, Long> values = new ConcurrentHashMap<>();
+
+    void set(int lane, long value) {
+      values.put(lane, value);
+    }
+
+    double sum() {
+      return values.values().stream().mapToLong(Long::longValue).sum();
+    }
   }
 
   /** A per-second rate of a counter, over the interval between two updates. */

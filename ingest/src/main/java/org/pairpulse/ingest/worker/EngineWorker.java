@@ -12,15 +12,16 @@ import java.util.TreeMap;
 import java.util.concurrent.ArrayBlockingQueue;
 import java.util.concurrent.BlockingQueue;
 import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.TimeUnit;
 import java.util.function.Function;
+import java.util.function.Supplier;
 import org.apache.kafka.common.TopicPartition;
 import org.pairpulse.ingest.metrics.IngestMetrics;
 import org.pairpulse.ingest.segment.SegmentEngines;
 import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
-import org.pairpulse.sketch.engine.PairTables;
 import org.pairpulse.sketch.engine.Snapshots;
 import org.pairpulse.sketch.table.PairTable;
 import org.slf4j.Logger;
@@ -43,6 +44,10 @@ import org.slf4j.LoggerFactory;
  * <h2>Failure</h2>
  * An exception in the engine stops the worker; later calls throw {@link IllegalStateException} with it as
  * the cause, and the ingestor stops without committing, so nothing is lost.
+ *
+ * <h2>Lanes</h2>
+ * {@link EngineLanes} runs several workers, each the writer of its own partitions (a lane). A lane reports its own
+ * state bytes and segment engines to the metrics under its index, which sum them.
  */
 public final class EngineWorker implements AutoCloseable {
   private static final Logger LOG = LoggerFactory.getLogger(EngineWorker.class);
@@ -59,8 +64,10 @@ public final class EngineWorker implements AutoCloseable {
   private final SegmentSettings segmentSettings;
   private final boolean segmented;
   private final IngestMetrics metrics;
+  private final int lane;
   private final Map<TopicPartition, SegmentEngines> engines = new HashMap<>(); // worker thread only
-  private final Set<String> skipsLogged = new java.util.HashSet<>(); // worker thread only
+  /** Attribute and reason of the skips already logged; shared by the lanes, so each is logged once per instance. */
+  private final Set<String> skipsLogged;
   private final BlockingQueue<Runnable> queue;
   private final Thread thread;
   private volatile Throwable failure;
@@ -73,13 +80,24 @@ public final class EngineWorker implements AutoCloseable {
 
   public EngineWorker(EngineConfig config, SegmentSettings segments, IngestMetrics metrics, boolean ownThread,
       int queueCapacity) {
+    this(config, segments, metrics, ownThread, queueCapacity, 0, 1, ConcurrentHashMap.newKeySet());
+  }
+
+  /**
+   * Lane {@code lane} of {@code laneCount}: its thread is {@code pairpulse-engine-<lane>} when there are several
+   * ({@code pairpulse-engine} otherwise), and it logs a skip only if no lane sharing {@code skipsLogged} did.
+   */
+  EngineWorker(EngineConfig config, SegmentSettings segments, IngestMetrics metrics, boolean ownThread,
+      int queueCapacity, int lane, int laneCount, Set<String> skipsLogged) {
     this.config = Objects.requireNonNull(config, "config");
     this.segmentSettings = Objects.requireNonNull(segments, "segments");
     this.segmented = segments.enabled();
     this.metrics = Objects.requireNonNull(metrics, "metrics");
+    this.lane = lane;
+    this.skipsLogged = Objects.requireNonNull(skipsLogged, "skipsLogged");
     if (ownThread) {
       this.queue = new ArrayBlockingQueue<>(Math.max(1, queueCapacity));
-      this.thread = new Thread(this::run, "pairpulse-engine");
+      this.thread = new Thread(this::run, laneCount == 1 ? "pairpulse-engine" : "pairpulse-engine-" + lane);
       this.thread.setDaemon(true);
       this.thread.start();
     } else {
@@ -241,21 +259,7 @@ public final class EngineWorker implements AutoCloseable {
    * {@value SegmentSettings#ALL}'s do even when the segment's newest basket is older.
    */
   public CompletableFuture<Map<String, PairTable>> refresh(long version, long publishedAtMillis) {
-    return call(() -> {
-      PairTables.Options options = PairTables.Options.of(version, publishedAtMillis);
-      Map<String, PairTable> tables = new java.util.LinkedHashMap<>();
-      PairEngine all = mergeNow();
-      tables.put(SegmentSettings.ALL, all.refresh(options));
-      if (segmented) {
-        mergeSegmentsNow().forEach((name, merged) -> {
-          if (all.watermarkMillis() != Long.MIN_VALUE) {
-            merged.advanceTo(all.watermarkMillis());
-          }
-          tables.put(name, merged.refresh(options));
-        });
-      }
-      return tables;
-    });
+    return call(() -> EngineMerges.tables(mergedNow(), version, publishedAtMillis));
   }
 
   /** New engines holding the merge of every partition's segment engines, per segment in name order. */
@@ -276,20 +280,25 @@ public final class EngineWorker implements AutoCloseable {
     call(() -> null).join();
   }
 
-  private PairEngine mergeNow() {
-    PairEngine merged = new PairEngine(config);
-    sortedPartitions().forEach(tp -> merged.merge(engines.get(tp).all()));
-    return merged;
+  /** The merge of every partition's {@value SegmentSettings#ALL} engine, in partition order. Worker thread only. */
+  PairEngine mergeNow() {
+    return EngineMerges.merge(config, sortedPartitions().stream().map(tp -> engines.get(tp).all()).toList());
   }
 
-  private SortedMap<String, PairEngine> mergeSegmentsNow() {
-    SortedMap<String, PairEngine> merged = new TreeMap<>();
-    EngineConfig segmentConfig = segmentSettings.segmentEngine(config);
-    for (TopicPartition tp : sortedPartitions()) {
-      engines.get(tp).segments().forEach((name, engine) ->
-          merged.computeIfAbsent(name, n -> new PairEngine(segmentConfig)).merge(engine));
-    }
-    return merged;
+  /** The merge of every partition's segment engines, per segment, in partition order. Worker thread only. */
+  SortedMap<String, PairEngine> mergeSegmentsNow() {
+    return EngineMerges.mergeSegments(segmentSettings.segmentEngine(config),
+        sortedPartitions().stream().map(tp -> engines.get(tp).segments()).toList());
+  }
+
+  /** True when the worker holds engines of no partition. Worker thread only. */
+  boolean emptyNow() {
+    return engines.isEmpty();
+  }
+
+  /** Both merges, at the same point of the command order. Worker thread only. */
+  EngineMerges.Merged mergedNow() {
+    return new EngineMerges.Merged(mergeNow(), mergeSegmentsNow());
   }
 
   private List<TopicPartition> sortedPartitions() {
@@ -305,19 +314,16 @@ public final class EngineWorker implements AutoCloseable {
       bytes += partitionEngines.stateBytes();
       segmentEngines += partitionEngines.segments().size();
     }
-    metrics.stateBytes(bytes);
-    metrics.segmentEngines(segmentEngines);
+    metrics.stateBytes(lane, bytes);
+    metrics.segmentEngines(lane, segmentEngines);
   }
 
-  private interface Task<T> {
-    T run();
-  }
-
-  private <T> CompletableFuture<T> call(Task<T> task) {
+  /** Runs {@code task} as a command, in submission order with the others (on the worker's thread, if it has one). */
+  <T> CompletableFuture<T> call(Supplier<T> task) {
     CompletableFuture<T> result = new CompletableFuture<>();
     Runnable command = () -> {
       try {
-        result.complete(task.run());
+        result.complete(task.get());
       } catch (RuntimeException | Error e) {
         result.completeExceptionally(e);
         throw e;

@@ -24,7 +24,7 @@ import org.apache.kafka.common.TopicPartition;
 import org.junit.jupiter.api.extension.ExtendWith;
 import org.junit.jupiter.api.io.TempDir;
 import org.junit.jupiter.params.ParameterizedTest;
-import org.junit.jupiter.params.provider.ValueSource;
+import org.junit.jupiter.params.provider.CsvSource;
 import org.pairpulse.ingest.checkpoint.LocalDirectoryStore;
 import org.pairpulse.ingest.checkpoint.PartitionCheckpoint;
 import org.pairpulse.ingest.event.DeadLetterReason;
@@ -41,17 +41,20 @@ import org.pairpulse.sketch.time.EventClock;
  * kill -9 at a random point, restart, and the final counts equal those of one uninterrupted run: for both
  * checkpoint stores, in segment {@code all} and in every segment {@code region=<value>} (segment attributes are
  * configured, so each checkpoint holds several engines). The instance runs in a child JVM that is destroyed forcibly mid-stream (mid-transaction
- * or mid-file-write, wherever it happens to be); the restart runs in this JVM.
+ * or mid-file-write, wherever it happens to be); the restart runs in this JVM. With {@code engine.threads=2} the
+ * killed and the restarted instance count on two engine lanes, and every partition's engine state still equals that
+ * of the uninterrupted run on one; the restarted instance's merged view and published tables hold the exact counts.
  */
 @ExtendWith(SharedBroker.class)
 class CrashRestartTest {
 
-  @ParameterizedTest(name = "checkpoint.store={0}")
-  @ValueSource(strings = {"kafka", "local"})
-  void killedAtARandomPointThenRestartedCountsExactlyOnce(String store, Broker broker, @TempDir Path dir) throws Exception {
+  @ParameterizedTest(name = "checkpoint.store={0}, engine.threads={1}")
+  @CsvSource({"kafka, 1", "local, 1", "kafka, 2"})
+  void killedAtARandomPointThenRestartedCountsExactlyOnce(String store, int engineThreads, Broker broker, @TempDir Path dir)
+      throws Exception {
     long seed = Long.getLong("crash.seed", System.nanoTime());
     Random random = new Random(seed);
-    String topic = "crash-" + store;
+    String topic = "crash-" + store + "-" + engineThreads;
     broker.createTopic(topic, 3, Map.of());
     if (store.equals("kafka")) { // a small message limit forces checkpoints into several chunks
       broker.createTopic(topic + "-state", 3, Map.of("cleanup.policy", "compact", "max.message.bytes", "200000"));
@@ -65,12 +68,14 @@ class CrashRestartTest {
     props.put(IngestConfig.INSTANCE_ID, "crashy");
     props.put(IngestConfig.CHECKPOINT_DIR, dir.resolve("checkpoints").toString());
     props.put(IngestConfig.CHECKPOINT_INTERVAL_BASKETS, "150");
-    props.put(IngestConfig.ENGINE_THREAD, Boolean.toString(random.nextBoolean()));
+    props.put(IngestConfig.ENGINE_THREAD, Boolean.toString(engineThreads > 1 || random.nextBoolean()));
+    props.put(IngestConfig.ENGINE_THREADS, Integer.toString(engineThreads));
     props.put("kafka.consumer.max.poll.records", "25");
     Path propsFile = dir.resolve("child.properties");
     ChildIngest.write(props, propsFile);
     long killAt = 100 + random.nextInt(firstPart - 200);
-    System.out.printf("crash test %s: seed %d, kill after %d of %d records%n", store, seed, killAt, firstPart);
+    System.out.printf("crash test %s, %d engine threads: seed %d, kill after %d of %d records%n", store, engineThreads, seed,
+        killAt, firstPart);
 
     Process child = ChildIngest.launch(propsFile, dir.resolve("child.log"));
     AtomicLong seen = new AtomicLong();
@@ -107,6 +112,15 @@ class CrashRestartTest {
         Await.until(Duration.ofSeconds(60), "a restore from a checkpoint", () -> restarted.metrics().restoreCount() > 0,
             () -> "restores " + restarted.metrics().restoreCount());
       }
+      w.assertExact(restarted.view().get(120, TimeUnit.SECONDS));
+      w.assertExactSegments(restarted.segmentViews().get(120, TimeUnit.SECONDS));
+      Await.until(Duration.ofSeconds(60), "a published pair table with every basket and one per segment",
+          () -> restarted.pairTables().current().horizon("day").map(h -> h.baskets()).orElse(0.0) >= w.baskets
+              && restarted.segmentTables().keySet().equals(w.segments.keySet()),
+          () -> "N " + restarted.pairTables().current().horizon("day").map(h -> h.baskets()) + ", segments "
+              + restarted.segmentTables().keySet());
+      assertEquals(w.baskets, restarted.pairTables().current().horizon("day").map(h -> h.baskets()).orElse(0.0), 0.0,
+          "N of the published pair table");
     }
     Map<TopicPartition, PartitionCheckpoint> crashed = state(broker, store, topic, "g-" + topic, dir.resolve("checkpoints"));
     assertEquals(3, crashed.size());

@@ -88,6 +88,10 @@ public final class IngestBench implements Callable<Integer> {
       description = "baskets of the per-stage breakdown without Kafka (default ${DEFAULT-VALUE})")
   long stageBaskets;
 
+  @Option(names = "--engine-threads", defaultValue = "2",
+      description = "engine lanes of the full path (ingest's engine.threads; default ${DEFAULT-VALUE}, one per core here)")
+  int engineThreads;
+
   @Option(names = "--seed", defaultValue = "20261202", description = "workload seed")
   long seed;
 
@@ -121,6 +125,7 @@ public final class IngestBench implements Callable<Integer> {
       props.put(IngestConfig.GROUP_ID, "bench-" + UUID.randomUUID());
       props.put(IngestConfig.CHECKPOINT_STORE, "none");
       props.put(IngestConfig.REFRESH_INTERVAL_MS, "0");
+      props.put(IngestConfig.ENGINE_THREADS, String.valueOf(engineThreads));
       SimpleMeterRegistry registry = new SimpleMeterRegistry();
       double basketsPerSecond;
       long stateBytes;
@@ -144,8 +149,8 @@ public final class IngestBench implements Callable<Integer> {
         double elapsed = (System.nanoTime() - begin) / 1e9;
         basketsPerSecond = baskets / elapsed;
         stateBytes = (long) registry.get("pairpulse.ingest.state.bytes").gauge().value();
-        say("full ingest path: %,.0f baskets/s (%,d baskets in %.1f s), state %,d bytes in %d partition engines",
-            basketsPerSecond, baskets, elapsed, stateBytes, partitions);
+        say("full ingest path (engine.threads=%d): %,.0f baskets/s (%,d baskets in %.1f s), state %,d bytes in %d partition engines",
+            engineThreads, basketsPerSecond, baskets, elapsed, stateBytes, partitions);
         PairEngine view = ingestor.view().get(120, TimeUnit.SECONDS);
         long snapStart = System.nanoTime();
         byte[] snapshot = Snapshots.write(view);

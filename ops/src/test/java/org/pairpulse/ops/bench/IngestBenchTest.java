@@ -49,7 +49,7 @@ class IngestBenchTest {
     double bare = Double.parseDouble(result.group(2));
     assertTrue(baskets > 0 && bare > 0 && Double.parseDouble(result.group(3)) > 0, result.group());
     assertEquals(baskets / bare, Double.parseDouble(result.group(4)), 0.0015, "ratio = baskets_per_s / bare_records_per_s");
-    for (String step : new String[] {"bare consumer:", "poll + decode:", "full ingest path:", "per basket, one thread",
+    for (String step : new String[] {"bare consumer:", "poll + decode:", "full ingest path (engine.threads=2):", "per basket, one thread",
         "long stream: after 20,000 baskets"}) {
       assertTrue(out.contains(step), "step '" + step + "' in\n" + out);
     }
