@@ -191,6 +191,9 @@ public final class Ingestor implements AutoCloseable {
     this.instanceId = id.isEmpty() ? UUID.randomUUID().toString().substring(0, 8) : id;
     this.frontSettings = config.frontSettings();
     this.segmentSettings = config.segmentSettings();
+    for (String attribute : segmentSettings.attributes()) {
+      metrics.segmentAttribute(attribute);
+    }
     this.pollTimeoutMs = config.getLong(IngestConfig.POLL_TIMEOUT_MS);
     this.checkpointIntervalMs = config.getLong(IngestConfig.CHECKPOINT_INTERVAL_MS);
     this.checkpointIntervalBaskets = config.getLong(IngestConfig.CHECKPOINT_INTERVAL_BASKETS);

@@ -13,6 +13,7 @@ import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
 import org.pairpulse.ingest.event.DeadLetterReason;
+import org.pairpulse.ingest.segment.SegmentEngines;
 import org.pairpulse.sketch.time.EventClock;
 
 /**
@@ -164,10 +165,24 @@ public final class IngestMetrics {
 
   /** A basket whose value of {@code attribute} made no segment ({@code reason}: over_bound, invalid_value). */
   public void segmentSkipped(String attribute, String reason) {
-    segmentSkips.computeIfAbsent(attribute + " " + reason, k -> Counter.builder(PREFIX + "segment.skipped")
+    segmentSkipCounter(attribute, reason).increment();
+  }
+
+  /**
+   * Registers the skip counters of a configured segment attribute at zero, for every reason, so that
+   * dashboards and alert rules see the series before the first skip.
+   */
+  public void segmentAttribute(String attribute) {
+    for (SegmentEngines.Skip reason : SegmentEngines.Skip.values()) {
+      segmentSkipCounter(attribute, reason.wireName());
+    }
+  }
+
+  private Counter segmentSkipCounter(String attribute, String reason) {
+    return segmentSkips.computeIfAbsent(attribute + " " + reason, k -> Counter.builder(PREFIX + "segment.skipped")
         .tags(Tags.of("attribute", attribute, "reason", reason))
         .description("baskets whose segment attribute value made no segment (counted in 'all' only)")
-        .register(registry)).increment();
+        .register(registry));
   }
 
   /** Baskets whose value of {@code attribute} made no segment for {@code reason} so far. */

@@ -385,10 +385,13 @@ public final class PairEngine {
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = trackingStart - lower;
         table.admissionBias[biasIndex] = trackingStart - Math.min(trackingStart, sketches[0].debiasedEstimateHashed(rows, rowOffset));
       } else {
+        // the estimate was read right after this key's update; the debiased value is read now, after the
+        // basket's other keys, which may have raised the same counters: cap it, so the point value stays
+        // within the bounds
         double estimate = decayEstimates[state.kindOrdinal][scratch];
         table.decays[table.decayIndex(slot, state.kindOrdinal)] = estimate;
         table.admissionError[slot * table.decayCount + state.kindOrdinal] = Math.min(estimate, sketches[0].maxError());
-        table.admissionBias[biasIndex] = estimate - sketches[0].debiasedEstimateHashed(rows, rowOffset);
+        table.admissionBias[biasIndex] = estimate - Math.min(estimate, sketches[0].debiasedEstimateHashed(rows, rowOffset));
       }
     }
   }
