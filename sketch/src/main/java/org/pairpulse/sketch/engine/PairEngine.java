@@ -311,7 +311,8 @@ public final class PairEngine {
       return slot;
     }
     double estimate = decayEstimates[horizons[trackingHorizon].kindOrdinal][scratch];
-    double min = table.minCount();
+    // the lazy heap's root key is a lower bound of the minimum: most rejections need no heap work
+    double min = estimate > table.minCountLowerBound() ? table.minCount() : table.minCountLowerBound();
     if (!(estimate > min) && !burstHeavy(table, pair, decayEstimates[horizons[burstHorizon].kindOrdinal][scratch])) {
       table.rejections++;
       return -1;

@@ -135,6 +135,14 @@ final class TrackedTable {
     return decays[decayIndex(slot, trackingDecay)];
   }
 
+  /**
+   * A lower bound of the smallest tracking count, without any heap work: the root's heap key (0 when
+   * empty). A key whose estimate does not exceed it cannot exceed the minimum either.
+   */
+  double minCountLowerBound() {
+    return size == 0 ? 0 : heapKey[0];
+  }
+
   /** The smallest tracking count (0 when empty); brings the lazy heap's root up to date first. */
   double minCount() {
     if (size == 0) {
