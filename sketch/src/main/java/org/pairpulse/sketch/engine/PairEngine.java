@@ -1,6 +1,5 @@
 package org.pairpulse.sketch.engine;
 
-import java.util.Arrays;
 import java.util.Collection;
 import java.util.List;
 import java.util.Objects;
@@ -58,24 +57,8 @@ public final class PairEngine {
   long pairUpdates;
   long expiredWindowUpdates;
 
-  // per-basket scratch, reused (no allocation per basket for baskets of up to 64 items)
-  private long[] hashScratch = new long[64];
-  private String[] itemScratch = new String[64];
-  /** Per basket item: its tracked slot after this basket counted it, or −1. */
-  private int[] itemSlotScratch = new int[64];
-  private final int itemDepth;
-  private final int pairDepth;
-  /** Row hashes of the basket's items (itemDepth per item) and pairs (pairDepth per pair). */
-  private long[] itemRows;
-  private long[] pairRows;
-  private long[] pairKeys = new long[0];
-  private int[] pairFirst = new int[0];
-  private int[] pairSecond = new int[0];
-  /** Per decay (kind ordinal) and basket item or pair: its estimate right after the basket's update. */
-  private final double[][] itemDecayEstimates;
-  private final double[][] pairDecayEstimates;
-  /** Weight of each counted pair of the current basket: 1, or the cap's step k. */
-  private double pairWeight;
+  /** The current basket's keys, row hashes and decay estimates (scratch, reused). */
+  private final BasketKeys keys;
   /** Per horizon, the ring slot of the current basket's pane (0 for a decay, −1 if it left the window). */
   private final int[] paneOfHorizon;
   private final double[] weightOfHorizon;
@@ -121,13 +104,7 @@ public final class PairEngine {
     this.weightOfHorizon = new double[horizons.length];
     this.eventPaneOfHorizon = new long[horizons.length];
     this.lateOfHorizon = new boolean[horizons.length];
-    this.itemDepth = horizons[0].itemSketch[0].depth();
-    this.pairDepth = horizons[0].pairSketch[0].depth();
-    this.itemRows = new long[64 * itemDepth];
-    this.itemDecayEstimates = new double[decayCount][64];
-    this.pairDecayEstimates = new double[decayCount][0];
-    this.pairRows = new long[0];
-    ensurePairScratch(64);
+    this.keys = new BasketKeys(horizons[0].itemSketch[0].depth(), horizons[0].pairSketch[0].depth(), decayCount);
   }
 
   public EngineConfig config() {
@@ -141,7 +118,7 @@ public final class PairEngine {
 
   /** Adds one basket; see the class comment. Null or empty item ids are ignored. */
   public void addBasket(long eventMillis, String... basketItems) {
-    int distinct = distinctSortedByHash(basketItems);
+    int distinct = keys.loadItems(basketItems);
     if (distinct == 0) {
       return;
     }
@@ -156,67 +133,21 @@ public final class PairEngine {
         horizons[h].basketWeight[pane] += weightOfHorizon[h];
       }
     }
-    int pairCount = selectPairs(distinct);
-    hashRows(distinct, pairCount);
+    int pairCount = keys.selectPairs(distinct, sampling);
+    keys.hashRows(distinct, pairCount, horizons[0].itemSketch[0], horizons[0].pairSketch[0]);
     addToSketches(distinct, pairCount);
     for (int i = 0; i < distinct; i++) {
-      long key = hashScratch[i];
-      itemSlotScratch[i] = track(items, false, key, i, -1, i, itemRows, i * itemDepth, 1.0, eventMillis);
+      long key = keys.itemHashes[i];
+      keys.itemSlots[i] = track(items, false, key, i, -1, i, keys.itemRows, i * keys.itemDepth, 1.0, eventMillis);
     }
     for (int k = 0; k < pairCount; k++) {
-      track(pairs, true, pairKeys[k], pairFirst[k], pairSecond[k], k, pairRows, k * pairDepth, pairWeight, eventMillis);
+      track(pairs, true, keys.pairKeys[k], keys.pairFirst[k], keys.pairSecond[k], k, keys.pairRows, k * keys.pairDepth,
+          keys.pairWeight, eventMillis);
     }
     pairUpdates += pairCount;
   }
 
-  /**
-   * Chooses the basket's pairs (all of them, or every step-th under the cap; see {@link PairSampling})
-   * into the pair scratch arrays and sets {@link #pairWeight}; returns how many.
-   */
-  private int selectPairs(int distinct) {
-    long pairTotal = (long) distinct * (distinct - 1) / 2;
-    pairWeight = 1.0;
-    if (pairTotal == 0) {
-      return 0;
-    }
-    long step = sampling.stepFor(pairTotal);
-    pairWeight = step;
-    long start = step == 1 ? 0 : sampling.startFor(hashScratch, distinct, step);
-    int selected = (int) ((pairTotal - start + step - 1) / step);
-    ensurePairScratch(selected);
-    // enumerate pairs (i < j) in row-major order and keep those with ordinal ≡ start (mod step)
-    int count = 0;
-    long ordinal = 0;
-    long next = start;
-    for (int i = 0; i < distinct - 1; i++) {
-      long rowEnd = ordinal + (distinct - 1 - i);
-      while (next < rowEnd) {
-        int j = i + 1 + (int) (next - ordinal);
-        pairKeys[count] = ItemHash.pairKey(hashScratch[i], hashScratch[j]);
-        pairFirst[count] = i;
-        pairSecond[count] = j;
-        count++;
-        next += step;
-      }
-      ordinal = rowEnd;
-    }
-    if (step > 1) {
-      sampling.recordCapped(pairTotal, count);
-    }
-    return count;
-  }
 
-  /** Row hashes of every item and pair key, once: all item sketches share one seed and depth, as do all pair sketches. */
-  private void hashRows(int distinct, int pairCount) {
-    CountMinSketch itemShape = horizons[0].itemSketch[0];
-    CountMinSketch pairShape = horizons[0].pairSketch[0];
-    for (int i = 0; i < distinct; i++) {
-      itemShape.rowHashes(hashScratch[i], itemRows, i * itemDepth);
-    }
-    for (int k = 0; k < pairCount; k++) {
-      pairShape.rowHashes(pairKeys[k], pairRows, k * pairDepth);
-    }
-  }
 
   /**
    * Adds the basket's items and pairs to every horizon's current sketches, sketch by sketch: the
@@ -233,39 +164,27 @@ public final class PairEngine {
       double weight = weightOfHorizon[h];
       CountMinSketch itemSketch = state.itemSketch[pane];
       CountMinSketch pairSketch = state.pairSketch[pane];
-      double pairAdd = pairWeight * weight;
+      double pairAdd = keys.pairWeight * weight;
       if (state.isWindow()) {
         for (int i = 0; i < distinct; i++) {
-          itemSketch.addHashed(itemRows, i * itemDepth, weight);
+          itemSketch.addHashed(keys.itemRows, i * keys.itemDepth, weight);
         }
         for (int k = 0; k < pairCount; k++) {
-          pairSketch.addHashed(pairRows, k * pairDepth, pairAdd);
+          pairSketch.addHashed(keys.pairRows, k * keys.pairDepth, pairAdd);
         }
       } else { // keep each key's decay estimates, read while the counters are in cache, for the tracked tables
-        double[] itemEstimates = itemDecayEstimates[state.kindOrdinal];
-        double[] pairEstimates = pairDecayEstimates[state.kindOrdinal];
+        double[] itemEstimates = keys.itemDecayEstimates[state.kindOrdinal];
+        double[] pairEstimates = keys.pairDecayEstimates[state.kindOrdinal];
         for (int i = 0; i < distinct; i++) {
-          itemEstimates[i] = itemSketch.addHashed(itemRows, i * itemDepth, weight);
+          itemEstimates[i] = itemSketch.addHashed(keys.itemRows, i * keys.itemDepth, weight);
         }
         for (int k = 0; k < pairCount; k++) {
-          pairEstimates[k] = pairSketch.addHashed(pairRows, k * pairDepth, pairAdd);
+          pairEstimates[k] = pairSketch.addHashed(keys.pairRows, k * keys.pairDepth, pairAdd);
         }
       }
     }
   }
 
-  private void ensurePairScratch(int pairCount) {
-    if (pairKeys.length < pairCount) {
-      int size = Integer.highestOneBit(pairCount) << 1;
-      pairKeys = new long[size];
-      pairFirst = new int[size];
-      pairSecond = new int[size];
-      pairRows = new long[size * pairDepth];
-      for (int d = 0; d < pairDecayEstimates.length; d++) {
-        pairDecayEstimates[d] = new double[size];
-      }
-    }
-  }
 
   /**
    * Counts one key (an item, {@code second < 0}, or the pair of basket items {@code first} and
@@ -290,7 +209,7 @@ public final class PairEngine {
       }
       return slot;
     }
-    double[][] decayEstimates = pair ? pairDecayEstimates : itemDecayEstimates;
+    double[][] decayEstimates = pair ? keys.pairDecayEstimates : keys.itemDecayEstimates;
     double add = multiplier * weightOfHorizon[trackingHorizon];
     if (!table.isFull()) {
       // never full so far: nothing was ever evicted or refused, so this key was never seen: exact start
@@ -326,10 +245,10 @@ public final class PairEngine {
 
   private int admit(TrackedTable table, boolean pair, long key, int first, int second, long eventMillis) {
     if (!pair) {
-      return table.admit(key, itemScratch[first], null, key, 0L, eventMillis);
+      return table.admit(key, keys.itemLabels[first], null, key, 0L, eventMillis);
     }
-    long ha = hashScratch[first];
-    long hb = hashScratch[second];
+    long ha = keys.itemHashes[first];
+    long hb = keys.itemHashes[second];
     return table.admit(key, canonical(first), canonical(second), ha, hb, eventMillis);
   }
 
@@ -338,8 +257,8 @@ public final class PairEngine {
    * basket), so labels are held once.
    */
   private String canonical(int item) {
-    int slot = itemSlotScratch[item];
-    return slot >= 0 && items.keys[slot] == hashScratch[item] ? items.labelA[slot] : itemScratch[item];
+    int slot = keys.itemSlots[item];
+    return slot >= 0 && items.keys[slot] == keys.itemHashes[item] ? items.labelA[slot] : keys.itemLabels[item];
   }
 
   /**
@@ -486,64 +405,6 @@ public final class PairEngine {
     return watermarkMillis;
   }
 
-  /** Sorts the basket's distinct items by hash into the scratch arrays; returns how many. */
-  private int distinctSortedByHash(String[] basketItems) {
-    int n = basketItems.length;
-    if (hashScratch.length < n) {
-      int size = Integer.highestOneBit(n) << 1;
-      hashScratch = new long[size];
-      itemScratch = new String[size];
-      itemSlotScratch = new int[size];
-      itemRows = new long[size * itemDepth];
-      for (int d = 0; d < itemDecayEstimates.length; d++) {
-        itemDecayEstimates[d] = new double[size];
-      }
-    }
-    int count = 0;
-    for (String item : basketItems) {
-      if (item == null || item.isEmpty()) {
-        continue;
-      }
-      hashScratch[count] = ItemHash.of(item);
-      itemScratch[count] = item;
-      count++;
-    }
-    if (count <= 32) {
-      for (int i = 1; i < count; i++) { // insertion sort: baskets are small
-        long hash = hashScratch[i];
-        String item = itemScratch[i];
-        int j = i - 1;
-        while (j >= 0 && hashScratch[j] > hash) {
-          hashScratch[j + 1] = hashScratch[j];
-          itemScratch[j + 1] = itemScratch[j];
-          j--;
-        }
-        hashScratch[j + 1] = hash;
-        itemScratch[j + 1] = item;
-      }
-    } else {
-      Integer[] order = new Integer[count];
-      for (int i = 0; i < count; i++) {
-        order[i] = i;
-      }
-      long[] hashes = Arrays.copyOf(hashScratch, count);
-      String[] names = Arrays.copyOf(itemScratch, count);
-      Arrays.sort(order, (x, y) -> Long.compare(hashes[x], hashes[y]));
-      for (int i = 0; i < count; i++) {
-        hashScratch[i] = hashes[order[i]];
-        itemScratch[i] = names[order[i]];
-      }
-    }
-    int distinct = 0;
-    for (int i = 0; i < count; i++) {
-      if (distinct == 0 || hashScratch[i] != hashScratch[distinct - 1]) {
-        hashScratch[distinct] = hashScratch[i];
-        itemScratch[distinct] = itemScratch[i];
-        distinct++;
-      }
-    }
-    return distinct;
-  }
 
   // ---------------------------------------------------------------- queries (writer thread)
 
