@@ -265,15 +265,8 @@ final class JsonEventReader {
         throw oversizedBasket();
       }
       keepItem(count++, itemAt(pos));
-      skipWs();
-      byte b = peek();
-      if (b == ',') {
-        pos++;
-        skipWs();
-      } else if (b == ']') {
+      if (!nextElement(']', "expected ',' or ']' in 'items'")) {
         break;
-      } else {
-        throw malformed("expected ',' or ']' in 'items'");
       }
     }
     return immutableItems(count);
@@ -351,15 +344,8 @@ final class JsonEventReader {
           } else {
             skipValue(2);
           }
-          skipWs();
-          byte next = peek();
-          if (next == ',') {
-            pos++;
-            skipWs();
-          } else if (next == '}') {
+          if (!nextElement('}', "expected ',' or '}' in an item object")) {
             break;
-          } else {
-            throw malformed("expected ',' or '}' in an item object");
           }
         }
       }
@@ -405,15 +391,8 @@ final class JsonEventReader {
       if (attributes.size() > limits.maxAttributes()) {
         throw new InvalidEventException(DeadLetterReason.WRONG_TYPE, "more than " + limits.maxAttributes() + " attributes");
       }
-      skipWs();
-      byte next = peek();
-      if (next == ',') {
-        pos++;
-        skipWs();
-      } else if (next == '}') {
+      if (!nextElement('}', "expected ',' or '}' in 'attributes'")) {
         return attributes;
-      } else {
-        throw malformed("expected ',' or '}' in 'attributes'");
       }
     }
   }
@@ -504,16 +483,9 @@ final class JsonEventReader {
       } else {
         skipValue(depth + 1);
       }
-      skipWs();
-      byte b = peek();
-      if (b == ',') {
-        pos++;
-        skipWs();
-      } else if (b == '}') {
+      if (!nextElement('}', "expected ',' or '}' after a value")) {
         pos++;
         return;
-      } else {
-        throw malformed("expected ',' or '}' after a value");
       }
     }
   }
@@ -543,15 +515,8 @@ final class JsonEventReader {
           plain = false;
           skipValue(depth + 1);
         }
-        skipWs();
-        byte next = peek();
-        if (next == ',') {
-          pos++;
-          skipWs();
-        } else if (next == ']') {
+        if (!nextElement(']', "expected ',' or ']' in an array")) {
           break;
-        } else {
-          throw malformed("expected ',' or ']' in an array");
         }
       }
     }
@@ -572,6 +537,24 @@ final class JsonEventReader {
     }
     plainItemSpans[2 * index] = from;
     plainItemSpans[2 * index + 1] = to;
+  }
+
+  /**
+   * After an element of an array or object: skips a ',' and the blanks after it and returns true, or returns
+   * false with pos at {@code close}; anything else is malformed ({@code message}).
+   */
+  private boolean nextElement(char close, String message) throws InvalidEventException {
+    skipWs();
+    byte next = peek();
+    if (next == ',') {
+      pos++;
+      skipWs();
+      return true;
+    }
+    if (next == close) {
+      return false;
+    }
+    throw malformed(message);
   }
 
   /** Reads a key string at pos and returns its code; pos ends after the closing quote. */
@@ -671,16 +654,9 @@ final class JsonEventReader {
           expect(':');
           skipWs();
           skipValue(depth + 1);
-          skipWs();
-          byte next = peek();
-          if (next == ',') {
-            pos++;
-            skipWs();
-          } else if (next == '}') {
+          if (!nextElement('}', "expected ',' or '}' in an object")) {
             pos++;
             return;
-          } else {
-            throw malformed("expected ',' or '}' in an object");
           }
         }
       case '[':
@@ -692,16 +668,9 @@ final class JsonEventReader {
         }
         while (true) {
           skipValue(depth + 1);
-          skipWs();
-          byte next = peek();
-          if (next == ',') {
-            pos++;
-            skipWs();
-          } else if (next == ']') {
+          if (!nextElement(']', "expected ',' or ']' in an array")) {
             pos++;
             return;
-          } else {
-            throw malformed("expected ',' or ']' in an array");
           }
         }
       case 't':
