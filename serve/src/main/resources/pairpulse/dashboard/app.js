@@ -432,7 +432,7 @@
       out.dataset.count = String(r.suggestions.length);
       if (r.unknownItems.length) { out.appendChild(el('p', 'empty', 'Not in the pair table: ' + r.unknownItems.join(', '))); }
       if (!r.suggestions.length) {
-        out.appendChild(el('p', 'empty', 'Nothing to suggest inside the confidence band; try "any confidence".'));
+        out.appendChild(el('p', 'empty', 'Nothing to suggest inside the confidence band; tick "band off" to see the rest.'));
         return;
       }
       var top = Math.max.apply(null, r.suggestions.map(function (s) { return s.score > 0 ? s.score : 0; })) || 1;

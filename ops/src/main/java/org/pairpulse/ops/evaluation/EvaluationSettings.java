@@ -18,7 +18,7 @@ import org.pairpulse.sketch.stats.Measure;
  *   <tr><td>horizon</td><td>recent</td><td>the horizon the suggestions and the popular baseline read</td></tr>
  *   <tr><td>measure</td><td>shrunk_lift</td><td>the suggester's scoring measure (serve's default)</td></tr>
  *   <tr><td>minConfidence / maxConfidence</td><td>0 / 1</td><td>the suggester's confidence band: off, because the
- *       evaluation asks how well the table predicts the hidden item; the 0.30–0.60 band is a promotion rule</td></tr>
+ *       evaluation asks how well the table predicts the hidden item; the band is a rule for choosing offers</td></tr>
  *   <tr><td>includeBundles</td><td>true</td><td>bundle pairs may predict (a hidden case is predicted by its
  *       handset)</td></tr>
  *   <tr><td>ranking</td><td>posterior</td><td>the suggester's ranking (serve's {@code ranking} option)</td></tr>

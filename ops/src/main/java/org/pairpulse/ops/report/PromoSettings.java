@@ -11,8 +11,9 @@ import org.pairpulse.serve.suggest.SuggestionRequest;
  * <table>
  *   <caption>Settings</caption>
  *   <tr><th>setting</th><th>default</th><th>meaning</th></tr>
- *   <tr><td>minConfidence / maxConfidence</td><td>0.30 / 0.60</td><td>the confidence band of suggestion pairs (a
- *       common-practice rule of thumb: below it far-fetched, above it the customer buys anyway)</td></tr>
+ *   <tr><td>minConfidence / maxConfidence</td><td>0.30 / 0.60</td><td>the confidence band of suggestion pairs
+ *       (serve's default: a common-practice rule of thumb, a starting point to tune; serve's README, "The confidence
+ *       band")</td></tr>
  *   <tr><td>top</td><td>20</td><td>rows per list and segment</td></tr>
  *   <tr><td>horizon</td><td>day</td><td>the horizon of the suggestion pairs (the last 24 h: a next-day list)</td></tr>
  *   <tr><td>drift</td><td>serve's defaults</td><td>emerging pairs: those meeting the entry condition of an emerging

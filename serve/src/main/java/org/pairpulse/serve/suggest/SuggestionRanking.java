@@ -10,7 +10,7 @@ import java.util.stream.Collectors;
  * <ul>
  *   <li>{@link #ASSOCIATION}: score(c) = Σ_x φ(m(x ⇒ c)), the association with the basket alone (the
  *       naive-Bayes log ratio ln(P(c | basket) / P(c)) for a lift measure). It favours items that are rare
- *       overall but tied to the basket: "people who took X also take Y", whatever Y's popularity.</li>
+ *       overall but tied to the basket: the items this basket makes more likely than usual, however popular.</li>
  *   <li>{@link #POSTERIOR}: score(c) = ln s(c) + Σ_x ln m(x ⇒ c) with m a lift measure, the naive-Bayes
  *       log-posterior ln P(c | basket) up to a constant that is the same for every candidate: the item most
  *       likely to be in the basket. Candidates are the neighbours plus every published item of the horizon

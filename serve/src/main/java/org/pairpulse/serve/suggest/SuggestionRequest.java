@@ -30,8 +30,8 @@ public record SuggestionRequest(List<String> basket, String horizon, Measure mea
   public static final String DEFAULT_HORIZON = "recent";
   public static final int DEFAULT_COUNT = 10;
   /**
-   * The default confidence band 0.30–0.60 is a common-practice rule of thumb, not a derived value:
-   * below it a suggestion is far-fetched, above it the customer would likely add the item anyway.
+   * The default confidence band 0.30–0.60: a common-practice rule of thumb, not a derived value. What it
+   * trades off (uptake against surprise) and how to tune it: serve's README, "The confidence band".
    */
   public static final double DEFAULT_MIN_CONFIDENCE = 0.30;
   public static final double DEFAULT_MAX_CONFIDENCE = 0.60;
