@@ -70,6 +70,44 @@ record LiftInterval(double lower, double upper) {
     return new LiftInterval(sketchLower / samplingFactor, sketchUpper * samplingFactor);
   }
 
+  /**
+   * The interval of the size-adjusted lift n_ab / E ({@link PairCounts#expectedCountAB()}, with its bounds from
+   * the per-class counts). Sketch extremes: min(n_ab.lower, n_a.upper, n_b.upper) / E.upper and
+   * min(n_ab.upper, n_a.lower, n_b.lower) / E.lower (+∞ when E.lower is 0). Sampling: the delta-method variance
+   * of the class comment with the adjusted lift in place of the pooled one, an approximation that is exact with
+   * one class (the stratified E moves with its margins as n_a·n_b/N does). With n_ab = 0: [0, (n_ab.upper +
+   * −ln((1 − level)/2)) / E.lower].
+   */
+  static LiftInterval adjusted(PairCounts counts, ClampedCounts point, double pointLift, MeasureSettings settings) {
+    if (Double.isNaN(pointLift)) {
+      return UNDEFINED;
+    }
+    double baskets = counts.baskets();
+    Estimate expected = counts.expectedCountAB();
+    double lowerA = Math.min(counts.countA().lower(), baskets);
+    double lowerB = Math.min(counts.countB().lower(), baskets);
+    double upperA = Math.min(counts.countA().upper(), baskets);
+    double upperB = Math.min(counts.countB().upper(), baskets);
+    if (point.countAB() == 0) {
+      double zeroEventsUpperCount = -Math.log((1.0 - settings.confidenceLevel()) / 2.0);
+      return new LiftInterval(0.0, ratioUpTo(counts.countAB().upper() + zeroEventsUpperCount, expected.lower()));
+    }
+    double sketchLower = expected.upper() > 0
+        ? Math.min(counts.countAB().lower(), Math.min(upperA, upperB)) / expected.upper() : 0.0;
+    double sketchUpper = ratioUpTo(Math.min(counts.countAB().upper(), Math.min(lowerA, lowerB)), expected.lower());
+    double samplingFactor = Math.exp(settings.zScore() * Math.sqrt(logLiftVariance(point, pointLift)));
+    return new LiftInterval(Math.min(sketchLower / samplingFactor, pointLift),
+        Math.max(sketchUpper * samplingFactor, pointLift));
+  }
+
+  /** x / e, +∞ for x &gt; 0 over e = 0, 0 for x = 0. */
+  private static double ratioUpTo(double count, double expected) {
+    if (count <= 0) {
+      return 0.0;
+    }
+    return expected > 0 ? count / expected : Double.POSITIVE_INFINITY;
+  }
+
   /** sup of N·x/(y·z) over x ≤ upperAB, y ≥ lowerA, z ≥ lowerB, x ≤ min(y, z). */
   static double supremumLift(double baskets, double upperAB, double lowerA, double lowerB) {
     if (upperAB == 0) {

@@ -18,19 +18,60 @@ import java.util.Objects;
  * @param baskets N, the (weighted) number of baskets in the horizon, counted exactly
  * @param countA n_a, the (weighted) number of baskets containing a
  * @param countB n_b, the (weighted) number of baskets containing b
+ * <h2>The null model</h2>
+ * {@code stratifiedExpectedAB} is E = Σ_s n_a,s·n_b,s / N_s over basket-size classes
+ * ({@link MantelHaenszel}, {@link SizeClasses}) with the bounds that the per-class counts allow; the
+ * size-adjusted measures of {@link PairMeasures} read it. It is null when the counts carry no size
+ * classes: then E is the textbook n_a·n_b/N and the adjusted measures equal the textbook ones.
+ *
  * @param countAB n_ab, the (weighted) number of baskets containing both a and b
+ * @param stratifiedExpectedAB E under independence within basket-size classes, with bounds; null for
+ *     plain independence (one class)
  */
-public record PairCounts(double baskets, Estimate countA, Estimate countB, Estimate countAB) {
+public record PairCounts(double baskets, Estimate countA, Estimate countB, Estimate countAB,
+    Estimate stratifiedExpectedAB) {
 
   /**
    * @throws IllegalArgumentException if {@code baskets} is NaN, infinite or negative
-   * @throws NullPointerException if an estimate is null
+   * @throws NullPointerException if a count's estimate is null
    */
   public PairCounts {
     Estimate.requireCount("baskets", baskets);
     Objects.requireNonNull(countA, "countA");
     Objects.requireNonNull(countB, "countB");
     Objects.requireNonNull(countAB, "countAB");
+  }
+
+  /** Counts without size classes: the null model is plain independence. */
+  public PairCounts(double baskets, Estimate countA, Estimate countB, Estimate countAB) {
+    this(baskets, countA, countB, countAB, null);
+  }
+
+  /** These counts with E taken within basket-size classes (see the class comment). */
+  public PairCounts withStratifiedExpected(Estimate expected) {
+    return new PairCounts(baskets, countA, countB, countAB, Objects.requireNonNull(expected, "expected"));
+  }
+
+  /** Whether E comes from basket-size classes (else it is the textbook n_a·n_b/N). */
+  public boolean isStratified() {
+    return stratifiedExpectedAB != null;
+  }
+
+  /**
+   * E, the pair count expected under the null model, with bounds: the stratified one when present, else
+   * n_a·n_b/N from the point values and the bounds of the margins (each clamped to N; 0 when N is 0).
+   */
+  public Estimate expectedCountAB() {
+    if (stratifiedExpectedAB != null) {
+      return stratifiedExpectedAB;
+    }
+    if (!(baskets > 0)) {
+      return Estimate.exact(0);
+    }
+    double value = Math.min(countA.value(), baskets) * Math.min(countB.value(), baskets) / baskets;
+    double lower = Math.min(countA.lower(), baskets) * Math.min(countB.lower(), baskets) / baskets;
+    double upper = Math.min(countA.upper(), baskets) * Math.min(countB.upper(), baskets) / baskets;
+    return new Estimate(value, Math.min(lower, value), Math.max(upper, value));
   }
 
   /** Counts known exactly (no sketch error). */
@@ -42,6 +83,6 @@ public record PairCounts(double baskets, Estimate countA, Estimate countB, Estim
   public PairCounts scaledBy(double factor) {
     Estimate.requireCount("factor", factor);
     return new PairCounts(baskets * factor, countA.scaledBy(factor), countB.scaledBy(factor),
-        countAB.scaledBy(factor));
+        countAB.scaledBy(factor), stratifiedExpectedAB == null ? null : stratifiedExpectedAB.scaledBy(factor));
   }
 }

@@ -21,8 +21,31 @@ import java.util.Objects;
  *   chiSquare      = Pearson's χ² of the same table, no continuity correction
  *   gSquaredPValue = P(χ²₁ ≥ G²) = erfc(√(G²/2))
  * </pre>
- * The lift interval [{@link #liftLower()}, {@link #liftUpper()}] combines the sketch bounds and
- * a log-scale sampling interval; its construction is documented on {@link LiftInterval}.
+ * The lift interval combines the sketch bounds and a log-scale sampling interval; its construction
+ * is documented on {@link LiftInterval}.
+ *
+ * <h2>Two null models: size-adjusted (the default) and textbook</h2>
+ * The formulas above compare n_ab with E = n_a·n_b/N, independence over all baskets. A large basket
+ * holds more of everything, so under that model every pair of popular items looks associated when
+ * basket sizes vary. When the counts carry the stratified expected count
+ * E = Σ_s n_a,s·n_b,s/N_s over basket-size classes ({@link PairCounts#stratifiedExpectedAB()},
+ * {@link MantelHaenszel}), the measures that read E take it instead:
+ * <pre>
+ *   lift           = n_ab / E                      (an observed-over-expected ratio)
+ *   leverage       = (n_ab − E) / N
+ *   convictionAB   = (1 − E/n_a) / (1 − confidenceAB)   (E/n_a: the confidence the null model expects)
+ *   shrunkLift     = (n_ab + k) / (E + k)          [5] (DuMouchel's expected counts are stratified too)
+ *   gSquared       = 2·(n_ab·ln(n_ab/E) − (n_ab − E)), the G-test of n_ab ~ Poisson(E), E given the margins
+ *   lift interval  = {@link LiftInterval#adjusted}; repelling = its upper end below 1
+ * </pre>
+ * These are {@link #lift()}, {@link #liftLower()}, {@link #shrunkLift()}, {@link #leverage()},
+ * {@link #convictionAB()}, {@link #gSquared()} and their companions: what ranking, filtering and alerts read.
+ * The textbook values stay available as {@code …Unadjusted()} ({@link #liftUnadjusted()} and so on; the
+ * measures {@code lift_unadjusted} etc. of {@link Measure}). Without size classes the two coincide exactly.
+ * Support, confidence, Kulczynski, the imbalance ratio and χ² do not read a null model.
+ *
+ * <p>{@link #associationPValue()} is the one-sided test the offer lists screen pairs with:
+ * P(X ≥ n_ab.lower) for X ~ Poisson(E.upper), at the least favourable sketch bounds.
  *
  * <p>The shrunk lift is the posterior mean of the rate ratio λ when n_ab ~ Poisson(λ·E) and λ has
  * a Gamma(k, k) prior (mean 1, worth k baskets): the gamma–Poisson shrinker of [5]. It lies
@@ -67,21 +90,24 @@ public final class PairMeasures {
   private final double support;
   private final double confidenceAB;
   private final double confidenceBA;
-  private final double lift;
-  private final double liftLower;
-  private final double liftUpper;
-  private final double shrunkLift;
-  private final double leverage;
-  private final double convictionAB;
-  private final double convictionBA;
   private final double kulczynski;
   private final double imbalanceRatio;
-  private final double gSquared;
-  private final double signedRootGSquared;
-  private final double gSquaredPValue;
   private final double chiSquare;
   private final boolean bundle;
-  private final boolean repelling;
+  private final double expectedCountAB;
+  private final double associationPValue;
+  /** The measures that depend on the null model: size-adjusted (the default) and textbook. */
+  private final NullModelMeasures adjusted;
+  private final NullModelMeasures unadjusted;
+
+  /** The measures that read E, the pair count expected under a null model. */
+  private record NullModelMeasures(double lift, double liftLower, double liftUpper, double shrunkLift, double leverage,
+      double convictionAB, double convictionBA, double gSquared, double signedRootGSquared, double gSquaredPValue) {
+
+    boolean repelling() {
+      return liftUpper < 1.0;
+    }
+  }
 
   private PairMeasures(PairCounts counts, MeasureSettings settings) {
     ClampedCounts point = ClampedCounts.pointValuesOf(counts);
@@ -92,28 +118,71 @@ public final class PairMeasures {
     support = point.countAB() / baskets;
     confidenceAB = point.countAB() / point.countA();
     confidenceBA = point.countAB() / point.countB();
-    lift = point.lift();
-    leverage = support - supportA * supportB;
-    convictionAB = conviction(confidenceAB, supportB);
-    convictionBA = conviction(confidenceBA, supportA);
     kulczynski = (confidenceAB + confidenceBA) / 2.0;
     imbalanceRatio = Math.abs(point.countA() - point.countB())
         / (point.countA() + point.countB() - point.countAB());
+    bundle = confidenceAB >= settings.bundleConfidence() && confidenceBA >= settings.bundleConfidence();
+
+    double lift = point.lift();
     double prior = settings.shrinkPriorBaskets();
-    shrunkLift = (point.countAB() + prior) / (point.expectedCountAB() + prior);
-
     LiftInterval interval = LiftInterval.of(counts, point, settings);
-    liftLower = interval.lower();
-    liftUpper = interval.upper();
-
     TwoByTwoTable table = TwoByTwoTable.of(point);
-    gSquared = table.gSquared();
-    signedRootGSquared = table.signedRootGSquared();
-    gSquaredPValue = TwoByTwoTable.chiSquareOneDfPValue(gSquared);
+    double gSquared = table.gSquared();
+    unadjusted = new NullModelMeasures(lift, interval.lower(), interval.upper(),
+        (point.countAB() + prior) / (point.expectedCountAB() + prior), support - supportA * supportB,
+        conviction(confidenceAB, supportB), conviction(confidenceBA, supportA), gSquared, table.signedRootGSquared(),
+        TwoByTwoTable.chiSquareOneDfPValue(gSquared));
     chiSquare = table.chiSquare();
 
-    bundle = confidenceAB >= settings.bundleConfidence() && confidenceBA >= settings.bundleConfidence();
-    repelling = liftUpper < 1.0;
+    Estimate expected = counts.expectedCountAB();
+    double expectedPoint = Math.min(expected.value(), Math.min(point.countA(), point.countB()));
+    expectedCountAB = counts.isStratified() ? expectedPoint : point.expectedCountAB();
+    adjusted = counts.isStratified() ? adjusted(counts, point, expectedPoint, settings) : unadjusted;
+    double upperA = Math.min(counts.countA().upper(), baskets);
+    double upperB = Math.min(counts.countB().upper(), baskets);
+    associationPValue = poissonUpperTail(Math.min(counts.countAB().lower(), Math.min(upperA, upperB)), expected.upper());
+  }
+
+  /** The size-adjusted measures: E from basket-size classes in place of n_a·n_b/N (see the class comment). */
+  private static NullModelMeasures adjusted(PairCounts counts, ClampedCounts point, double expected,
+      MeasureSettings settings) {
+    double baskets = point.baskets();
+    double observed = point.countAB();
+    double lift = point.countA() == 0 || point.countB() == 0 ? Double.NaN : observed / expected;
+    LiftInterval interval = LiftInterval.adjusted(counts, point, lift, settings);
+    double prior = settings.shrinkPriorBaskets();
+    double gSquared = poissonGSquared(observed, expected);
+    double root = Math.sqrt(gSquared);
+    return new NullModelMeasures(lift, interval.lower(), interval.upper(), (observed + prior) / (expected + prior),
+        (observed - expected) / baskets, conviction(observed / point.countA(), expected / point.countA()),
+        conviction(observed / point.countB(), expected / point.countB()), gSquared,
+        observed < expected ? -root : root, TwoByTwoTable.chiSquareOneDfPValue(gSquared));
+  }
+
+  /**
+   * G² of the Poisson model of n_ab with known mean E against the saturated one: 2·(O·ln(O/E) − (O − E)), with
+   * 0·ln 0 = 0; 0 when E is 0 (no model to test against).
+   */
+  static double poissonGSquared(double observed, double expected) {
+    if (!(expected > 0)) {
+      return 0.0;
+    }
+    double logTerm = observed == 0 ? 0.0 : observed * Math.log(observed / expected);
+    return Math.max(0.0, 2.0 * (logTerm - (observed - expected)));
+  }
+
+  /**
+   * P(X ≥ x) for X ~ Poisson(mean), continued to real x by the regularised incomplete gamma function
+   * P(x, mean) (exact for whole x: the waiting time to the x-th event); 1 when x ≤ 0.
+   */
+  static double poissonUpperTail(double x, double mean) {
+    if (!(x > 0)) {
+      return 1.0;
+    }
+    if (!(mean > 0)) {
+      return 0.0;
+    }
+    return org.apache.commons.math3.special.Gamma.regularizedGammaP(x, mean);
   }
 
   /** The measures of {@code counts} under {@code settings}. */
@@ -126,9 +195,12 @@ public final class PairMeasures {
     return of(counts, MeasureSettings.defaults());
   }
 
-  /** (1 − support(consequent)) / (1 − confidence); +∞ at confidence 1, NaN at 0/0. */
-  private static double conviction(double confidence, double consequentSupport) {
-    double numerator = 1.0 - consequentSupport;
+  /**
+   * (1 − expected confidence) / (1 − confidence); +∞ at confidence 1, NaN at 0/0. The expected confidence is the
+   * consequent's support under plain independence, E/n_antecedent under the size-adjusted null model.
+   */
+  private static double conviction(double confidence, double expectedConfidence) {
+    double numerator = 1.0 - expectedConfidence;
     double denominator = 1.0 - confidence;
     if (denominator == 0.0) {
       return numerator > 0.0 ? Double.POSITIVE_INFINITY : Double.NaN;
@@ -151,39 +223,47 @@ public final class PairMeasures {
     return confidenceBA;
   }
 
-  /** N·n_ab / (n_a·n_b). */
+  /**
+   * E, the pair count expected under the size-adjusted null model (point value): Σ_s n_a,s·n_b,s/N_s, or
+   * n_a·n_b/N when the counts carry no size classes.
+   */
+  public double expectedCountAB() {
+    return expectedCountAB;
+  }
+
+  /** Size-adjusted lift n_ab / E (the textbook N·n_ab/(n_a·n_b) when the counts carry no size classes). */
   public double lift() {
-    return lift;
+    return adjusted.lift();
   }
 
-  /** Lower end of the two-sided lift interval (sketch and sampling error). */
+  /** Lower end of the two-sided interval of {@link #lift()} (sketch and sampling error). */
   public double liftLower() {
-    return liftLower;
+    return adjusted.liftLower();
   }
 
-  /** Upper end of the two-sided lift interval (sketch and sampling error); may be +∞. */
+  /** Upper end of the two-sided interval of {@link #lift()} (sketch and sampling error); may be +∞. */
   public double liftUpper() {
-    return liftUpper;
+    return adjusted.liftUpper();
   }
 
-  /** (n_ab + k) / (n_a·n_b/N + k): lift pulled toward 1 when evidence is thin. */
+  /** Size-adjusted shrunk lift (n_ab + k) / (E + k): lift pulled toward 1 when evidence is thin. */
   public double shrunkLift() {
-    return shrunkLift;
+    return adjusted.shrunkLift();
   }
 
-  /** n_ab/N − (n_a/N)(n_b/N). */
+  /** Size-adjusted leverage (n_ab − E)/N. */
   public double leverage() {
-    return leverage;
+    return adjusted.leverage();
   }
 
-  /** Conviction of a ⇒ b: (1 − n_b/N) / (1 − confidenceAB); +∞ when confidenceAB is 1. */
+  /** Size-adjusted conviction of a ⇒ b: (1 − E/n_a) / (1 − confidenceAB); +∞ when confidenceAB is 1. */
   public double convictionAB() {
-    return convictionAB;
+    return adjusted.convictionAB();
   }
 
-  /** Conviction of b ⇒ a: (1 − n_a/N) / (1 − confidenceBA); +∞ when confidenceBA is 1. */
+  /** Size-adjusted conviction of b ⇒ a: (1 − E/n_b) / (1 − confidenceBA); +∞ when confidenceBA is 1. */
   public double convictionBA() {
-    return convictionBA;
+    return adjusted.convictionBA();
   }
 
   /** Mean of the two confidences (null-invariant). */
@@ -196,22 +276,31 @@ public final class PairMeasures {
     return imbalanceRatio;
   }
 
-  /** Dunning's G² of the 2×2 table. */
+  /** Size-adjusted G²: of n_ab against the Poisson mean E (Dunning's G² of the 2×2 table without size classes). */
   public double gSquared() {
-    return gSquared;
+    return adjusted.gSquared();
   }
 
-  /** √G², positive when n_ab is above n_a·n_b/N and negative when below. */
+  /** √{@link #gSquared()}, positive when n_ab is above E and negative when below. */
   public double signedRootGSquared() {
-    return signedRootGSquared;
+    return adjusted.signedRootGSquared();
   }
 
-  /** P(χ²₁ ≥ G²): the p-value of independence by the G-test. */
+  /** P(χ²₁ ≥ {@link #gSquared()}): the p-value of the size-adjusted null model by the G-test. */
   public double gSquaredPValue() {
-    return gSquaredPValue;
+    return adjusted.gSquaredPValue();
   }
 
-  /** Pearson's χ² of the 2×2 table (no continuity correction), for reference. */
+  /**
+   * One-sided p-value of the size-adjusted association at the sketch's least favourable bounds:
+   * P(X ≥ n_ab.lower) for X ~ Poisson(E.upper). Small when the pair occurs together more often than the null
+   * model allows even at the bounds; the offer lists pass it through a multiplicity step.
+   */
+  public double associationPValue() {
+    return associationPValue;
+  }
+
+  /** Pearson's χ² of the 2×2 table (no continuity correction, plain independence), for reference. */
   public double chiSquare() {
     return chiSquare;
   }
@@ -221,19 +310,73 @@ public final class PairMeasures {
     return bundle;
   }
 
-  /** The lift's upper bound is below 1: significantly below independence. */
+  /** The size-adjusted lift's upper bound is below 1: significantly below independence within size classes. */
   public boolean isRepelling() {
-    return repelling;
+    return adjusted.repelling();
+  }
+
+  // ------------------------------------------------------------ textbook values (plain independence)
+
+  /** The textbook lift N·n_ab / (n_a·n_b), whatever the basket sizes. */
+  public double liftUnadjusted() {
+    return unadjusted.lift();
+  }
+
+  /** Lower end of the textbook lift's interval. */
+  public double liftLowerUnadjusted() {
+    return unadjusted.liftLower();
+  }
+
+  /** Upper end of the textbook lift's interval; may be +∞. */
+  public double liftUpperUnadjusted() {
+    return unadjusted.liftUpper();
+  }
+
+  /** (n_ab + k) / (n_a·n_b/N + k). */
+  public double shrunkLiftUnadjusted() {
+    return unadjusted.shrunkLift();
+  }
+
+  /** n_ab/N − (n_a/N)(n_b/N) [2]. */
+  public double leverageUnadjusted() {
+    return unadjusted.leverage();
+  }
+
+  /** (1 − n_b/N) / (1 − confidenceAB) [3]. */
+  public double convictionABUnadjusted() {
+    return unadjusted.convictionAB();
+  }
+
+  /** (1 − n_a/N) / (1 − confidenceBA) [3]. */
+  public double convictionBAUnadjusted() {
+    return unadjusted.convictionBA();
+  }
+
+  /** Dunning's G² of the 2×2 table [1]. */
+  public double gSquaredUnadjusted() {
+    return unadjusted.gSquared();
+  }
+
+  /** Signed √G² of the 2×2 table. */
+  public double signedRootGSquaredUnadjusted() {
+    return unadjusted.signedRootGSquared();
+  }
+
+  /** P(χ²₁ ≥ G²) of the 2×2 table. */
+  public double gSquaredPValueUnadjusted() {
+    return unadjusted.gSquaredPValue();
+  }
+
+  /** The textbook lift's upper bound is below 1. */
+  public boolean isRepellingUnadjusted() {
+    return unadjusted.repelling();
   }
 
   @Override
   public String toString() {
-    return "PairMeasures[support=" + support + ", confidenceAB=" + confidenceAB + ", confidenceBA="
-        + confidenceBA + ", lift=" + lift + " [" + liftLower + ", " + liftUpper + "], shrunkLift="
-        + shrunkLift + ", leverage=" + leverage + ", convictionAB=" + convictionAB + ", convictionBA="
-        + convictionBA + ", kulczynski=" + kulczynski + ", imbalanceRatio=" + imbalanceRatio
-        + ", gSquared=" + gSquared + ", signedRootGSquared=" + signedRootGSquared + ", gSquaredPValue="
-        + gSquaredPValue + ", chiSquare=" + chiSquare + ", bundle=" + bundle + ", repelling=" + repelling
-        + "]";
+    return "PairMeasures[support=" + support + ", confidenceAB=" + confidenceAB + ", confidenceBA=" + confidenceBA
+        + ", expectedCountAB=" + expectedCountAB + ", adjusted=" + adjusted + ", unadjusted=" + unadjusted
+        + ", kulczynski=" + kulczynski + ", imbalanceRatio=" + imbalanceRatio + ", chiSquare=" + chiSquare
+        + ", associationPValue=" + associationPValue + ", bundle=" + bundle + "]";
   }
 }

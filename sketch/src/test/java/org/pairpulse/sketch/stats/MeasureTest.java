@@ -16,16 +16,22 @@ class MeasureTest {
     @Test
     void wireNamesAreTheDocumentedStableLowerCaseNames() {
         // the serve layer exposes these: changing one breaks clients
-        Map<Measure, String> expected = Map.of(
-                Measure.SUPPORT, "support",
-                Measure.CONFIDENCE, "confidence",
-                Measure.LIFT, "lift",
-                Measure.SHRUNK_LIFT, "shrunk_lift",
-                Measure.LIFT_LOWER, "lift_lower",
-                Measure.LEVERAGE, "leverage",
-                Measure.CONVICTION, "conviction",
-                Measure.KULCZYNSKI, "kulczynski",
-                Measure.SIGNED_ROOT_G2, "signed_root_g2");
+        Map<Measure, String> expected = Map.ofEntries(
+                Map.entry(Measure.SUPPORT, "support"),
+                Map.entry(Measure.CONFIDENCE, "confidence"),
+                Map.entry(Measure.LIFT, "lift"),
+                Map.entry(Measure.SHRUNK_LIFT, "shrunk_lift"),
+                Map.entry(Measure.LIFT_LOWER, "lift_lower"),
+                Map.entry(Measure.LEVERAGE, "leverage"),
+                Map.entry(Measure.CONVICTION, "conviction"),
+                Map.entry(Measure.KULCZYNSKI, "kulczynski"),
+                Map.entry(Measure.SIGNED_ROOT_G2, "signed_root_g2"),
+                Map.entry(Measure.LIFT_UNADJUSTED, "lift_unadjusted"),
+                Map.entry(Measure.SHRUNK_LIFT_UNADJUSTED, "shrunk_lift_unadjusted"),
+                Map.entry(Measure.LIFT_LOWER_UNADJUSTED, "lift_lower_unadjusted"),
+                Map.entry(Measure.LEVERAGE_UNADJUSTED, "leverage_unadjusted"),
+                Map.entry(Measure.CONVICTION_UNADJUSTED, "conviction_unadjusted"),
+                Map.entry(Measure.SIGNED_ROOT_G2_UNADJUSTED, "signed_root_g2_unadjusted"));
         assertEquals(expected.size(), Measure.values().length);
         Set<String> seen = new HashSet<>();
         for (Measure measure : Measure.values()) {
@@ -62,6 +68,12 @@ class MeasureTest {
         assertEquals(m.liftLower(), Measure.LIFT_LOWER.of(m));
         assertEquals(m.shrunkLift(), Measure.SHRUNK_LIFT.of(m));
         assertEquals(m.signedRootGSquared(), Measure.SIGNED_ROOT_G2.of(m));
+        // without size classes each textbook twin equals its size-adjusted measure
+        for (Measure measure : Measure.values()) {
+            assertEquals(measure.of(m), measure.unadjusted().of(m), 0.0, measure.wireName());
+        }
+        assertSame(Measure.LIFT_UNADJUSTED, Measure.LIFT.unadjusted());
+        assertSame(Measure.SUPPORT, Measure.SUPPORT.unadjusted());
         // the reversed pair gives the same value for every measure
         PairMeasures reversed = PairMeasures.of(PairCounts.exact(1_000, 400, 100, 80));
         for (Measure measure : Measure.values()) {

@@ -48,6 +48,10 @@ class TextbookExamplesTest {
     assertEquals(1.0, m.confidenceBA(), 1e-12);
     // lift 1.25 (from memory; = 0.75 / s(Beer) = 0.75 / 0.6)
     assertEquals(1.25, m.lift(), 1e-12);
+    // the textbook values by name (without size classes the adjusted ones coincide with them)
+    assertEquals(1.25, m.liftUnadjusted(), 1e-12);
+    assertEquals(0.12, m.leverageUnadjusted(), 1e-12);
+    assertEquals(1.6, m.convictionABUnadjusted(), 1e-12);
     // hand-computed from the definitions: leverage 0.6 − 0.8·0.6 = 0.12; conviction
     // Diapers ⇒ Beer (1 − 0.6)/(1 − 0.75) = 1.6, Beer ⇒ Diapers +∞ (confidence 1);
     // Kulczynski (0.75 + 1)/2 = 0.875; IR |4 − 3|/(4 + 3 − 3) = 0.25

@@ -1,0 +1,158 @@
+package org.pairpulse.sketch.stats;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import org.apache.commons.math3.distribution.PoissonDistribution;
+import org.junit.jupiter.api.Test;
+
+/** The stratified expected count, its test, the size classes and the size-adjusted measures. */
+class SizeAdjustedMeasuresTest {
+
+  /**
+   * Agresti, Categorical Data Analysis, 2nd ed. (2002), section 6.3, the penicillin example (from memory): rabbits
+   * infected with streptococci, penicillin given at once or after 1.5 h, cured or died, in five strata of penicillin
+   * level. Rows "at once", columns "cured". The book gives CMH = 3.93 (continuity-corrected), P = 0.047; the expected
+   * count and variance are hand-computed from the table.
+   */
+  @Test
+  void agrestiPenicillinCochranMantelHaenszel() {
+    // per stratum (levels 1/8, 1/4, 1/2, 1, 4): at once cured/died, delayed cured/died
+    double[][] strata = {{0, 6, 0, 5}, {3, 3, 0, 6}, {6, 0, 2, 4}, {5, 1, 6, 0}, {2, 0, 5, 0}};
+    double[] rows = new double[5];
+    double[] cols = new double[5];
+    double[] totals = new double[5];
+    double observed = 0;
+    for (int s = 0; s < 5; s++) {
+      double[] t = strata[s];
+      rows[s] = t[0] + t[1];
+      cols[s] = t[0] + t[2];
+      totals[s] = t[0] + t[1] + t[2] + t[3];
+      observed += t[0];
+    }
+    // E = 0 + 6·3/12 + 6·8/12 + 6·11/12 + 2·7/7 = 0 + 1.5 + 4 + 5.5 + 2 = 13; observed 16
+    double expected = MantelHaenszel.expected(rows, cols, totals);
+    assertEquals(13.0, expected, 1e-12);
+    assertEquals(16.0, observed);
+    // V = 0 + 6·6·3·9/(144·11) + 6·6·8·4/(144·11) + 6·6·11·1/(144·11) + 0 = 2520/1584
+    double variance = MantelHaenszel.variance(rows, cols, totals);
+    assertEquals(2520.0 / 1584, variance, 1e-12);
+    assertEquals(3.93, MantelHaenszel.chiSquare(observed, expected, variance, true), 0.005);
+    assertEquals(9 / variance, MantelHaenszel.chiSquare(observed, expected, variance, false), 1e-12);
+    // P(χ²₁ ≥ 3.93) = 0.047 (from memory, as the book reports it)
+    assertEquals(0.047, TwoByTwoTable.chiSquareOneDfPValue(MantelHaenszel.chiSquare(observed, expected, variance, true)),
+        0.001);
+  }
+
+  /**
+   * A hand-computed table of baskets by size class: a and b sit in large baskets more than in small ones. Class 1
+   * (single items): N 200, a 30, b 30, a pairless class, left out of E. Class 2: N 100, a 10, b 20. Class 6+: N 50,
+   * a 40, b 40. So N = 350, n_a = 80, n_b = 90; E = 10·20/100 + 40·40/50 = 2 + 32 = 34. With n_ab = 34 the pair is
+   * exactly as frequent as independence within classes predicts, yet its textbook lift is 350·34/(80·90) = 1.653.
+   */
+  @Test
+  void theSizeEffectAndItsAdjustmentOnAHandComputedTable() {
+    SizeClasses classes = SizeClasses.of(1, 2, 3, 6);
+    assertTrue(classes.pairless(0));
+    double[] a = {0, 10, 0, 40};
+    double[] b = {0, 20, 0, 40};
+    double[] baskets = {200, 100, 0, 50}; // the pairless class contributes nothing
+    double expected = MantelHaenszel.expected(a, b, baskets);
+    assertEquals(34.0, expected, 1e-12);
+    PairCounts counts = PairCounts.exact(350, 80, 90, 34).withStratifiedExpected(Estimate.exact(expected));
+    PairMeasures m = PairMeasures.of(counts);
+    assertEquals(350.0 * 34 / (80 * 90), m.liftUnadjusted(), 1e-12);
+    assertEquals(1.0, m.lift(), 1e-12);
+    assertEquals(34.0, m.expectedCountAB(), 1e-12);
+    assertEquals(0.0, m.leverage(), 1e-12);
+    assertEquals(34.0 / 350 - (80.0 / 350) * (90.0 / 350), m.leverageUnadjusted(), 1e-12);
+    assertEquals(1.0, m.shrunkLift(), 1e-12); // (34 + 10)/(34 + 10)
+    assertEquals(1.0, m.convictionAB(), 1e-12); // (1 − 34/80)/(1 − 34/80)
+    assertEquals(0.0, m.gSquared(), 1e-12);
+    assertTrue(m.liftLower() < 1 && m.liftUpper() > 1, m.toString());
+    assertTrue(m.liftLowerUnadjusted() > 1, "the textbook interval excludes 1: the size effect looks like an association");
+    assertFalse(m.isRepelling());
+    // the ones that read no null model do not change
+    assertEquals(34.0 / 80, m.confidenceAB(), 1e-12);
+    assertEquals(34.0 / 350, m.support(), 1e-12);
+  }
+
+  @Test
+  void adjustedFormulasHandComputed() {
+    // N 1000, n_a 100, n_b 200, n_ab 40, stratified E 25: lift 1.6, leverage 15/1000, shrunk (50)/(35),
+    // conviction a ⇒ b (1 − 25/100)/(1 − 0.4) = 1.25, b ⇒ a (1 − 25/200)/(1 − 0.2) = 1.09375,
+    // G² = 2·(40·ln(40/25) − 15)
+    PairMeasures m = PairMeasures.of(PairCounts.exact(1_000, 100, 200, 40).withStratifiedExpected(Estimate.exact(25)));
+    assertEquals(1.6, m.lift(), 1e-12);
+    assertEquals(0.015, m.leverage(), 1e-12);
+    assertEquals(50.0 / 35, m.shrunkLift(), 1e-12);
+    assertEquals(1.25, m.convictionAB(), 1e-12);
+    assertEquals(1.09375, m.convictionBA(), 1e-12);
+    double g2 = 2 * (40 * Math.log(40.0 / 25) - 15);
+    assertEquals(g2, m.gSquared(), 1e-12);
+    assertEquals(Math.sqrt(g2), m.signedRootGSquared(), 1e-12);
+    // the interval: the documented delta-method variance with the adjusted lift, exact counts
+    double halfWidth = 1.959964 * Math.sqrt(1.0 / 40 - 1.0 / 100 - 1.0 / 200 + (2 * 1.6 - 1) / 1000);
+    assertEquals(1.6 * Math.exp(-halfWidth), m.liftLower(), 1e-5);
+    assertEquals(1.6 * Math.exp(halfWidth), m.liftUpper(), 1e-5);
+    // the textbook values are those of the plain table (lift 2)
+    assertEquals(2.0, m.liftUnadjusted(), 1e-12);
+    assertEquals(PairMeasures.of(PairCounts.exact(1_000, 100, 200, 40)).liftLower(), m.liftLowerUnadjusted(), 0.0);
+    // below E: a negative signed root
+    PairMeasures below = PairMeasures.of(PairCounts.exact(1_000, 100, 200, 10).withStratifiedExpected(Estimate.exact(25)));
+    assertTrue(below.signedRootGSquared() < 0);
+  }
+
+  @Test
+  void sketchBoundsOfTheExpectedCountWidenTheInterval() {
+    PairCounts exact = PairCounts.exact(1_000, 100, 200, 40).withStratifiedExpected(Estimate.exact(25));
+    PairCounts bounded = PairCounts.exact(1_000, 100, 200, 40).withStratifiedExpected(new Estimate(25, 20, 30));
+    PairMeasures e = PairMeasures.of(exact);
+    PairMeasures b = PairMeasures.of(bounded);
+    assertEquals(e.lift(), b.lift(), 0.0);
+    double samplingFactor = e.liftUpper() / 1.6;
+    assertEquals(40.0 / 30 / samplingFactor, b.liftLower(), 1e-9);
+    assertEquals(40.0 / 20 * samplingFactor, b.liftUpper(), 1e-9);
+    // E's lower bound 0 (the classes of an untracked item unknown): no upper end
+    PairCounts open = PairCounts.exact(1_000, 100, 200, 40).withStratifiedExpected(new Estimate(25, 0, 30));
+    assertEquals(Double.POSITIVE_INFINITY, PairMeasures.of(open).liftUpper());
+    // the offer test reads the least favourable bounds: E.upper
+    assertEquals(PairMeasures.poissonUpperTail(40, 30), b.associationPValue(), 0.0);
+  }
+
+  @Test
+  void poissonUpperTailMatchesCommonsMath() {
+    for (double mean : new double[] {0.5, 3, 25, 400}) {
+      PoissonDistribution poisson = new PoissonDistribution(mean);
+      for (int x = 1; x < 3 * mean + 10; x += 1 + (int) (mean / 10)) {
+        assertEquals(1 - poisson.cumulativeProbability(x - 1), PairMeasures.poissonUpperTail(x, mean),
+            1e-9 + 1e-7 * (1 - poisson.cumulativeProbability(x - 1)), "mean " + mean + ", x " + x);
+      }
+    }
+    assertEquals(1.0, PairMeasures.poissonUpperTail(0, 5));
+    assertEquals(0.0, PairMeasures.poissonUpperTail(2, 0));
+  }
+
+  @Test
+  void sizeClassesParseLabelAndClassify() {
+    SizeClasses defaults = SizeClasses.defaults();
+    assertEquals("1,2,3,4-5,6+", defaults.toString());
+    assertEquals(defaults, SizeClasses.parse("1,2,3,4-5,6+"));
+    assertEquals(defaults, SizeClasses.parse("1, 2, 3, 4, 6"));
+    int[] expectedClass = {-1, 0, 1, 2, 3, 3, 4, 4, 4};
+    for (int size = 1; size < expectedClass.length; size++) {
+      assertEquals(expectedClass[size], defaults.classOf(size), "size " + size);
+    }
+    assertEquals(4, defaults.classOf(1_000));
+    assertTrue(defaults.pairless(0));
+    assertFalse(defaults.pairless(1));
+    assertFalse(SizeClasses.single().pairless(0));
+    assertEquals("1+", SizeClasses.single().toString());
+    assertThrows(IllegalArgumentException.class, () -> SizeClasses.of(2, 3));
+    assertThrows(IllegalArgumentException.class, () -> SizeClasses.of(1, 3, 3));
+    assertThrows(IllegalArgumentException.class, () -> SizeClasses.parse("1,2-4,6+"));
+    assertThrows(IllegalArgumentException.class, () -> SizeClasses.parse("one"));
+  }
+}
