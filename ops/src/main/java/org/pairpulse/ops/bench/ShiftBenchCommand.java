@@ -42,16 +42,17 @@ import picocli.CommandLine.Spec;
  * RESULT shift detected=&lt;k&gt;/&lt;m&gt; delay_sim_minutes_median=&lt;n&gt; false_alerts_per_sim_day=&lt;x&gt;
  *     hit_at_10=&lt;x&gt; hit_at_10_nightly=&lt;x&gt; hit_at_10_popular=&lt;x&gt;
  * </pre>
- * (one line). m counts the planted emerging and fading changes inside the run; the delay is from the planted change
- * to the alert, in simulated minutes (median over the detected ones, {@code NA} when none); false alerts follow
- * {@link Detection}; the hit rates are over the evaluated baskets of the simulated day after each planted change
- * ({@link BacktestRun#daysAfterChanges()}: day 3 19:00 to day 4 19:00 and day 5 00:00 to day 6 00:00 with the
+ * (one line). m counts the planted emerging and fading changes inside the run (3 with the defaults: the e-sports pair
+ * from day 3 12:00, the new handset's launch case from day 3 15:00, the roaming pair's end at day 5 00:00); the
+ * delay is from the planted change to the alert, in simulated minutes (median over the detected ones, {@code NA}
+ * when none); false alerts follow {@link Detection}; the hit rates are over the evaluated baskets of the simulated day after each planted change
+ * ({@link BacktestRun#daysAfterChanges()}: day 3 12:00 to day 4 15:00 and day 5 00:00 to day 6 00:00 with the
  * defaults). Run: {@code ops/pairpulse bench shift}; about 3 minutes of CPU with the defaults (7 minutes of wall clock on
  * the shared, loaded 2-core machine where it was measured).
  */
 @Command(name = "shift", mixinStandardHelpOptions = true, sortOptions = false, usageHelpAutoWidth = true,
     description = {
-        "Plays the Kestrel Connect scenario (planted emerging and fading pairs) through the backtest with its ground"
+        "Plays the Kestrel Connect scenario (two planted emerging pairs, one fading) through the backtest with its ground"
             + " truth: detection of the planted changes and test-then-train hit rates against a nightly rebuild and"
             + " the most popular items. Prints progress, then one line:",
         "RESULT shift detected=<k>/<m> delay_sim_minutes_median=<n> false_alerts_per_sim_day=<x> hit_at_10=<x>"
@@ -70,7 +71,8 @@ public final class ShiftBenchCommand implements Callable<Integer> {
   CommandSpec spec;
 
   @Option(names = "--days", paramLabel = "N", description = "Simulated days (default: ${DEFAULT-VALUE}; the planted"
-      + " fading change is at day 5, so fewer than 6 days see only the emerging one).")
+      + " emerging pairs start on day 3 and the fading change is at day 5, so fewer than 6 days see only the emerging"
+      + " ones).")
   int days = ScenarioConfig.DEFAULT_DURATION_DAYS;
 
   @Option(names = "--baskets-per-minute", paramLabel = "X", description = "Mean baskets per simulated minute"

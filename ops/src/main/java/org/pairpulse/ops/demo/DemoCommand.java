@@ -26,8 +26,9 @@ import picocli.CommandLine.Spec;
     description = {
         "Runs pairpulse on this machine with invented data: an in-process Kafka broker, the Kestrel Connect"
             + " scenario on an accelerated clock, ingest and the server with its dashboard.",
-        "The planted emerging pair (pack-esports + boost-lowlatency-5gb, from 19:00 of simulated day 3) is"
-            + " alerted during the default run. Ctrl-C stops everything cleanly."},
+        "The planted emerging pair (pack-esports + boost-lowlatency-5gb, from 12:00 of simulated day 3, when a"
+            + " popular online game opens a new season) is alerted during the default run. Ctrl-C stops everything"
+            + " cleanly."},
     footer = {"", "The demo scales two horizons to its few simulated days: recent has a half-life of 2 simulated"
         + " hours, baseline is a 7-day window (see README-ops-run.md)."})
 public final class DemoCommand implements Callable<Integer> {
@@ -51,12 +52,12 @@ public final class DemoCommand implements Callable<Integer> {
 
   @Option(names = "--duration", paramLabel = "SIM_TIME", defaultValue = "6d",
       description = "Simulated time to play: 6d, 36h, 90m, or 'forever' (until Ctrl-C). Default: ${DEFAULT-VALUE}"
-          + " (past the planted emerging pair of day 3 and the fading pair of day 5).")
+          + " (past the planted emerging pairs of day 3 and the fading pair of day 5).")
   String duration;
 
   @Option(names = "--fast-forward", paramLabel = "SIM_TIME", defaultValue = "0",
       description = "Simulated time from day 0 to send at once (a backfill) before the clock starts, e.g. 3d to"
-          + " reach the evening of the emerging pair in about a minute. Default: none.")
+          + " reach the day of the emerging pairs at once. Default: none.")
   String fastForward;
 
   @Option(names = "--port", defaultValue = "8470", description = "HTTP port of the dashboard and API on 127.0.0.1"

@@ -17,9 +17,9 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
  * are longer than a demo run of a few simulated days. The demo scales two of them so that a shift shows
  * within the run:
  * <ul>
- *   <li>{@code recent}: decay, half-life <b>2 simulated hours</b>. An evening's shift dominates
- *       {@code recent} within a few hours, so the planted emerging pair (from 19:00 of day 3) is
- *       alerted the same evening; with 6 h the alert comes later in the night, at the quiet hours.</li>
+ *   <li>{@code recent}: decay, half-life <b>2 simulated hours</b>. A shift dominates {@code recent} within a
+ *       few hours, so the planted emerging pair (from 12:00 of day 3) is alerted the same day; with 6 h the
+ *       alert comes hours later.</li>
  *   <li>{@code day}: window 24 h in 24 panes, as in production.</li>
  *   <li>{@code baseline}: window <b>7 simulated days</b> in 7 panes. Longer than the default run, so
  *       it holds the whole history the demo has seen (what a 28-day baseline holds after a month), with
@@ -49,7 +49,7 @@ public record DemoSettings(long seed, double speed, long durationSimMillis, Stri
   public static final long DAY_MILLIS = Duration.ofDays(1).toMillis();
   /** One simulated day a minute. */
   public static final double DEFAULT_SPEED = DAY_MILLIS / 60_000.0;
-  /** Past the planted emerging pair (day 3, 19:00) and the fading one (day 5, 00:00). */
+  /** Past the planted emerging pairs (day 3, 12:00 and 15:00) and the fading one (day 5, 00:00). */
   public static final long DEFAULT_DURATION_SIM_MILLIS = Duration.ofDays(6).toMillis();
   public static final int DEFAULT_PORT = 8470;
   public static final double DEFAULT_BASKETS_PER_MINUTE = 40;

@@ -12,25 +12,35 @@ import java.util.Set;
  * cloud storage, smart-home add-ons, international calling, music albums). It is fixed: it does not depend on the seed,
  * so item ids are stable across runs.
  *
+ * <p>Names are ours: device models are coined words (checked against no product we know of) or plain descriptions
+ * in the trade's terms (Wi-Fi generation, 5G, FWA); film, series and album titles follow the pattern
+ * {@code <word>-<word>-no-<n>} (a word pair with a catalogue number), which no well-known work's title has, so
+ * that the generator never produces the two-word title of a real film, series or album.
+ *
  * <p>{@link #popularityOrder()} interleaves the families round-robin, each family listed most popular first,
  * so the head of a Zipf law over that order holds the first items of every family and the tail holds the
  * long families' last items (mostly rentals).
  */
 final class KestrelCatalog {
   /** The handset models that carry the planted bundle (handset + own case) and the screen-guard affinity. */
-  static final List<String> HANDSET_MODELS = List.of("aurora-x2", "nimbus-7", "kestrel-one", "aurora-x2-pro",
-      "fjord-s", "tundra-5g", "nimbus-7-mini", "fjord-s-lite");
+  static final List<String> HANDSET_MODELS = List.of("orvane-x2", "quarro-7", "kestrel-one", "orvane-x2-max",
+      "myrren-s", "velk-5g", "quarro-7-mini", "myrren-s-lite");
+  /**
+   * The new handset of the second emerging pair: on sale from the start, without a case of its own until its
+   * launch case arrives on day 3 ({@link #launchCase}).
+   */
+  static final String LAUNCH_MODEL = "kestrel-two";
   /** Prepaid top-up amounts, most popular first; every top-up repels the postpaid family plan. */
   static final List<Integer> TOPUP_AMOUNTS = List.of(10, 20, 15, 30, 50);
 
-  private static final String[] TABLET_MODELS = {"slate-10", "slate-12-pro", "slate-mini", "pad-lumen-11",
-      "pad-lumen-8", "kids-tab-7", "slate-10-lte", "pad-lumen-13", "fjord-tab", "tundra-tab-rugged"};
-  private static final String[] WATCH_MODELS = {"pulse-w3", "pulse-w3-lte", "orbit-2", "orbit-2-sport",
-      "kids-watch-go", "trail-w1", "pulse-w2", "orbit-classic"};
-  private static final String[] EARBUD_MODELS = {"echo-buds", "echo-buds-pro", "loop-air", "loop-sport",
-      "hush-anc", "kids-buds"};
-  private static final String[] ROUTER_MODELS = {"home-hub-6", "home-hub-7", "mesh-node-6", "mesh-node-7",
-      "fwa-5g-router", "travel-hotspot-4g", "travel-hotspot-5g"};
+  private static final String[] TABLET_MODELS = {"tesk-10", "tesk-12-max", "tesk-mini", "vorla-11", "vorla-8",
+      "vorla-junior-7", "tesk-10-lte", "vorla-13", "myrren-tab", "velk-tab-rugged"};
+  private static final String[] WATCH_MODELS = {"dalvo-w3", "dalvo-w3-lte", "quillet-2", "quillet-2-sport",
+      "dalvo-junior", "quillet-trek", "dalvo-w2", "quillet-classic"};
+  private static final String[] EARBUD_MODELS = {"orvane-e1", "orvane-e1-max", "murro-air", "murro-sport",
+      "murro-anc", "murro-junior"};
+  private static final String[] ROUTER_MODELS = {"wifi6-dual-band", "wifi7-tri-band", "mesh-node-wifi6",
+      "mesh-node-wifi7", "fwa-5g", "travel-hotspot-4g", "travel-hotspot-5g"};
   private static final String[] COLOURS = {"black", "white", "sand", "teal", "coral", "graphite"};
 
   private static final String[] SPORTS = {"football", "basketball", "tennis", "cycling", "motorsport", "rugby",
@@ -44,7 +54,7 @@ final class KestrelCatalog {
   private static final String[] ESPORTS = {"league-north", "battle-arena", "racing-sim", "tactics",
       "fighting", "retro"};
 
-  // invented words for film and series titles
+  // plain words for film, series and album titles (always with a catalogue number: see the class comment)
   private static final String[] TITLE_FIRST = {"quiet", "silver", "last", "hidden", "broken", "northern",
       "burning", "second", "golden", "lost", "paper", "iron", "winter", "salt", "hollow", "distant", "bright",
       "crooked", "wild", "glass", "velvet", "copper", "midnight", "lonely", "restless", "pale", "emerald",
@@ -105,6 +115,11 @@ final class KestrelCatalog {
 
   static String screenGuard(String model) {
     return "guard-" + model;
+  }
+
+  /** The launch case of {@link #LAUNCH_MODEL}, never sold before the second emerging pair starts. */
+  static String launchCase(String model) {
+    return "case-" + model + "-launch";
   }
 
   static String topup(int amount) {
@@ -251,6 +266,7 @@ final class KestrelCatalog {
     for (String model : HANDSET_MODELS) {
       devices.add(handset(model));
     }
+    devices.add(handset(LAUNCH_MODEL));
     for (String model : TABLET_MODELS) {
       devices.add("tablet-" + model);
     }
@@ -277,6 +293,7 @@ final class KestrelCatalog {
       accessories.add(handsetCase(model));
       accessories.add(screenGuard(model));
     }
+    accessories.add(launchCase(LAUNCH_MODEL));
     for (String watts : new String[] {"30w", "20w", "65w", "45w", "100w", "18w"}) {
       accessories.add("charger-usb-c-" + watts);
     }
@@ -286,7 +303,7 @@ final class KestrelCatalog {
     accessories.add("charger-car-dual");
     accessories.add("charger-travel-kit");
     for (String cable : new String[] {"usb-c-1m", "usb-c-2m", "usb-c-braided-2m", "usb-c-to-a-1m",
-        "usb-c-to-lightning-1m", "hdmi-2m"}) {
+        "usb-c-to-micro-usb-1m", "hdmi-2m"}) {
       accessories.add("cable-" + cable);
     }
     for (String bank : new String[] {"10k", "20k", "5k-magnetic", "25k-laptop"}) {
@@ -307,7 +324,7 @@ final class KestrelCatalog {
       accessories.add("sleeve-" + model);
     }
     for (String mount : new String[] {"car-vent", "bike", "desk-stand", "tripod", "selfie-stick", "ring-grip",
-        "pop-grip", "lanyard", "wallet-sleeve", "sim-tool"}) {
+        "finger-loop", "lanyard", "wallet-sleeve", "sim-tool"}) {
       accessories.add("mount-" + mount);
     }
     for (String colour : COLOURS) {
@@ -357,7 +374,7 @@ final class KestrelCatalog {
   private static List<String> smartHome() {
     List<String> home = new ArrayList<>();
     for (String thing : new String[] {"plug", "camera-indoor", "bulb-white", "doorbell", "sensor-motion",
-        "camera-outdoor", "bulb-colour", "sensor-door", "strip-light", "thermostat", "hub", "sensor-water",
+        "camera-outdoor", "bulb-colour", "sensor-door", "strip-light", "thermostat", "controller", "sensor-water",
         "siren", "lock", "speaker", "smoke-alarm", "blinds", "garage-opener", "pet-feeder", "air-monitor"}) {
       home.add("home-" + thing);
       home.add("home-" + thing + "-3pack");
@@ -390,12 +407,20 @@ final class KestrelCatalog {
     return calling;
   }
 
+  /**
+   * A title slug {@code <first>-<second>-no-<number>}: a word pair is never a title alone, so no random pair of
+   * plain words can spell the title of a well-known work.
+   */
+  static String title(String first, String second, int number) {
+    return first + "-" + second + "-no-" + number;
+  }
+
   private static List<String> films() {
     List<String> films = new ArrayList<>();
     for (int i = 0; i < TITLE_FIRST.length; i++) {
       for (int j = 0; j < TITLE_SECOND.length; j++) {
         // a diagonal walk spreads popular titles over many words
-        films.add("film-" + TITLE_FIRST[(i + j) % TITLE_FIRST.length] + "-" + TITLE_SECOND[j]);
+        films.add("film-" + title(TITLE_FIRST[(i + j) % TITLE_FIRST.length], TITLE_SECOND[j], i + 1));
       }
     }
     return films;
@@ -404,8 +429,8 @@ final class KestrelCatalog {
   private static List<String> albums() {
     List<String> albums = new ArrayList<>();
     for (int i = 0; i < 150; i++) {
-      albums.add("album-" + TITLE_SECOND[i % TITLE_SECOND.length] + "-"
-          + TITLE_FIRST[(i * 11 + i / TITLE_SECOND.length + 5) % TITLE_FIRST.length]);
+      albums.add("album-" + title(TITLE_SECOND[i % TITLE_SECOND.length],
+          TITLE_FIRST[(i * 11 + i / TITLE_SECOND.length + 5) % TITLE_FIRST.length], i / TITLE_SECOND.length + 1));
     }
     return albums;
   }
@@ -414,8 +439,8 @@ final class KestrelCatalog {
     List<String> series = new ArrayList<>();
     for (int season = 1; season <= 4; season++) {
       for (int i = 0; i < 55; i++) {
-        series.add("series-the-" + TITLE_SECOND[i % TITLE_SECOND.length] + "-of-"
-            + TITLE_FIRST[(i * 7 + i / TITLE_SECOND.length + 3) % TITLE_FIRST.length] + "-s" + season);
+        series.add("series-" + title(TITLE_FIRST[(i * 7 + i / TITLE_SECOND.length + 3) % TITLE_FIRST.length],
+            TITLE_SECOND[i % TITLE_SECOND.length], i / TITLE_SECOND.length + 1) + "-s" + season);
       }
     }
     return series;

@@ -10,15 +10,16 @@ import java.util.Objects;
  *
  * <p>{@code expectedLift} is the model's exact expectation {@code P(a ∧ b) / (P(a) · P(b))} per basket over
  * {@code [startMillis, endMillis)}; {@code expectedLiftOutside} the same outside that interval (before and
- * after), or NaN when the interval is the whole run. For {@link PlantedKind#NOISE_POPULARITY} there is one
- * item and both lifts are those of the item with any other item (1: popularity is not association).
+ * after), or NaN when the interval is the whole run or an item does not sell outside it (a pair from nothing).
+ * For {@link PlantedKind#NOISE_POPULARITY} there is one item and both lifts are those of the item with any other
+ * item (1: popularity is not association).
  *
  * @param kind what the pair is
  * @param items the two item ids in lexicographic order (one for {@link PlantedKind#NOISE_POPULARITY})
  * @param startMillis where the interval in which {@code expectedLift} holds begins (event time, inclusive)
  * @param endMillis where it ends (event time, exclusive); may lie after the simulation end
  * @param expectedLift the expected lift inside the interval
- * @param expectedLiftOutside the expected lift outside it, NaN when there is no outside
+ * @param expectedLiftOutside the expected lift outside it, NaN when there is no outside or it is undefined there
  * @param description one line for people: the story, the rates, the confidences
  */
 public record PlantedPair(PlantedKind kind, List<String> items, long startMillis, long endMillis,

@@ -46,8 +46,10 @@ import java.util.stream.StreamSupport;
  *
  * <h2>Planted events (day 0 = start)</h2>
  * <ol>
- *   <li>EMERGING {@code pack-esports} + {@code boost-lowlatency-5gb}: lift 6 in [day 3 19:00, day 5 19:00),
- *       1 before and after.
+ *   <li>EMERGING {@code pack-esports} + {@code boost-lowlatency-5gb}: lift 6 in [day 3 12:00, day 5 12:00)
+ *       (a popular online game opens a new season), 1 before and after.
+ *   <li>EMERGING from nothing {@code handset-kestrel-two} + {@code case-kestrel-two-launch}: the launch case,
+ *       never sold before, from day 3 15:00 to the end, in a third of the handset's baskets (lift about 61).
  *   <li>FADING {@code roam-zone-b-day} + {@code protect-travel}: lift 5 until day 5 00:00, then 1.
  *   <li>BUNDLE each {@code handset-<model>} + {@code case-<model>} (8 models): confidence about 0.98 both
  *       ways, all run long.

@@ -21,14 +21,15 @@ import java.util.Optional;
  *   "unlistedPairLift": {"min": 0.8, "max": 1.25},
  *   "planted": [
  *     {"kind": "EMERGING", "items": ["boost-lowlatency-5gb", "pack-esports"],
- *      "startMillis": …, "endMillis": …, "start": "2026-06-04T19:00:00Z", "end": "2026-06-06T19:00:00Z",
+ *      "startMillis": …, "endMillis": …, "start": "2026-06-04T12:00:00Z", "end": "2026-06-06T12:00:00Z",
  *      "expectedLift": 6, "expectedLiftOutside": 1, "description": "…"},
  *     …
  *   ]
  * }
  * }</pre>
  * Times are epoch milliseconds, with ISO-8601 copies for people; lifts have 6 significant digits;
- * {@code expectedLiftOutside} is {@code null} for pairs planted over the whole run.
+ * {@code expectedLiftOutside} is {@code null} for pairs planted over the whole run and for a pair from nothing
+ * (one item never sold before its start).
  *
  * @param config the settings the scenario ran with
  * @param planted the planted pairs, in plan order (emerging, fading, bundles and affinities, repelling, noise)

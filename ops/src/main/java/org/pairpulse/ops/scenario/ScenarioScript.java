@@ -34,8 +34,13 @@ import java.util.Set;
  * <h2>Modules</h2>
  * <ul>
  *   <li><b>e-sports</b>: {@code pack-esports} and {@code boost-lowlatency-5gb}, each with probability 0.03,
- *       independent, except in [day 3 19:00, day 5 19:00) where with probability q both come together and
- *       otherwise as before; q solves lift = 6 ({@link #jointShareFor}).
+ *       independent, except in [day 3 12:00, day 5 12:00) (a popular online game opens a new season at noon on
+ *       day 3) where with probability q both come together and otherwise as before; q solves lift = 6
+ *       ({@link #jointShareFor}).
+ *   <li><b>launch</b>: the new handset {@code handset-kestrel-two} with probability 0.015 all run long. From day 3
+ *       15:00 its launch case {@code case-kestrel-two-launch}, never sold before, comes with it in a third of its
+ *       baskets, and alone in 0.0005 of all baskets: an emerging pair from nothing (lift about 61, confidence 1/3
+ *       from the handset, about 0.91 from the case; not a bundle).
  *   <li><b>roaming</b>: {@code roam-zone-b-day} (0.03) and {@code protect-travel} (0.025): lift 5 the same
  *       way until day 5 00:00 (the summer promotion), independent afterwards.
  *   <li><b>handset, one per model</b> (8 models, shares by Zipf's law): a handset purchase (0.04 over all
@@ -63,8 +68,16 @@ final class ScenarioScript {
   static final double LOW_LATENCY_RATE = 0.03;
   static final double EMERGING_LIFT = 6.0;
   static final int EMERGING_START_DAY = 3;
-  static final int EMERGING_START_HOUR = 19;
+  static final int EMERGING_START_HOUR = 12;
   static final int EMERGING_DAYS = 2;
+
+  static final String LAUNCH_HANDSET = KestrelCatalog.handset(KestrelCatalog.LAUNCH_MODEL);
+  static final String LAUNCH_CASE = KestrelCatalog.launchCase(KestrelCatalog.LAUNCH_MODEL);
+  static final double LAUNCH_HANDSET_RATE = 0.015;
+  static final double LAUNCH_CASE_WITH_HANDSET = 1.0 / 3;
+  static final double LAUNCH_CASE_ALONE_RATE = 0.0005;
+  static final int LAUNCH_START_DAY = 3;
+  static final int LAUNCH_START_HOUR = 15;
 
   static final String ROAMING_PASS = "roam-zone-b-day";
   static final String TRAVEL_PROTECTION = "protect-travel";
@@ -145,7 +158,7 @@ final class ScenarioScript {
     List<Module> modules = new ArrayList<>();
     List<PlantedPair> planted = new ArrayList<>();
 
-    // 1. emerging: the e-sports final
+    // 1. emerging: a popular online game opens a new season
     long emergingFrom = config.millisAt(EMERGING_START_DAY, EMERGING_START_HOUR);
     long emergingTo = emergingFrom + EMERGING_DAYS * ScenarioConfig.DAY_MILLIS;
     ItemSetDistribution esportsApart = bernoulli(ESPORTS_RATE, ESPORTS_PACK)
@@ -156,8 +169,28 @@ final class ScenarioScript {
     planted.add(new PlantedPair(PlantedKind.EMERGING, List.of(ESPORTS_PACK, LOW_LATENCY_BOOST), emergingFrom,
         emergingTo, esportsTogether.lift(ESPORTS_PACK, LOW_LATENCY_BOOST),
         esportsApart.lift(ESPORTS_PACK, LOW_LATENCY_BOOST),
-        String.format(Locale.ROOT, "e-sports final streamed: both items together in %.2f%% of baskets on top of"
-            + " independent rates %.2f and %.2f", 100 * esportsJoint, ESPORTS_RATE, LOW_LATENCY_RATE)));
+        String.format(Locale.ROOT, "a popular online game opens a new season: both items together in %.2f%% of"
+            + " baskets on top of independent rates %.2f and %.2f", 100 * esportsJoint, ESPORTS_RATE,
+            LOW_LATENCY_RATE)));
+
+    // 1b. emerging from nothing: the new handset's launch case arrives the same afternoon
+    long launchFrom = config.millisAt(LAUNCH_START_DAY, LAUNCH_START_HOUR);
+    ItemSetDistribution handsetAlone = either(LAUNCH_HANDSET_RATE, always(LAUNCH_HANDSET), nothing());
+    ItemSetDistribution withLaunchCase = either(LAUNCH_HANDSET_RATE,
+        always(LAUNCH_HANDSET).and(bernoulli(LAUNCH_CASE_WITH_HANDSET, LAUNCH_CASE)),
+        bernoulli(LAUNCH_CASE_ALONE_RATE, LAUNCH_CASE));
+    modules.add(new Module("launch", new long[] {Long.MIN_VALUE, launchFrom},
+        new ItemSetDistribution[] {handsetAlone, withLaunchCase}));
+    if (launchFrom < endMillis) {
+      planted.add(new PlantedPair(PlantedKind.EMERGING, List.of(LAUNCH_HANDSET, LAUNCH_CASE), launchFrom, endMillis,
+          withLaunchCase.lift(LAUNCH_HANDSET, LAUNCH_CASE), Double.NaN,
+          String.format(Locale.ROOT, "a new handset's launch case, never sold before, goes on sale: in %.1f%% of the"
+              + " handset's baskets (handset in %.2f%% of baskets), alone in %.2f%%; confidence %.3f one way, %.3f the"
+              + " other; lift undefined before (the case did not sell)", 100 * LAUNCH_CASE_WITH_HANDSET,
+              100 * LAUNCH_HANDSET_RATE, 100 * LAUNCH_CASE_ALONE_RATE,
+              withLaunchCase.confidence(LAUNCH_HANDSET, LAUNCH_CASE),
+              withLaunchCase.confidence(LAUNCH_CASE, LAUNCH_HANDSET))));
+    }
 
     // 2. fading: the summer roaming promotion ends
     long fadingTo = config.millisAt(FADING_END_DAY, 0);

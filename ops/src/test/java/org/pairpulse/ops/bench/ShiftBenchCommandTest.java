@@ -48,4 +48,26 @@ class ShiftBenchCommandTest {
     // the hit rates are numbers: evaluation ran
     assertTrue(!last.contains("hit_at_10=NA"), last);
   }
+
+  /**
+   * Six days hold all three planted changes: the two emerging pairs of day 3 (the e-sports pair and the new
+   * handset's launch case) and the fading pair of day 5. Which of them are found is the detector's matter.
+   */
+  @Test
+  void sixDaysHoldThreePlantedChanges() throws Exception {
+    Files.writeString(directory.resolve("small.properties"),
+        "engine.trackedPairCapacity=512\nengine.trackedItemCapacity=512\nserve.cohortFloor=5\n");
+    StringWriter out = new StringWriter();
+    StringWriter err = new StringWriter();
+    CommandLine cli = Main.commandLine();
+    cli.setOut(new PrintWriter(out, true));
+    cli.setErr(new PrintWriter(err, true));
+    int exit = cli.execute("bench", "shift", "--days", "6", "--baskets-per-minute", "2", "--refresh-every", "2h",
+        "--eval-share", "0.05", "--config", directory.resolve("small.properties").toString());
+    assertEquals(Main.EXIT_OK, exit, err.toString());
+    String[] lines = out.toString().strip().split("\n");
+    String last = lines[lines.length - 1];
+    assertTrue(RESULT.matcher(last).matches(), last);
+    assertTrue(last.matches("RESULT shift detected=[0-3]/3 .*"), last);
+  }
 }

@@ -47,7 +47,7 @@ import org.pairpulse.serve.IngestHealth;
  *
  * <p>Clock: 20 baskets per simulated minute; the first 3.5 simulated days are sent at once (the demo's
  * fast-forward: about 100,000 baskets, counted as fast as ingest can before the clock starts), then one
- * simulated day every 20 s up to day 4 06:00: past the emerging pair's start (day 3, 19:00) by 11 simulated
+ * simulated day every 20 s up to day 4 06:00: past the emerging pair's start (day 3, 12:00) by 18 simulated
  * hours. The clock must stay slow enough
  * that ingest's refreshes (a few a second) come every few simulated minutes: drift needs two observations a
  * dwell apart, and the pair's evidence must pass the cohort floor (50 baskets since it became tracked).

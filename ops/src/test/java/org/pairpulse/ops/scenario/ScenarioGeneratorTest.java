@@ -39,14 +39,14 @@ class ScenarioGeneratorTest {
    * and must update these on purpose (and say so in the change).
    */
   static final long DEFAULT_RUN_BASKETS = 230_443;
-  static final long DEFAULT_RUN_DIGEST = 2335352062434160013L;
+  static final long DEFAULT_RUN_DIGEST = 3109620971950466729L;
   static final List<String> DEFAULT_RUN_FIRST_LINES = List.of(
-      "{\"id\":\"kc-000000001\",\"time\":1780272002316,\"items\":[\"protect-basic\"],"
-          + "\"attributes\":{\"channel\":\"web\",\"region\":\"capital\"}}",
-      "{\"id\":\"kc-000000002\",\"time\":1780272011017,\"items\":[\"boost-1gb\",\"pack-sports\","
-          + "\"plan-prepaid-50gb-90d\"],\"attributes\":{\"channel\":\"web\",\"region\":\"coast\"}}",
-      "{\"id\":\"kc-000000003\",\"time\":1780272012831,\"items\":[\"album-bridge-distant\","
-          + "\"plan-prepaid-5gb-30d\"],\"attributes\":{\"channel\":\"app\",\"region\":\"south\"}}");
+      "{\"id\":\"kc-000000001\",\"time\":1780272002316,\"items\":[\"boost-1gb\",\"film-distant-ember-no-1\"],"
+          + "\"attributes\":{\"channel\":\"app\",\"region\":\"north\"}}",
+      "{\"id\":\"kc-000000002\",\"time\":1780272011017,\"items\":[\"boost-maps-unlimited-7d\"],"
+          + "\"attributes\":{\"channel\":\"web\",\"region\":\"north\"}}",
+      "{\"id\":\"kc-000000003\",\"time\":1780272012831,\"items\":[\"pack-sports\"],"
+          + "\"attributes\":{\"channel\":\"web\",\"region\":\"north\"}}");
 
   /** One pass: checks every basket's shape on the way, and keeps the baskets for counting. */
   @BeforeAll
@@ -149,11 +149,20 @@ class ScenarioGeneratorTest {
   }
 
   @Test
+  void twoEmergingPairsArePlanted() {
+    List<PlantedPair> emerging = TRUTH.ofKind(PlantedKind.EMERGING);
+    assertEquals(2, emerging.size(), emerging.toString());
+    assertEquals(List.of(ScenarioScript.LOW_LATENCY_BOOST, ScenarioScript.ESPORTS_PACK), emerging.get(0).items());
+    assertEquals(List.of(ScenarioScript.LAUNCH_CASE, ScenarioScript.LAUNCH_HANDSET), emerging.get(1).items());
+  }
+
+  @Test
   void emergingPairHasLiftAboutSixInItsPeriodOnlyAndMatchesTheGroundTruth() {
-    PlantedPair emerging = only(PlantedKind.EMERGING);
+    PlantedPair emerging = TRUTH.find(ScenarioScript.ESPORTS_PACK, ScenarioScript.LOW_LATENCY_BOOST).orElseThrow();
+    assertEquals(PlantedKind.EMERGING, emerging.kind());
     assertEquals(List.of(ScenarioScript.LOW_LATENCY_BOOST, ScenarioScript.ESPORTS_PACK), emerging.items());
-    assertEquals(CONFIG.millisAt(3, 19), emerging.startMillis());
-    assertEquals(CONFIG.millisAt(5, 19), emerging.endMillis());
+    assertEquals(CONFIG.millisAt(3, 12), emerging.startMillis(), "noon on day 3: the game's new season opens");
+    assertEquals(CONFIG.millisAt(5, 12), emerging.endMillis());
     assertEquals(6.0, emerging.expectedLift(), 1e-9);
     assertEquals(1.0, emerging.expectedLiftOutside(), 1e-9);
     String a = emerging.items().get(0);
@@ -166,9 +175,33 @@ class ScenarioGeneratorTest {
     assertEquals(emerging.expectedLift(), inside, 0.15 * emerging.expectedLift(), "against the ground truth");
     assertTrue(before >= 0.5 && before <= 1.5, "lift before " + before);
     assertTrue(after >= 0.5 && after <= 1.5, "lift after " + after);
-    // the evening it starts, it is already there
-    double firstEvening = tally.lift(a, b, emerging.startMillis(), emerging.startMillis() + 5 * 3_600_000L);
-    assertTrue(firstEvening > 3, "lift in the first 5 hours " + firstEvening);
+    // the afternoon it starts, it is already there
+    double firstHours = tally.lift(a, b, emerging.startMillis(), emerging.startMillis() + 5 * 3_600_000L);
+    assertTrue(firstHours > 3, "lift in the first 5 hours " + firstHours);
+  }
+
+  /**
+   * The second emerging pair starts from nothing: the launch case never sells before its start, then comes with
+   * the handset in about a third of the handset's baskets, to the end of the run, as the ground truth says.
+   */
+  @Test
+  void launchCaseStartsFromNothingWithTheNewHandset() {
+    String handset = ScenarioScript.LAUNCH_HANDSET;
+    String launchCase = ScenarioScript.LAUNCH_CASE;
+    PlantedPair launch = TRUTH.find(handset, launchCase).orElseThrow();
+    assertEquals(PlantedKind.EMERGING, launch.kind());
+    assertEquals(CONFIG.millisAt(3, 15), launch.startMillis(), "the same afternoon as the e-sports pair");
+    assertEquals(END, launch.endMillis(), "to the end of the run");
+    assertTrue(Double.isNaN(launch.expectedLiftOutside()), "lift undefined before: the case did not sell");
+
+    assertEquals(0, tally.count(START, launch.startMillis(), launchCase), "the case never sold before");
+    assertTrue(tally.count(START, launch.startMillis(), handset) >= 1000, "the handset sold all along");
+    double confidence = tally.confidence(handset, launchCase, launch.startMillis(), END);
+    assertEquals(1.0 / 3, confidence, 0.05, "a third of the handset's baskets");
+    double reverse = tally.confidence(launchCase, handset, launch.startMillis(), END);
+    assertTrue(reverse > 0.8 && reverse < 0.95, "mostly with the handset, not a bundle: " + reverse);
+    double lift = tally.lift(handset, launchCase, launch.startMillis(), END);
+    assertEquals(launch.expectedLift(), lift, 0.2 * launch.expectedLift(), "against the ground truth");
   }
 
   @Test
@@ -202,8 +235,8 @@ class ScenarioGeneratorTest {
       assertTrue(ab >= 0.95 && ba >= 0.95, bundle.items() + ": " + ab + ", " + ba);
     }
     // the handset's screen guard is an affinity, not a bundle: one way only
-    String handset = KestrelCatalog.handset("aurora-x2");
-    String guard = KestrelCatalog.screenGuard("aurora-x2");
+    String handset = KestrelCatalog.handset("orvane-x2");
+    String guard = KestrelCatalog.screenGuard("orvane-x2");
     assertTrue(tally.confidence(handset, guard, START, END) < 0.6);
     assertTrue(tally.confidence(guard, handset, START, END) > 0.95);
   }

@@ -57,9 +57,43 @@ class ScenarioModelTest {
       assertTrue(slug.matcher(item).matches(), item);
     }
     assertTrue(items.containsAll(List.of("pack-esports", "boost-lowlatency-5gb", "roam-zone-b-day", "protect-travel",
-        "handset-aurora-x2", "case-aurora-x2", "guard-aurora-x2", "charger-usb-c-65w", "topup-prepaid-10",
+        "handset-orvane-x2", "case-orvane-x2", "guard-orvane-x2", "charger-usb-c-65w", "topup-prepaid-10",
+        "handset-kestrel-two", "case-kestrel-two-launch",
         "plan-postpaid-family", "pack-kids", "pack-sports", "pack-documentaries", "pack-cooking", "pack-music",
         "cloud-1tb-monthly", "home-camera-indoor", "intl-zone-3-300min-30d")));
+  }
+
+  /**
+   * Film, series and album titles always carry a catalogue number ({@code <word>-<word>-no-<n>}), so a random pair
+   * of plain words is never a title alone; device names are the coined or descriptive ones.
+   */
+  @Test
+  void titlesCarryACatalogueNumber() {
+    Pattern title = Pattern.compile("(film|album)-[a-z]+-[a-z]+-no-[0-9]+|series-[a-z]+-[a-z]+-no-[0-9]+-s[0-9]");
+    int titles = 0;
+    for (String item : KestrelCatalog.INSTANCE.items()) {
+      if (item.startsWith("film-") || item.startsWith("series-") || item.startsWith("album-")) {
+        assertTrue(title.matcher(item).matches(), item);
+        titles++;
+      }
+    }
+    assertEquals(900 + 4 * 55 + 150, titles);
+  }
+
+  /** The launch case is a new item: the ground truth lists it with the handset, lift from the model, none before. */
+  @Test
+  void launchPairIsInTheGroundTruthAndItsJson() {
+    ScenarioGroundTruth truth = new ScenarioGenerator(CONFIG).groundTruth();
+    PlantedPair launch = truth.find("handset-kestrel-two", "case-kestrel-two-launch").orElseThrow();
+    assertEquals(PlantedKind.EMERGING, launch.kind());
+    assertEquals(CONFIG.millisAt(3, 15), launch.startMillis());
+    assertEquals(CONFIG.endMillis(), launch.endMillis());
+    // P(h) = 0.015, P(c | h) = 1/3, P(c | not h) = 0.0005: lift = (0.005) / (0.015 · (0.005 + 0.985 · 0.0005))
+    assertEquals(0.005 / (0.015 * (0.005 + 0.985 * 0.0005)), launch.expectedLift(), 1e-9);
+    assertTrue(Double.isNaN(launch.expectedLiftOutside()));
+    String json = truth.toJson();
+    assertTrue(json.contains("\"items\": [\"case-kestrel-two-launch\", \"handset-kestrel-two\"]"), json);
+    assertTrue(json.contains("\"start\": \"2026-06-04T15:00:00Z\", \"end\": \"2026-06-09T00:00:00Z\""), json);
   }
 
   @ParameterizedTest
@@ -161,7 +195,9 @@ class ScenarioModelTest {
     ScenarioConfig later = CONFIG.withStart(Instant.parse("2030-01-07T06:00:00Z"));
     ScenarioGroundTruth truth = new ScenarioGenerator(later).groundTruth();
     PlantedPair emerging = truth.ofKind(PlantedKind.EMERGING).get(0);
-    assertEquals(Instant.parse("2030-01-11T01:00:00Z").toEpochMilli(), emerging.startMillis());
+    assertEquals(Instant.parse("2030-01-10T18:00:00Z").toEpochMilli(), emerging.startMillis());
+    PlantedPair launch = truth.ofKind(PlantedKind.EMERGING).get(1);
+    assertEquals(Instant.parse("2030-01-10T21:00:00Z").toEpochMilli(), launch.startMillis());
 
     ScenarioGroundTruth shortRun = new ScenarioGenerator(CONFIG.withDurationDays(3)).groundTruth();
     assertTrue(shortRun.ofKind(PlantedKind.EMERGING).isEmpty());
