@@ -29,12 +29,12 @@ import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
 import picocli.CommandLine.Spec;
 
-/** {@code pairpulse report}: the next-day promo list, see {@link PromoReport}. */
+/** {@code pairpulse report}: the offer shortlist, see {@link ShortlistReport}. */
 @Command(name = "report", mixinStandardHelpOptions = true, sortOptions = false, usageHelpAutoWidth = true,
     description = {
-        "Writes the next-day promo list: per segment, the top emerging pairs and the best suggestion pairs inside the"
+        "Writes the offer shortlist: per segment, the top emerging pairs and the best suggestion pairs inside the"
             + " confidence band, each with its evidence (lift and its interval, confidence, support, recent against"
-            + " baseline), as promo.csv, promo-suppressed.csv and a static promo.html with small charts. Every number"
+            + " baseline), as shortlist.csv, shortlist-suppressed.csv and a static shortlist.html with small charts. Every number"
             + " respects the cohort floor; rows under it are only counted."},
     exitCodeListHeading = "%nExit codes:%n",
     exitCodeList = {"0:report written", "1:the report failed (unreadable input, ...)", "2:invalid options"})
@@ -92,7 +92,7 @@ public final class ReportCommand implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     BacktestSettings base = BacktestSettings.defaults();
-    PromoSettings settings;
+    ShortlistSettings settings;
     SegmentSettings segments;
     try {
       if (config != null) {
@@ -101,7 +101,7 @@ public final class ReportCommand implements Callable<Integer> {
         }
         base = SettingsFile.read(config, base);
       }
-      settings = new PromoSettings(minConfidence, maxConfidence, top, horizon, base.drift(),
+      settings = new ShortlistSettings(minConfidence, maxConfidence, top, horizon, base.drift(),
           floor != null ? floor : base.cohortFloor());
       segments = segmentSettings();
     } catch (IllegalArgumentException | ConfigException e) {
@@ -132,31 +132,31 @@ public final class ReportCommand implements Callable<Integer> {
         throw new ParameterException(spec.commandLine(), "--snapshot: " + e.getMessage(), e);
       }
     }
-    PromoReport report;
+    ShortlistReport report;
     try {
-      report = PromoReport.build(tables, engine.horizons(), settings);
+      report = ShortlistReport.build(tables, engine.horizons(), settings);
     } catch (IllegalArgumentException e) {
       throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
     Files.createDirectories(out);
-    try (Writer csv = Files.newBufferedWriter(out.resolve(PromoCsv.FILE), StandardCharsets.UTF_8);
-        Writer suppressed = Files.newBufferedWriter(out.resolve(PromoCsv.SUPPRESSED_FILE), StandardCharsets.UTF_8);
-        Writer html = Files.newBufferedWriter(out.resolve(PromoHtml.FILE), StandardCharsets.UTF_8)) {
-      PromoCsv.write(report, csv);
-      PromoCsv.writeSuppressed(report, suppressed);
-      PromoHtml.write(report, html);
+    try (Writer csv = Files.newBufferedWriter(out.resolve(ShortlistCsv.FILE), StandardCharsets.UTF_8);
+        Writer suppressed = Files.newBufferedWriter(out.resolve(ShortlistCsv.SUPPRESSED_FILE), StandardCharsets.UTF_8);
+        Writer html = Files.newBufferedWriter(out.resolve(ShortlistHtml.FILE), StandardCharsets.UTF_8)) {
+      ShortlistCsv.write(report, csv);
+      ShortlistCsv.writeSuppressed(report, suppressed);
+      ShortlistHtml.write(report, html);
     }
     PrintWriter stdout = spec.commandLine().getOut();
     stdout.printf(Locale.ROOT, "report as of %s: %d segment(s)%n", report.asOfMillis() == Long.MIN_VALUE ? "(no data)"
         : Instant.ofEpochMilli(report.asOfMillis()), report.segments().size());
-    for (PromoReport.Segment segment : report.segments()) {
+    for (ShortlistReport.Segment segment : report.segments()) {
       stdout.printf(Locale.ROOT, "  %-24s %s%n", segment.name(), segment.suppressed()
           ? "under the cohort floor: nothing shown"
           : String.format(Locale.ROOT, "%d emerging, %d suggestion rows, %d held back by the floor",
               segment.emerging().size(), segment.suggestions().size(), segment.suppressedRows()));
     }
-    stdout.println("  written: " + out.resolve(PromoCsv.FILE) + ", " + out.resolve(PromoCsv.SUPPRESSED_FILE) + ", "
-        + out.resolve(PromoHtml.FILE));
+    stdout.println("  written: " + out.resolve(ShortlistCsv.FILE) + ", " + out.resolve(ShortlistCsv.SUPPRESSED_FILE) + ", "
+        + out.resolve(ShortlistHtml.FILE));
     stdout.flush();
     return 0;
   }

@@ -66,14 +66,14 @@ class ReportCommandTest {
     Path input = directory.resolve(ScenarioFiles.JSON_LINES_FILE);
     String[] byInput = reportByChannel("by-input");
     assertTrue(byInput[1].contains("4 segment(s)"), byInput[1]);
-    List<String> rows = Files.readAllLines(directory.resolve("by-input").resolve(PromoCsv.FILE));
-    assertEquals(String.join(",", PromoCsv.COLUMNS), rows.get(0));
+    List<String> rows = Files.readAllLines(directory.resolve("by-input").resolve(ShortlistCsv.FILE));
+    assertEquals(String.join(",", ShortlistCsv.COLUMNS), rows.get(0));
     assertTrue(rows.stream().anyMatch(r -> r.startsWith("all,suggestion,1,")), rows.toString());
     assertTrue(rows.stream().anyMatch(r -> r.startsWith("channel=app,")), rows.toString());
-    List<String> suppressed = Files.readAllLines(directory.resolve("by-input").resolve(PromoCsv.SUPPRESSED_FILE));
+    List<String> suppressed = Files.readAllLines(directory.resolve("by-input").resolve(ShortlistCsv.SUPPRESSED_FILE));
     assertEquals(List.of("all", "channel=app", "channel=store", "channel=web"),
         suppressed.subList(1, suppressed.size()).stream().map(l -> l.split(",")[0]).toList());
-    assertTrue(Files.readString(directory.resolve("by-input").resolve(PromoHtml.FILE)).contains("Segment channel=web"));
+    assertTrue(Files.readString(directory.resolve("by-input").resolve(ShortlistHtml.FILE)).contains("Segment channel=web"));
 
     // the same state saved as a snapshot gives the same rows for "all"
     EngineConfig config = EngineConfig.builder().trackedPairCapacity(1024).trackedItemCapacity(1024).build();
@@ -86,7 +86,7 @@ class ReportCommandTest {
     String[] bySnapshot = run("report", "--snapshot", snapshot.toString(), "--floor", "20", "--out",
         directory.resolve("by-snapshot").toString());
     assertEquals("0", bySnapshot[0], bySnapshot[2]);
-    List<String> snapshotRows = Files.readAllLines(directory.resolve("by-snapshot").resolve(PromoCsv.FILE));
+    List<String> snapshotRows = Files.readAllLines(directory.resolve("by-snapshot").resolve(ShortlistCsv.FILE));
     assertEquals(rows.stream().filter(r -> r.startsWith("all,")).toList(), snapshotRows.subList(1, snapshotRows.size()));
   }
 
@@ -116,11 +116,11 @@ class ReportCommandTest {
         directory.resolve("segments-by-snapshot").toString());
     assertEquals("0", bySnapshot[0], bySnapshot[2]);
     assertTrue(bySnapshot[1].contains("4 segment(s)"), bySnapshot[1]);
-    List<String> expected = Files.readAllLines(directory.resolve("segments-by-input").resolve(PromoCsv.FILE));
+    List<String> expected = Files.readAllLines(directory.resolve("segments-by-input").resolve(ShortlistCsv.FILE));
     assertTrue(expected.stream().anyMatch(r -> r.startsWith("channel=app,")), expected.toString());
-    assertEquals(expected, Files.readAllLines(directory.resolve("segments-by-snapshot").resolve(PromoCsv.FILE)));
-    assertEquals(Files.readAllLines(directory.resolve("segments-by-input").resolve(PromoCsv.SUPPRESSED_FILE)),
-        Files.readAllLines(directory.resolve("segments-by-snapshot").resolve(PromoCsv.SUPPRESSED_FILE)));
+    assertEquals(expected, Files.readAllLines(directory.resolve("segments-by-snapshot").resolve(ShortlistCsv.FILE)));
+    assertEquals(Files.readAllLines(directory.resolve("segments-by-input").resolve(ShortlistCsv.SUPPRESSED_FILE)),
+        Files.readAllLines(directory.resolve("segments-by-snapshot").resolve(ShortlistCsv.SUPPRESSED_FILE)));
 
     String[] region = run("report", "--snapshot", checkpoints.toString(), "--segment-attribute", "region", "--out",
         directory.resolve("never").toString());

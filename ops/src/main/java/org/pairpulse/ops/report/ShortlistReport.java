@@ -21,7 +21,7 @@ import org.pairpulse.sketch.table.PairStats;
 import org.pairpulse.sketch.table.PairTable;
 
 /**
- * The next-day promo list: per segment, the top emerging pairs and the best suggestion pairs inside the confidence
+ * The offer shortlist: per segment, the top emerging pairs and the best suggestion pairs inside the confidence
  * band, each with its evidence, built from pair tables through serve's cohort floor.
  *
  * <h2>Lists</h2>
@@ -43,7 +43,7 @@ import org.pairpulse.sketch.table.PairTable;
  * @param asOfMillis event time the tables are as of (the newest watermark)
  * @param segments the segments, {@code all} first
  */
-public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment> segments) {
+public record ShortlistReport(ShortlistSettings settings, long asOfMillis, List<Segment> segments) {
 
   /**
    * One segment's lists.
@@ -54,7 +54,7 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
    * @param suggestions the suggestion rows, best first
    * @param suppressedRows rows held back by the cohort floor (over both lists)
    */
-  public record Segment(String name, double baskets, List<PromoRow> emerging, List<PromoRow> suggestions,
+  public record Segment(String name, double baskets, List<ShortlistRow> emerging, List<ShortlistRow> suggestions,
       int suppressedRows) {
     public Segment {
       emerging = List.copyOf(emerging);
@@ -67,7 +67,7 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
     }
   }
 
-  public PromoReport {
+  public ShortlistReport {
     segments = List.copyOf(segments);
   }
 
@@ -77,7 +77,7 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
    * @param tables one pair table per segment, in report order
    * @param horizons the engine's horizons (which are windows: the floor needs them)
    */
-  public static PromoReport build(Map<String, PairTable> tables, List<HorizonSpec> horizons, PromoSettings settings) {
+  public static ShortlistReport build(Map<String, PairTable> tables, List<HorizonSpec> horizons, ShortlistSettings settings) {
     Objects.requireNonNull(settings, "settings");
     CohortFloor floor = new CohortFloor(settings.cohortFloor(), horizons);
     CohortFloor none = new CohortFloor(0, horizons);
@@ -94,22 +94,22 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
       FlooredTable open = FlooredTable.of(table, none);
       DriftMonitor drift = new DriftMonitor(settings.drift(), entry.getKey());
       double baskets = floored.baskets(settings.horizon());
-      List<PromoRow> emerging = Double.isNaN(baskets) ? List.of() : emerging(floored, drift, settings);
-      List<PromoRow> suggestions = Double.isNaN(baskets) ? List.of() : suggestions(floored, drift, settings);
+      List<ShortlistRow> emerging = Double.isNaN(baskets) ? List.of() : emerging(floored, drift, settings);
+      List<ShortlistRow> suggestions = Double.isNaN(baskets) ? List.of() : suggestions(floored, drift, settings);
       int held = held(emerging, emerging(open, drift, settings)) + held(suggestions, suggestions(open, drift, settings));
       segments.add(new Segment(entry.getKey(), baskets, emerging, suggestions, held));
     }
-    return new PromoReport(settings, asOf, segments);
+    return new ShortlistReport(settings, asOf, segments);
   }
 
   /** Rows of the unfloored list that the floored one lacks. */
-  private static int held(List<PromoRow> shown, List<PromoRow> all) {
+  private static int held(List<ShortlistRow> shown, List<ShortlistRow> all) {
     Set<String> keys = new HashSet<>();
-    for (PromoRow row : shown) {
+    for (ShortlistRow row : shown) {
       keys.add(row.itemA() + "\u0000" + row.itemB());
     }
     int held = 0;
-    for (PromoRow row : all) {
+    for (ShortlistRow row : all) {
       if (!keys.contains(row.itemA() + "\u0000" + row.itemB())) {
         held++;
       }
@@ -117,7 +117,7 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
     return held;
   }
 
-  static List<PromoRow> emerging(FlooredTable table, DriftMonitor drift, PromoSettings settings) {
+  static List<ShortlistRow> emerging(FlooredTable table, DriftMonitor drift, ShortlistSettings settings) {
     String recent = settings.drift().recentHorizon();
     List<DriftFinding> findings = new ArrayList<>();
     Map<PairKey, PairStats> recentStats = new LinkedHashMap<>();
@@ -131,7 +131,7 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
     }
     findings.sort(Comparator.comparingDouble((DriftFinding f) -> -f.signedRootG2())
         .thenComparing(f -> f.pair().first()).thenComparing(f -> f.pair().second()));
-    List<PromoRow> rows = new ArrayList<>();
+    List<ShortlistRow> rows = new ArrayList<>();
     for (DriftFinding finding : findings) {
       if (rows.size() == settings.top()) {
         break;
@@ -139,7 +139,7 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
       PairStats stats = recentStats.get(finding.pair());
       PairMeasures m = stats.measures();
       boolean forward = m.confidenceAB() >= m.confidenceBA();
-      rows.add(new PromoRow(PromoRow.EMERGING, rows.size() + 1, forward ? stats.itemA() : stats.itemB(),
+      rows.add(new ShortlistRow(ShortlistRow.EMERGING, rows.size() + 1, forward ? stats.itemA() : stats.itemB(),
           forward ? stats.itemB() : stats.itemA(), recent, stats.counts().countAB().value(), m.support(),
           forward ? m.confidenceAB() : m.confidenceBA(), m.lift(), m.liftLower(), m.liftUpper(), finding.recentLift(),
           finding.baselineLift(), finding.signedRootG2()));
@@ -147,8 +147,8 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
     return rows;
   }
 
-  static List<PromoRow> suggestions(FlooredTable table, DriftMonitor drift, PromoSettings settings) {
-    List<PromoRow> rows = new ArrayList<>();
+  static List<ShortlistRow> suggestions(FlooredTable table, DriftMonitor drift, ShortlistSettings settings) {
+    List<ShortlistRow> rows = new ArrayList<>();
     String recent = settings.drift().recentHorizon();
     String baseline = settings.drift().baselineHorizon();
     for (PairStats stats : table.pairs(settings.horizon())) {
@@ -165,7 +165,7 @@ public record PromoReport(PromoSettings settings, long asOfMillis, List<Segment>
         boolean forward = direction == 0;
         double confidence = forward ? m.confidenceAB() : m.confidenceBA();
         if (confidence >= settings.minConfidence() && confidence <= settings.maxConfidence()) {
-          rows.add(new PromoRow(PromoRow.SUGGESTION, rows.size() + 1, forward ? stats.itemA() : stats.itemB(),
+          rows.add(new ShortlistRow(ShortlistRow.SUGGESTION, rows.size() + 1, forward ? stats.itemA() : stats.itemB(),
               forward ? stats.itemB() : stats.itemA(), settings.horizon(), stats.counts().countAB().value(), m.support(),
               confidence, m.lift(), m.liftLower(), m.liftUpper(), recentLift, baselineLift, root));
         }

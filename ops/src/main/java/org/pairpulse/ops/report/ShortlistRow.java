@@ -1,7 +1,7 @@
 package org.pairpulse.ops.report;
 
 /**
- * One row of the promo list: a rule {@code itemA ⇒ itemB} and its evidence.
+ * One row of the offer shortlist: a rule {@code itemA ⇒ itemB} and its evidence.
  *
  * <p>In the {@code suggestion} list the rule is the one whose confidence lies in the band. In the {@code emerging}
  * list the pair is unordered and the rule is its direction of higher confidence in {@code recent}.
@@ -21,7 +21,7 @@ package org.pairpulse.ops.report;
  * @param baselineLift lift in {@code baseline} (NaN when not published there)
  * @param signedRootG2 signed √G² of recent against baseline (NaN when either is missing)
  */
-public record PromoRow(String list, int rank, String itemA, String itemB, String horizon, double pairBaskets,
+public record ShortlistRow(String list, int rank, String itemA, String itemB, String horizon, double pairBaskets,
     double support, double confidence, double lift, double liftLower, double liftUpper, double recentLift,
     double baselineLift, double signedRootG2) {
 

@@ -9,12 +9,12 @@ import java.util.List;
 import java.util.Locale;
 
 /**
- * The promo list as one static HTML page: no script, no external resource, inline CSS and small inline SVG charts
+ * The offer shortlist as one static HTML page: no script, no external resource, inline CSS and small inline SVG charts
  * (the lift interval of each row on a log axis; recent against baseline lift). The page is well-formed XML
  * (XHTML syntax) so that tools and tests can parse it.
  */
-public final class PromoHtml {
-  public static final String FILE = "promo.html";
+public final class ShortlistHtml {
+  public static final String FILE = "shortlist.html";
   private static final DateTimeFormatter TIME = DateTimeFormatter.ofPattern("yyyy-MM-dd HH:mm 'UTC'", Locale.ROOT)
       .withZone(ZoneOffset.UTC);
   private static final int CHART_WIDTH = 180;
@@ -36,15 +36,15 @@ public final class PromoHtml {
           + "color:#3a4356}",
       "svg{display:block}.legend{font-size:12px;color:#5b6478}");
 
-  private PromoHtml() {}
+  private ShortlistHtml() {}
 
-  public static void write(PromoReport report, Writer out) throws IOException {
-    PromoSettings settings = report.settings();
+  public static void write(ShortlistReport report, Writer out) throws IOException {
+    ShortlistSettings settings = report.settings();
     StringBuilder html = new StringBuilder(64 * 1024);
     html.append("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n")
-        .append("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n<title>pairpulse promo list, ")
+        .append("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n<title>pairpulse offer shortlist, ")
         .append(text(asOf(report))).append("</title>\n<style>\n").append(STYLE).append("\n</style>\n</head>\n<body>\n<main>\n");
-    html.append("<h1>Promo list for the next day</h1>\n<p class=\"meta\">Statistics as of ").append(text(asOf(report)))
+    html.append("<h1>Offer shortlist</h1>\n<p class=\"meta\">Statistics as of ").append(text(asOf(report)))
         .append(" · suggestion pairs from the <b>").append(text(settings.horizon())).append("</b> horizon with confidence ")
         .append(fixed(settings.minConfidence(), 2)).append("–").append(fixed(settings.maxConfidence(), 2))
         .append(" · emerging: ").append(text(settings.drift().recentHorizon())).append(" against ")
@@ -71,11 +71,11 @@ public final class PromoHtml {
     out.flush();
   }
 
-  private static String asOf(PromoReport report) {
+  private static String asOf(ShortlistReport report) {
     return report.asOfMillis() == Long.MIN_VALUE ? "(no data)" : TIME.format(Instant.ofEpochMilli(report.asOfMillis()));
   }
 
-  private static void segment(StringBuilder html, int index, PromoReport.Segment segment, PromoSettings settings) {
+  private static void segment(StringBuilder html, int index, ShortlistReport.Segment segment, ShortlistSettings settings) {
     html.append("<section id=\"segment-").append(index).append("\">\n<h2>Segment ").append(text(segment.name()))
         .append("</h2>\n");
     if (segment.suppressed()) {
@@ -93,7 +93,7 @@ public final class PromoHtml {
       html.append("<table>\n<thead><tr><th>#</th><th>rule</th><th>recent vs baseline</th><th>lift recent</th>"
           + "<th>lift baseline</th><th>ratio</th><th>signed √G²</th><th>lift interval (recent)</th><th>confidence</th>"
           + "<th>support</th></tr></thead>\n<tbody>\n");
-      for (PromoRow row : segment.emerging()) {
+      for (ShortlistRow row : segment.emerging()) {
         html.append("<tr><td class=\"n\">").append(row.rank()).append("</td><td class=\"rule\">").append(rule(row))
             .append("</td><td>").append(driftChart(row, high)).append("</td><td class=\"n\">")
             .append(fixed(row.recentLift(), 2)).append("</td><td class=\"n\">").append(fixed(row.baselineLift(), 2))
@@ -112,7 +112,7 @@ public final class PromoHtml {
       html.append("<table>\n<thead><tr><th>#</th><th>rule</th><th>lift interval</th><th>lift</th><th>interval</th>"
           + "<th>confidence</th><th>support</th><th>baskets with both</th><th>recent vs baseline</th></tr></thead>\n"
           + "<tbody>\n");
-      for (PromoRow row : segment.suggestions()) {
+      for (ShortlistRow row : segment.suggestions()) {
         html.append("<tr><td class=\"n\">").append(row.rank()).append("</td><td class=\"rule\">").append(rule(row))
             .append("</td><td>").append(intervalChart(row, high)).append("</td><td class=\"n\">")
             .append(fixed(row.lift(), 2)).append("</td><td class=\"n\">").append(fixed(row.liftLower(), 2))
@@ -126,17 +126,17 @@ public final class PromoHtml {
     html.append("</section>\n");
   }
 
-  private static void footer(StringBuilder html, PromoReport report) {
+  private static void footer(StringBuilder html, ShortlistReport report) {
     html.append("<footer>\n<p>");
-    int total = report.segments().stream().mapToInt(PromoReport.Segment::suppressedRows).sum();
+    int total = report.segments().stream().mapToInt(ShortlistReport.Segment::suppressedRows).sum();
     String floor = fixed(report.settings().cohortFloor(), 0);
-    if (total == 0 && report.segments().stream().noneMatch(PromoReport.Segment::suppressed)) {
+    if (total == 0 && report.segments().stream().noneMatch(ShortlistReport.Segment::suppressed)) {
       html.append("No row was held back by the cohort floor (").append(floor).append(" distinct baskets).");
     } else {
       html.append("Held back by the cohort floor (fewer than ").append(floor).append(" distinct baskets behind them; not"
           + " shown): ");
       boolean first = true;
-      for (PromoReport.Segment segment : report.segments()) {
+      for (ShortlistReport.Segment segment : report.segments()) {
         if (segment.suppressedRows() == 0 && !segment.suppressed()) {
           continue;
         }
@@ -151,14 +151,14 @@ public final class PromoHtml {
         + " fine segments can single out people, so follow local data-protection law and practice.</p>\n</footer>\n");
   }
 
-  private static String rule(PromoRow row) {
+  private static String rule(ShortlistRow row) {
     return text(row.itemA()) + " → " + text(row.itemB());
   }
 
   /** The right end of a list's log axis: the largest finite interval end or lift, at least 2. */
-  private static double scale(List<PromoRow> rows) {
+  private static double scale(List<ShortlistRow> rows) {
     double high = 2;
-    for (PromoRow row : rows) {
+    for (ShortlistRow row : rows) {
       for (double value : new double[] {row.liftUpper(), row.lift(), row.recentLift(), row.baselineLift()}) {
         if (Double.isFinite(value)) {
           high = Math.max(high, value);
@@ -173,7 +173,7 @@ public final class PromoHtml {
     return 4 + (CHART_WIDTH - 8) * Math.log(clamped / MIN_LIFT) / Math.log(high / MIN_LIFT);
   }
 
-  static String intervalChart(PromoRow row, double high) {
+  static String intervalChart(ShortlistRow row, double high) {
     StringBuilder svg = svgStart(20, "lift " + fixed(row.lift(), 2) + ", interval " + fixed(row.liftLower(), 2) + " to "
         + (Double.isInfinite(row.liftUpper()) ? "unbounded" : fixed(row.liftUpper(), 2)));
     double one = x(1, high);
@@ -193,7 +193,7 @@ public final class PromoHtml {
     return svg.append("</svg>").toString();
   }
 
-  static String driftChart(PromoRow row, double high) {
+  static String driftChart(ShortlistRow row, double high) {
     StringBuilder svg = svgStart(22, "recent lift " + fixed(row.recentLift(), 2) + ", baseline lift "
         + fixed(row.baselineLift(), 2));
     if (Double.isFinite(row.baselineLift())) {

@@ -7,7 +7,7 @@ import java.math.BigDecimal;
 import java.math.MathContext;
 
 /**
- * The promo list as CSV (RFC 4180, {@code \n} line ends, a header row). Numbers with six significant digits in plain
+ * The offer shortlist as CSV (RFC 4180, {@code \n} line ends, a header row). Numbers with six significant digits in plain
  * decimal notation; a missing number (NaN) or an unbounded one (+∞) is an empty field.
  *
  * <pre>
@@ -18,23 +18,23 @@ import java.math.MathContext;
  * segment,suppressed_rows,segment_under_floor
  * </pre>
  */
-public final class PromoCsv {
-  public static final String FILE = "promo.csv";
-  public static final String SUPPRESSED_FILE = "promo-suppressed.csv";
+public final class ShortlistCsv {
+  public static final String FILE = "shortlist.csv";
+  public static final String SUPPRESSED_FILE = "shortlist-suppressed.csv";
   public static final List<String> COLUMNS = List.of("segment", "list", "rank", "item_a", "item_b", "horizon",
       "pair_baskets", "support", "confidence", "lift", "lift_lower", "lift_upper", "recent_lift", "baseline_lift",
       "lift_ratio", "signed_root_g2");
   public static final List<String> SUPPRESSED_COLUMNS = List.of("segment", "suppressed_rows", "segment_under_floor");
 
-  private PromoCsv() {}
+  private ShortlistCsv() {}
 
   /** Writes the rows of every segment, emerging then suggestion rows. */
-  public static void write(PromoReport report, Writer out) throws IOException {
+  public static void write(ShortlistReport report, Writer out) throws IOException {
     out.write(String.join(",", COLUMNS));
     out.write('\n');
-    for (PromoReport.Segment segment : report.segments()) {
-      for (List<PromoRow> rows : List.of(segment.emerging(), segment.suggestions())) {
-        for (PromoRow row : rows) {
+    for (ShortlistReport.Segment segment : report.segments()) {
+      for (List<ShortlistRow> rows : List.of(segment.emerging(), segment.suggestions())) {
+        for (ShortlistRow row : rows) {
           out.write(String.join(",", field(segment.name()), row.list(), Integer.toString(row.rank()), field(row.itemA()),
               field(row.itemB()), field(row.horizon()), number(row.pairBaskets()), number(row.support()),
               number(row.confidence()), number(row.lift()), number(row.liftLower()), number(row.liftUpper()),
@@ -48,10 +48,10 @@ public final class PromoCsv {
   }
 
   /** Writes the per-segment counts of rows held back by the cohort floor. */
-  public static void writeSuppressed(PromoReport report, Writer out) throws IOException {
+  public static void writeSuppressed(ShortlistReport report, Writer out) throws IOException {
     out.write(String.join(",", SUPPRESSED_COLUMNS));
     out.write('\n');
-    for (PromoReport.Segment segment : report.segments()) {
+    for (ShortlistReport.Segment segment : report.segments()) {
       out.write(field(segment.name()) + "," + segment.suppressedRows() + "," + segment.suppressed() + "\n");
     }
     out.flush();

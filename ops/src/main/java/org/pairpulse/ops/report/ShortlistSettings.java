@@ -6,7 +6,7 @@ import org.pairpulse.serve.floor.CohortFloor;
 import org.pairpulse.serve.suggest.SuggestionRequest;
 
 /**
- * What the promo report lists.
+ * What the offer shortlist lists.
  *
  * <table>
  *   <caption>Settings</caption>
@@ -15,7 +15,7 @@ import org.pairpulse.serve.suggest.SuggestionRequest;
  *       (serve's default: a common-practice rule of thumb, a starting point to tune; serve's README, "The confidence
  *       band")</td></tr>
  *   <tr><td>top</td><td>20</td><td>rows per list and segment</td></tr>
- *   <tr><td>horizon</td><td>day</td><td>the horizon of the suggestion pairs (the last 24 h: a next-day list)</td></tr>
+ *   <tr><td>horizon</td><td>day</td><td>the horizon of the suggestion pairs (the last 24 h)</td></tr>
  *   <tr><td>drift</td><td>serve's defaults</td><td>emerging pairs: those meeting the entry condition of an emerging
  *       alert (recent against baseline) at the report's time</td></tr>
  *   <tr><td>cohortFloor</td><td>50</td><td>distinct baskets behind every number shown; rows under it are counted,
@@ -29,10 +29,10 @@ import org.pairpulse.serve.suggest.SuggestionRequest;
  * @param drift the emerging test
  * @param cohortFloor the cohort floor in distinct baskets
  */
-public record PromoSettings(double minConfidence, double maxConfidence, int top, String horizon, DriftSettings drift,
+public record ShortlistSettings(double minConfidence, double maxConfidence, int top, String horizon, DriftSettings drift,
     double cohortFloor) {
 
-  public PromoSettings {
+  public ShortlistSettings {
     Objects.requireNonNull(horizon, "horizon");
     Objects.requireNonNull(drift, "drift");
     if (!(minConfidence >= 0 && minConfidence <= maxConfidence && maxConfidence <= 1)) {
@@ -47,28 +47,28 @@ public record PromoSettings(double minConfidence, double maxConfidence, int top,
     }
   }
 
-  public static PromoSettings defaults() {
-    return new PromoSettings(SuggestionRequest.DEFAULT_MIN_CONFIDENCE, SuggestionRequest.DEFAULT_MAX_CONFIDENCE, 20, "day",
+  public static ShortlistSettings defaults() {
+    return new ShortlistSettings(SuggestionRequest.DEFAULT_MIN_CONFIDENCE, SuggestionRequest.DEFAULT_MAX_CONFIDENCE, 20, "day",
         DriftSettings.defaults(), CohortFloor.DEFAULT_MIN_BASKETS);
   }
 
-  public PromoSettings withBand(double min, double max) {
-    return new PromoSettings(min, max, top, horizon, drift, cohortFloor);
+  public ShortlistSettings withBand(double min, double max) {
+    return new ShortlistSettings(min, max, top, horizon, drift, cohortFloor);
   }
 
-  public PromoSettings withTop(int value) {
-    return new PromoSettings(minConfidence, maxConfidence, value, horizon, drift, cohortFloor);
+  public ShortlistSettings withTop(int value) {
+    return new ShortlistSettings(minConfidence, maxConfidence, value, horizon, drift, cohortFloor);
   }
 
-  public PromoSettings withHorizon(String value) {
-    return new PromoSettings(minConfidence, maxConfidence, top, value, drift, cohortFloor);
+  public ShortlistSettings withHorizon(String value) {
+    return new ShortlistSettings(minConfidence, maxConfidence, top, value, drift, cohortFloor);
   }
 
-  public PromoSettings withDrift(DriftSettings value) {
-    return new PromoSettings(minConfidence, maxConfidence, top, horizon, value, cohortFloor);
+  public ShortlistSettings withDrift(DriftSettings value) {
+    return new ShortlistSettings(minConfidence, maxConfidence, top, horizon, value, cohortFloor);
   }
 
-  public PromoSettings withCohortFloor(double value) {
-    return new PromoSettings(minConfidence, maxConfidence, top, horizon, drift, value);
+  public ShortlistSettings withCohortFloor(double value) {
+    return new ShortlistSettings(minConfidence, maxConfidence, top, horizon, drift, value);
   }
 }

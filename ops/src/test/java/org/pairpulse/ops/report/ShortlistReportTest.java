@@ -22,14 +22,14 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.table.PairTable;
 import org.w3c.dom.Document;
 
-/** The promo list on hand-made tables: the lists, the cohort floor, the CSV columns, a well-formed page. */
-class PromoReportTest {
+/** The offer shortlist on hand-made tables: the lists, the cohort floor, the CSV columns, a well-formed page. */
+class ShortlistReportTest {
   static final long T0 = 1_780_272_000_000L; // 2026-06-01T00:00Z
   static final long HOUR = Duration.ofHours(1).toMillis();
   static final long DAY = Duration.ofDays(1).toMillis();
   static final long AS_OF = T0 + 10 * DAY + 12 * HOUR;
 
-  static PromoReport report;
+  static ShortlistReport report;
   static String csv;
   static String suppressedCsv;
   static String html;
@@ -82,31 +82,31 @@ class PromoReportTest {
     Map<String, PairTable> tables = new LinkedHashMap<>();
     tables.put("all", all.refresh(PairTables.Options.of(1, AS_OF)));
     tables.put("channel=tiny", tiny.refresh(PairTables.Options.of(1, AS_OF)));
-    report = PromoReport.build(tables, HorizonSpec.defaults(), PromoSettings.defaults());
+    report = ShortlistReport.build(tables, HorizonSpec.defaults(), ShortlistSettings.defaults());
     StringWriter out = new StringWriter();
-    PromoCsv.write(report, out);
+    ShortlistCsv.write(report, out);
     csv = out.toString();
     out = new StringWriter();
-    PromoCsv.writeSuppressed(report, out);
+    ShortlistCsv.writeSuppressed(report, out);
     suppressedCsv = out.toString();
     out = new StringWriter();
-    PromoHtml.write(report, out);
+    ShortlistHtml.write(report, out);
     html = out.toString();
   }
 
   @Test
   void listsTheEmergingPairAndTheRulesInTheBand() {
-    PromoReport.Segment all = report.segments().get(0);
+    ShortlistReport.Segment all = report.segments().get(0);
     assertEquals("all", all.name());
     assertEquals(AS_OF, report.asOfMillis());
     assertEquals(1, all.emerging().size(), all.emerging().toString());
-    PromoRow emerging = all.emerging().get(0);
+    ShortlistRow emerging = all.emerging().get(0);
     assertEquals(List.of("x", "y"), List.of(emerging.itemA(), emerging.itemB()).stream().sorted().toList());
     assertTrue(emerging.recentLift() > 1.5 * emerging.baselineLift(), emerging.toString());
     assertTrue(emerging.signedRootG2() >= 5, emerging.toString());
     assertEquals(2, all.suggestions().size(), all.suggestions().toString());
     assertTrue(csv.indexOf("coffee") < 0, "in the band, but its lift interval reaches below 1");
-    for (PromoRow row : all.suggestions()) {
+    for (ShortlistRow row : all.suggestions()) {
       assertEquals(List.of("bread", "milk"), List.of(row.itemA(), row.itemB()).stream().sorted().toList());
       assertEquals(0.5, row.confidence(), 1e-9);
       assertEquals(200, row.pairBaskets(), 1e-9);
@@ -117,9 +117,9 @@ class PromoReportTest {
 
   @Test
   void theFloorHidesThinRowsAndCountsThem() {
-    PromoReport.Segment all = report.segments().get(0);
+    ShortlistReport.Segment all = report.segments().get(0);
     assertEquals(2, all.suppressedRows(), "tea => cake and cake => tea");
-    PromoReport.Segment tiny = report.segments().get(1);
+    ShortlistReport.Segment tiny = report.segments().get(1);
     assertTrue(tiny.suppressed());
     assertTrue(tiny.emerging().isEmpty() && tiny.suggestions().isEmpty());
     assertEquals(1, tiny.suppressedRows(), "milk => bread (bread => milk has confidence 1)");
@@ -136,13 +136,13 @@ class PromoReportTest {
   @Test
   void csvHasTheDocumentedColumns() {
     String[] lines = csv.split("\n");
-    assertEquals(String.join(",", PromoCsv.COLUMNS), lines[0]);
+    assertEquals(String.join(",", ShortlistCsv.COLUMNS), lines[0]);
     assertEquals("segment,list,rank,item_a,item_b,horizon,pair_baskets,support,confidence,lift,lift_lower,lift_upper,"
         + "recent_lift,baseline_lift,lift_ratio,signed_root_g2", lines[0]);
     assertEquals(1 + 3, lines.length, csv);
     for (int i = 1; i < lines.length; i++) {
       String[] fields = lines[i].split(",", -1);
-      assertEquals(PromoCsv.COLUMNS.size(), fields.length, lines[i]);
+      assertEquals(ShortlistCsv.COLUMNS.size(), fields.length, lines[i]);
       assertEquals("all", fields[0]);
     }
     assertTrue(lines[1].startsWith("all,emerging,1,"), lines[1]);
