@@ -5,6 +5,7 @@ import org.pairpulse.ops.bench.IngestBench;
 import org.pairpulse.ops.bench.ServeBench;
 import org.pairpulse.ops.bench.ShiftBenchCommand;
 import org.pairpulse.ops.bench.SketchBenchCommand;
+import org.pairpulse.ops.drift.DriftBenchCommand;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Spec;
@@ -12,7 +13,8 @@ import picocli.CommandLine.Spec;
 /** {@code pairpulse bench}: the benchmarks, one subcommand each. */
 @Command(name = "bench", mixinStandardHelpOptions = true,
     description = "Runs a benchmark and prints its progress and a final RESULT line.",
-    subcommands = {SketchBenchCommand.class, IngestBench.class, ServeBench.class, ShiftBenchCommand.class},
+    subcommands = {SketchBenchCommand.class, IngestBench.class, ServeBench.class, ShiftBenchCommand.class,
+        DriftBenchCommand.class},
     commandListHeading = "%nBenchmarks:%n")
 final class BenchCommand implements Callable<Integer> {
   @Spec

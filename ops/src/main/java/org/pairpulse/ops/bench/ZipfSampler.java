@@ -6,10 +6,10 @@ import java.util.SplittableRandom;
  * Draws item ranks {@code 0..n-1} with probability proportional to {@code 1 / (rank + 1)^exponent} (Zipf's
  * law; rank 0 is the most popular item), by binary search in the cumulative distribution.
  */
-final class ZipfSampler {
+public final class ZipfSampler {
   private final double[] cumulative;
 
-  ZipfSampler(int items, double exponent) {
+  public ZipfSampler(int items, double exponent) {
     if (items < 2) {
       throw new IllegalArgumentException("a Zipf catalog needs at least 2 items, got " + items);
     }
@@ -37,7 +37,7 @@ final class ZipfSampler {
     return rank == 0 ? cumulative[0] : cumulative[rank] - cumulative[rank - 1];
   }
 
-  int sample(SplittableRandom random) {
+  public int sample(SplittableRandom random) {
     return Math.min(firstAbove(cumulative, random.nextDouble()), cumulative.length - 1);
   }
 
@@ -45,7 +45,7 @@ final class ZipfSampler {
    * The first index whose cumulative value exceeds {@code u} (rank r owns [c(r−1), c(r))), or the length
    * when none does. Zero-probability entries (equal neighbours) are never chosen.
    */
-  static int firstAbove(double[] cumulative, double u) {
+  public static int firstAbove(double[] cumulative, double u) {
     int low = 0;
     int high = cumulative.length;
     while (low < high) {

@@ -16,5 +16,11 @@ public enum PlantedKind {
    * A steady true affinity over the whole run (e.g. a handset and its screen guard): strong lift, but
    * neither emerging nor fading; listed so that an evaluation does not count it as a false discovery.
    */
-  AFFINITY
+  AFFINITY,
+  /**
+   * Two rare items bought together a handful of times within a few hours (a coincidence, not a change): no pair
+   * alert expected; a detector must not read a few co-occurrences of items that are hardly ever sold as evidence.
+   * Planted by the drift family ({@code org.pairpulse.ops.drift}).
+   */
+  RARE_TRAP
 }
