@@ -105,4 +105,77 @@ final class Counts {
     lower = Math.min(lower, upper);
     return new Estimate(Math.min(upper, Math.max(lower, value)), lower, upper);
   }
+
+  /** N_c per size class as of the watermark (decays in basket units): sums over the live panes. */
+  static double[] classBaskets(PairEngine engine, HorizonState state) {
+    return perClass(engine, state, state.classBaskets);
+  }
+
+  /** M_c per size class as of the watermark: the weight of item occurrences in baskets of class c. */
+  static double[] classItems(PairEngine engine, HorizonState state) {
+    return perClass(engine, state, state.classItems);
+  }
+
+  /** Baskets of unknown class (restored from a format-1 snapshot) as of the watermark. */
+  static double unclassedBaskets(PairEngine engine, HorizonState state) {
+    if (!state.isWindow()) {
+      return state.unclassedBaskets[0] / state.scaleAt(engine.watermarkMillis);
+    }
+    double sum = 0;
+    for (int p = 0; p < state.paneCount; p++) {
+      if (state.slotLive(p)) {
+        sum += state.unclassedBaskets[p];
+      }
+    }
+    return sum;
+  }
+
+  private static double[] perClass(PairEngine engine, HorizonState state, double[] cells) {
+    int classes = state.classCount;
+    double[] sum = new double[classes];
+    if (!state.isWindow()) {
+      double scale = state.scaleAt(engine.watermarkMillis);
+      for (int c = 0; c < classes; c++) {
+        sum[c] = cells[c] / scale;
+      }
+      return sum;
+    }
+    for (int p = 0; p < state.paneCount; p++) {
+      if (state.slotLive(p)) {
+        for (int c = 0; c < classes; c++) {
+          sum[c] += cells[p * classes + c];
+        }
+      }
+    }
+    return sum;
+  }
+
+  /**
+   * The part of tracked item {@code slot}'s count in {@code state} known exactly per size class: what was counted
+   * since its admission (windows: the panes from its admission pane on; decays: the decay cell's exact part).
+   * The rest of its count (panes before admission, read from the sketches, and the admission estimate) has no
+   * class.
+   */
+  static double[] knownByClass(PairEngine engine, HorizonState state, int slot) {
+    TrackedTable table = engine.items;
+    int classes = table.classCount;
+    double[] known = new double[classes];
+    if (!state.isWindow()) {
+      double scale = state.scaleAt(engine.watermarkMillis);
+      for (int c = 0; c < classes; c++) {
+        known[c] = table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, c)] / scale;
+      }
+      return known;
+    }
+    long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
+    for (int p = 0; p < state.paneCount; p++) {
+      if (state.slotLive(p) && (admittedPane == Long.MIN_VALUE || state.paneOfSlot[p] >= admittedPane)) {
+        int from = table.classPaneIndex(slot, state.paneCellOffset + p, 0);
+        for (int c = 0; c < classes; c++) {
+          known[c] += table.classPanes[from + c];
+        }
+      }
+    }
+    return known;
+  }
 }

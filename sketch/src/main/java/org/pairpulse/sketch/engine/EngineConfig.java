@@ -9,6 +9,7 @@ import org.pairpulse.sketch.cms.CountMinSketch;
 import org.pairpulse.sketch.cms.UpdateRule;
 import org.pairpulse.sketch.horizon.HorizonKind;
 import org.pairpulse.sketch.horizon.HorizonSpec;
+import org.pairpulse.sketch.stats.SizeClasses;
 
 /**
  * Everything that fixes a {@link PairEngine}'s memory and behaviour. Two engines can merge only when
@@ -34,6 +35,9 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
  *   <tr><td>maxPairsPerBasket</td><td>256</td><td>pairs counted per basket before sampling with inverse-probability weights</td></tr>
  *   <tr><td>updateRule</td><td>LINEAR</td><td>count-min update rule; LINEAR keeps partitions mergeable</td></tr>
  *   <tr><td>seed</td><td>0x5EED</td><td>hash seed; equal seeds are needed to merge</td></tr>
+ *   <tr><td>sizeClasses</td><td>1, 2, 3, 4–5, 6+</td><td>basket-size classes of the size-adjusted null model
+ *       ({@link SizeClasses}): N and the tracked items' counts are kept per class; {@link SizeClasses#single()}
+ *       turns the adjustment off (textbook measures)</td></tr>
  * </table>
  */
 public record EngineConfig(
@@ -49,7 +53,8 @@ public record EngineConfig(
     int trackedItemCapacity,
     int maxPairsPerBasket,
     UpdateRule updateRule,
-    long seed) {
+    long seed,
+    SizeClasses sizeClasses) {
 
   /** Name of the internal decay that ranks tracked keys (not published, reserved). */
   public static final String TRACKING_HORIZON_NAME = "tracking";
@@ -60,6 +65,7 @@ public record EngineConfig(
   public EngineConfig {
     Objects.requireNonNull(horizons, "horizons");
     Objects.requireNonNull(updateRule, "updateRule");
+    Objects.requireNonNull(sizeClasses, "sizeClasses");
     horizons = List.copyOf(horizons);
     if (horizons.isEmpty()) {
       throw new IllegalArgumentException("at least one horizon is needed");
@@ -97,6 +103,14 @@ public record EngineConfig(
     }
   }
 
+  /** A configuration with the default size classes. */
+  public EngineConfig(List<HorizonSpec> horizons, String burstHorizon, long trackingHalfLifeMillis, double itemEpsilon,
+      double itemDelta, double pairEpsilon, double pairDelta, double decayPairEpsilon, int trackedPairCapacity,
+      int trackedItemCapacity, int maxPairsPerBasket, UpdateRule updateRule, long seed) {
+    this(horizons, burstHorizon, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta, decayPairEpsilon,
+        trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed, SizeClasses.defaults());
+  }
+
   private static void requireRange(String name, int value, int min, int max) {
     if (value < min || value > max) {
       throw new IllegalArgumentException(name + " must be in " + min + ".." + max + ", got " + value);
@@ -116,7 +130,7 @@ public record EngineConfig(
     return new Builder().horizons(horizons).burstHorizon(burstHorizon).trackingHalfLifeMillis(trackingHalfLifeMillis)
         .itemError(itemEpsilon, itemDelta).pairError(pairEpsilon, pairDelta).decayPairEpsilon(decayPairEpsilon)
         .trackedPairCapacity(trackedPairCapacity).trackedItemCapacity(trackedItemCapacity)
-        .maxPairsPerBasket(maxPairsPerBasket).updateRule(updateRule).seed(seed);
+        .maxPairsPerBasket(maxPairsPerBasket).updateRule(updateRule).seed(seed).sizeClasses(sizeClasses);
   }
 
   /** The internal decay horizon that ranks tracked keys. */
@@ -139,6 +153,7 @@ public record EngineConfig(
     private int maxPairsPerBasket = 256;
     private UpdateRule updateRule = UpdateRule.LINEAR;
     private long seed = 0x5EEDL;
+    private SizeClasses sizeClasses = SizeClasses.defaults();
 
     public Builder horizons(List<HorizonSpec> value) {
       this.horizons = new ArrayList<>(value);
@@ -202,9 +217,14 @@ public record EngineConfig(
       return this;
     }
 
+    public Builder sizeClasses(SizeClasses value) {
+      this.sizeClasses = value;
+      return this;
+    }
+
     public EngineConfig build() {
       return new EngineConfig(horizons, burstHorizon, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta,
-          decayPairEpsilon, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed);
+          decayPairEpsilon, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed, sizeClasses);
     }
   }
 }

@@ -7,6 +7,8 @@ import org.pairpulse.sketch.cms.CountMinSketch;
 
 /**
  * Merges the state of an engine built over a disjoint stream (another partition) into this one.
+ * Basket-size classes merge like the counts they split: N_c, M_c add pane by pane; a tracked item's exactly
+ * counted class parts add where both sides counted exactly, and what a side read from its sketches has no class.
  *
  * <ul>
  *   <li>Linear parts add exactly: windows first advance to the newer of the two newest panes, decays
@@ -67,6 +69,11 @@ final class EngineMerge {
         addScaled(mine.itemSketch[p], theirs.itemSketch[p], otherScale[h]);
         addScaled(mine.pairSketch[p], theirs.pairSketch[p], otherScale[h]);
         mine.basketWeight[p] += theirs.basketWeight[p] * otherScale[h];
+        mine.unclassedBaskets[p] += theirs.unclassedBaskets[p] * otherScale[h];
+        for (int c = p * mine.classCount; c < (p + 1) * mine.classCount; c++) {
+          mine.classBaskets[c] += theirs.classBaskets[c] * otherScale[h];
+          mine.classItems[c] += theirs.classItems[c] * otherScale[h];
+        }
       }
     }
     into.watermarkMillis = Math.max(into.watermarkMillis, other.watermarkMillis);
@@ -111,6 +118,9 @@ final class EngineMerge {
     double[] admissionError;
     /** Per horizon: estimate − debiased estimate of the sketch-based part of the admission pane / decay. */
     double[] bias;
+    /** Items: the exactly counted part per size class, per window pane cell and per decay (else empty). */
+    double[] classPanes;
+    double[] classDecays;
   }
 
   /** Bias of a merged window whose admission pane is {@code merged}: a side contributes only if its own admission pane is it. */
@@ -153,12 +163,26 @@ final class EngineMerge {
       mine.hashA[s] = e.hashA;
       mine.hashB[s] = e.hashB;
       mine.admittedAtMillis[s] = e.admittedAtMillis;
+      int classes = mine.classCount;
       for (HorizonState state : into.horizons) { // panes before admission are read from the merged sketches
         long admitted = state.isWindow() ? e.admissionPane[state.kindOrdinal] : Long.MIN_VALUE;
         for (int p = 0; admitted != Long.MIN_VALUE && p < state.paneCount; p++) {
           if (state.paneOfSlot[p] < admitted) {
             e.panes[state.paneCellOffset + p] = 0;
+            java.util.Arrays.fill(e.classPanes, (state.paneCellOffset + p) * classes,
+                (state.paneCellOffset + p + 1) * classes, 0);
           }
+        }
+      }
+      for (int c = 0; c < mine.paneCells; c++) {
+        for (int k = 0; k < classes; k++) {
+          mine.classPanes[mine.classPaneIndex(s, c, k)] = (int) Math.min(Math.round(e.classPanes[c * classes + k]),
+              Integer.MAX_VALUE);
+        }
+      }
+      for (int d = 0; d < mine.decayCount; d++) {
+        for (int k = 0; k < classes; k++) {
+          mine.classDecays[mine.classDecayIndex(s, d, k)] = e.classDecays[d * classes + k];
         }
       }
       for (int c = 0; c < mine.paneCells; c++) {
@@ -195,6 +219,9 @@ final class EngineMerge {
     e.admissionPane = new long[table.windowCount];
     e.admissionError = new double[table.decayCount];
     e.bias = new double[table.horizonCount];
+    int classes = table.classCount;
+    e.classPanes = new double[table.paneCells * classes];
+    e.classDecays = new double[table.decayCount * classes];
     boolean pair = table == owner.pairs;
     for (HorizonState state : into.horizons) {
       HorizonState source = owner.horizons[state.index];
@@ -208,15 +235,24 @@ final class EngineMerge {
             continue;
           }
           long pane = source.paneOfSlot[p];
-          e.panes[state.paneCellOffset + p] = admitted != Long.MIN_VALUE && pane < admitted
+          boolean sketched = admitted != Long.MIN_VALUE && pane < admitted;
+          e.panes[state.paneCellOffset + p] = sketched
               ? (pair ? source.pairSketch[p] : source.itemSketch[p]).estimate(e.key)
               : table.panes[table.paneIndex(s, state.paneCellOffset + p)];
+          for (int k = 0; !sketched && k < classes; k++) {
+            e.classPanes[(state.paneCellOffset + p) * classes + k] = table.classPanes[table.classPaneIndex(s,
+                state.paneCellOffset + p, k)];
+          }
         }
       } else {
         double factor = scale == null ? 1.0 : scale[state.index];
         e.decays[state.kindOrdinal] = table.decays[table.decayIndex(s, state.kindOrdinal)] * factor;
         e.admissionError[state.kindOrdinal] = table.admissionError[s * table.decayCount + state.kindOrdinal] * factor;
         e.bias[state.index] = table.admissionBias[s * table.horizonCount + state.index] * factor;
+        for (int k = 0; k < classes; k++) {
+          e.classDecays[state.kindOrdinal * classes + k] =
+              table.classDecays[table.classDecayIndex(s, state.kindOrdinal, k)] * factor;
+        }
       }
     }
     return e;
@@ -233,6 +269,12 @@ final class EngineMerge {
     }
     for (int d = 0; d < e.admissionError.length; d++) {
       e.admissionError[d] += add.admissionError[d];
+    }
+    for (int i = 0; i < e.classPanes.length; i++) {
+      e.classPanes[i] += add.classPanes[i];
+    }
+    for (int i = 0; i < e.classDecays.length; i++) {
+      e.classDecays[i] += add.classDecays[i];
     }
     for (HorizonState state : into.horizons) {
       if (state.isWindow()) {

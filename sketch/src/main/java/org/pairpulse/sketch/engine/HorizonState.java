@@ -6,7 +6,9 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
 
 /**
  * The sketches of one horizon: per pane (a decay has one) an item sketch, a pair sketch and the basket
- * weight N.
+ * weight N; and per pane and basket-size class c the basket weight N_c and the item weight M_c (distinct
+ * items times basket weight), the strata of the size-adjusted null model. Baskets restored from a snapshot
+ * that had no classes (format 1) are unclassed: {@code unclassedBaskets}.
  *
  * <h2>Windows</h2>
  * A ring of {@code paneCount} panes; pane index {@code q = floor(t / paneMillis)} lives in ring slot
@@ -35,6 +37,14 @@ final class HorizonState {
   final CountMinSketch[] itemSketch;
   final CountMinSketch[] pairSketch;
   final double[] basketWeight;
+  /** Basket-size classes per pane. */
+  final int classCount;
+  /** N_c of pane p at {@code p * classCount + c}. */
+  final double[] classBaskets;
+  /** M_c of pane p at {@code p * classCount + c}: the weight of item occurrences in baskets of class c. */
+  final double[] classItems;
+  /** Baskets of pane p whose class is unknown (restored from a format-1 snapshot). */
+  final double[] unclassedBaskets;
   /** Window: pane index held by each ring slot (Long.MIN_VALUE: never used). */
   final long[] paneOfSlot;
   /** Window: newest pane index seen (Long.MIN_VALUE before the first basket). */
@@ -78,6 +88,10 @@ final class HorizonState {
       pairSketch[p] = new CountMinSketch(pairWidth, pairDepth, config.updateRule(), pairSeed(config));
     }
     this.basketWeight = new double[paneCount];
+    this.classCount = config.sizeClasses().count();
+    this.classBaskets = new double[paneCount * classCount];
+    this.classItems = new double[paneCount * classCount];
+    this.unclassedBaskets = new double[paneCount];
     this.paneOfSlot = new long[paneCount];
     Arrays.fill(paneOfSlot, Long.MIN_VALUE);
   }
@@ -113,7 +127,20 @@ final class HorizonState {
     itemSketch[slot].clear();
     pairSketch[slot].clear();
     basketWeight[slot] = 0;
+    Arrays.fill(classBaskets, slot * classCount, (slot + 1) * classCount, 0.0);
+    Arrays.fill(classItems, slot * classCount, (slot + 1) * classCount, 0.0);
+    unclassedBaskets[slot] = 0;
     paneOfSlot[slot] = newPane;
+  }
+
+  /** Multiplies the decay's N, N_c, M_c by {@code factor} (a rescale; the sketches are scaled by the engine). */
+  void scaleBasketWeights(double factor) {
+    basketWeight[0] *= factor;
+    unclassedBaskets[0] *= factor;
+    for (int c = 0; c < classCount; c++) {
+      classBaskets[c] *= factor;
+      classItems[c] *= factor;
+    }
   }
 
   /** Forward-decay weight g(t) = 2^((t − L)/halfLife). */
@@ -136,7 +163,7 @@ final class HorizonState {
   }
 
   long stateBytes() {
-    long bytes = 8L * basketWeight.length * 2;
+    long bytes = 8L * basketWeight.length * 3 + 8L * classBaskets.length * 2;
     for (int p = 0; p < paneCount; p++) {
       bytes += itemSketch[p].stateBytes() + pairSketch[p].stateBytes();
     }

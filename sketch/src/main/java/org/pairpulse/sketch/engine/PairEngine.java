@@ -64,6 +64,8 @@ public final class PairEngine {
   private final double[] weightOfHorizon;
   private final long[] eventPaneOfHorizon;
   private final boolean[] lateOfHorizon;
+  /** The current basket's size class (see {@link org.pairpulse.sketch.stats.SizeClasses}). */
+  private int basketClass;
 
   public PairEngine(EngineConfig config) {
     this.config = Objects.requireNonNull(config, "config");
@@ -97,7 +99,8 @@ public final class PairEngine {
     this.trackingHorizon = specs.size() - 1;
     this.burstHorizon = burst;
     int trackingDecay = horizons[trackingHorizon].kindOrdinal;
-    this.items = new TrackedTable(config.trackedItemCapacity(), paneCells, trackingDecay, windows, decays, horizons.length);
+    this.items = new TrackedTable(config.trackedItemCapacity(), paneCells, trackingDecay, windows, decays, horizons.length,
+        config.sizeClasses().count());
     this.pairs = new TrackedTable(config.trackedPairCapacity(), paneCells, trackingDecay, windows, decays, horizons.length);
     this.sampling = new PairSampling(config.maxPairsPerBasket());
     this.paneOfHorizon = new int[horizons.length];
@@ -127,10 +130,16 @@ public final class PairEngine {
       watermarkMillis = eventMillis;
     }
     placeInHorizons(eventMillis);
+    basketClass = config.sizeClasses().classOf(distinct);
     for (int h = 0; h < horizons.length; h++) {
       int pane = paneOfHorizon[h];
       if (pane >= 0) {
-        horizons[h].basketWeight[pane] += weightOfHorizon[h];
+        HorizonState state = horizons[h];
+        double weight = weightOfHorizon[h];
+        int cell = pane * state.classCount + basketClass;
+        state.basketWeight[pane] += weight;
+        state.classBaskets[cell] += weight;
+        state.classItems[cell] += weight * distinct;
       }
     }
     int pairCount = keys.selectPairs(distinct, sampling);
@@ -203,8 +212,14 @@ public final class PairEngine {
         HorizonState state = horizons[h];
         if (!state.isWindow()) {
           table.decays[table.decayIndex(slot, state.kindOrdinal)] += multiplier * weightOfHorizon[h];
+          if (table.classCount > 0) {
+            table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, basketClass)] += weightOfHorizon[h];
+          }
         } else if (!(lateOfHorizon[h] && beforeAdmission(table, slot, h))) {
           table.addToPane(slot, state.paneCellOffset + pane, multiplier);
+          if (table.classCount > 0) {
+            table.classPanes[table.classPaneIndex(slot, state.paneCellOffset + pane, basketClass)]++;
+          }
         }
       }
       return slot;
@@ -222,8 +237,14 @@ public final class PairEngine {
         HorizonState state = horizons[h];
         if (state.isWindow()) {
           table.addToPane(slot, state.paneCellOffset + pane, multiplier);
+          if (table.classCount > 0) {
+            table.classPanes[table.classPaneIndex(slot, state.paneCellOffset + pane, basketClass)]++;
+          }
         } else {
           table.decays[table.decayIndex(slot, state.kindOrdinal)] = multiplier * weightOfHorizon[h];
+          if (table.classCount > 0) {
+            table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, basketClass)] = weightOfHorizon[h];
+          }
         }
       }
       table.placed(slot);
@@ -290,6 +311,9 @@ public final class PairEngine {
    */
   private void initialiseFromSketches(TrackedTable table, int slot, boolean pair, long[] rows, int rowOffset,
       double[][] decayEstimates, int scratch, double trackingStart, double trackingEstimate) {
+    if (table.classCount > 0) { // the starting estimates have no class: class counts begin at 0
+      table.clearClassDecays(slot);
+    }
     for (HorizonState state : horizons) {
       CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
       int biasIndex = slot * table.horizonCount + state.index;
@@ -298,6 +322,9 @@ public final class PairEngine {
         double estimate = sketches[newest].estimateHashed(rows, rowOffset);
         table.panes[table.paneIndex(slot, state.paneCellOffset + newest)] = (int) Math.min(estimate, Integer.MAX_VALUE);
         table.admissionPane[slot * table.windowCount + state.kindOrdinal] = state.newestPane;
+        if (table.classCount > 0) {
+          table.clearClassPane(slot, state.paneCellOffset + newest);
+        }
         table.admissionBias[biasIndex] = estimate - sketches[newest].debiasedEstimateHashed(rows, rowOffset);
       } else if (state.index == trackingHorizon) {
         double lower = Math.min(trackingStart, Math.max(0, trackingEstimate - sketches[0].maxError()));
@@ -373,7 +400,7 @@ public final class PairEngine {
     }
     state.itemSketch[0].scale(factor);
     state.pairSketch[0].scale(factor);
-    state.basketWeight[0] *= factor;
+    state.scaleBasketWeights(factor);
     items.scaleDecay(state.kindOrdinal, state.index, factor);
     pairs.scaleDecay(state.kindOrdinal, state.index, factor);
     state.landmarkMillis = newLandmarkMillis;

@@ -65,10 +65,15 @@ public final class PairTables {
     TrackedTable items = engine.items;
     Map<Long, Estimate> itemByHash = new HashMap<>(items.size() * 2);
     Map<String, Estimate> itemCounts = new HashMap<>(items.size() * 2);
+    SizeStrata strata = SizeStrata.of(engine, state);
+    Map<Long, SizeStrata.ItemClasses> classesByHash = strata == null ? Map.of() : new HashMap<>(items.size() * 2);
     for (int slot = 0; slot < items.size(); slot++) {
       Estimate count = Counts.tracked(engine, items, slot, state);
       itemByHash.put(items.keys[slot], count);
       itemCounts.put(items.labelA[slot], count);
+      if (strata != null) {
+        classesByHash.put(items.keys[slot], strata.item(Counts.knownByClass(engine, state, slot), count));
+      }
     }
     TrackedTable pairs = engine.pairs;
     List<PairStats> stats = new ArrayList<>(pairs.size());
@@ -80,6 +85,12 @@ public final class PairTables {
       Estimate countA = itemCount(engine, state, itemByHash, pairs.hashA[slot]);
       Estimate countB = itemCount(engine, state, itemByHash, pairs.hashB[slot]);
       PairCounts counts = new PairCounts(baskets, countA, countB, countAB);
+      if (strata != null) {
+        SizeStrata.ItemClasses classesA = classesByHash.get(pairs.hashA[slot]);
+        SizeStrata.ItemClasses classesB = classesByHash.get(pairs.hashB[slot]);
+        counts = counts.withStratifiedExpected(strata.expected(classesA != null ? classesA : strata.untracked(countA),
+            classesB != null ? classesB : strata.untracked(countB)));
+      }
       stats.add(new PairStats(pairs.labelA[slot], pairs.labelB[slot], state.spec.name(), counts,
           PairMeasures.of(counts, options.settings()), pairs.admittedAtMillis[slot]));
     }

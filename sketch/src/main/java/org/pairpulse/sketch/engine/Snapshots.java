@@ -15,6 +15,7 @@ import org.pairpulse.sketch.cms.UpdateRule;
 import org.pairpulse.sketch.horizon.HorizonKind;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.snapshot.SnapshotFormatException;
+import org.pairpulse.sketch.stats.SizeClasses;
 
 /**
  * The binary snapshot of a {@link PairEngine}: versioned, checksummed, self-describing.
@@ -23,7 +24,7 @@ import org.pairpulse.sketch.snapshot.SnapshotFormatException;
  * offset  bytes  field
  * ------  -----  -----------------------------------------------------------------
  *   0       4    MAGIC          0x50 0x50 0x53 0x4E ("PPSN")
- *   4       1    FORMAT_VERSION 1
+ *   4       1    FORMAT_VERSION 2 (1 is still read, see below)
  *   5       3    reserved       0
  *   8       8    PAYLOAD_BYTES  length L of the payload (big-endian)
  *  16       4    PAYLOAD_CRC    CRC32C of the payload
@@ -34,25 +35,37 @@ import org.pairpulse.sketch.snapshot.SnapshotFormatException;
  *   config    horizonCount:int, per horizon {name:utf, kind:byte, lengthMillis:long, paneCount:int,
  *             halfLifeMillis:long}, burstHorizon:utf, trackingHalfLifeMillis:long, itemEpsilon, itemDelta, pairEpsilon,
  *             pairDelta, decayPairEpsilon:double, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket:int,
- *             updateRule:byte, seed:long
+ *             updateRule:byte, seed:long, sizeClasses {count:int, lowerBound:int[count]}
  *   counters  watermarkMillis, baskets, pairUpdates, expiredWindowUpdates, cappedBaskets,
  *             pairsSkippedByCap:long
  *   horizons  per horizon {newestPane:long, landmarkMillis:long, per pane {paneOfSlot:long,
- *             basketWeight:double, item sketch {total:double, counters:double[width*depth]},
+ *             basketWeight:double, unclassedBaskets:double, classBaskets:double[classes],
+ *             classItems:double[classes], item sketch {total:double, counters:double[width*depth]},
  *             pair sketch {same}}}
  *   tables    items then pairs, each {size:int, admissions, evictions, rejections:long, per slot
  *             {key:long, labelA:nullable-utf, labelB:nullable-utf, hashA, hashB, admittedAtMillis:long,
  *             panes:int[window panes], decays:double[decays], admissionPane:long[windows], admissionError:double[decays],
- *             admissionBias:double[horizons]}}
+ *             admissionBias:double[horizons], items only: classPanes:int[window panes * classes],
+ *             classDecays:double[decays * classes]}}
  *   (horizons here include the internal tracking decay, written last)
  * </pre>
+ *
+ * <h2>Format 1</h2>
+ * The same without basket-size classes: no sizeClasses in the configuration, no unclassedBaskets,
+ * classBaskets and classItems per pane, no class cells in the item table. It reads into an engine with the
+ * default size classes ({@link org.pairpulse.sketch.stats.SizeClasses#defaults()}, so that a checkpoint written
+ * before classes restores under the default configuration) whose restored baskets are unclassed and whose tracked
+ * items' restored counts have no class: a horizon publishes textbook measures until its unclassed share of N falls
+ * under 1% (windows: once the restored panes have left; decays: as they decay), see {@code SizeStrata}.
  *
  * A reader checks magic, version, length and checksum before it parses anything, and builds a new
  * engine: a bad snapshot gives a {@link SnapshotFormatException} and never a half-loaded state.
  */
 public final class Snapshots {
   static final int MAGIC = 0x5050_534E;
-  static final byte FORMAT_VERSION = 1;
+  static final byte FORMAT_VERSION = 2;
+  /** The format before basket-size classes, still read. */
+  static final byte FORMAT_VERSION_1 = 1;
   static final int OFFSET_VERSION = 4;
   static final int OFFSET_PAYLOAD_BYTES = 8;
   static final int OFFSET_CRC = 16;
@@ -78,6 +91,13 @@ public final class Snapshots {
         for (int p = 0; p < state.paneCount; p++) {
           out.writeLong(state.paneOfSlot[p]);
           out.writeDouble(state.basketWeight[p]);
+          out.writeDouble(state.unclassedBaskets[p]);
+          for (int c = 0; c < state.classCount; c++) {
+            out.writeDouble(state.classBaskets[p * state.classCount + c]);
+          }
+          for (int c = 0; c < state.classCount; c++) {
+            out.writeDouble(state.classItems[p * state.classCount + c]);
+          }
           state.itemSketch[p].writeCounters(out);
           state.pairSketch[p].writeCounters(out);
         }
@@ -109,10 +129,11 @@ public final class Snapshots {
       throw new SnapshotFormatException(String.format("not a pairpulse snapshot (magic 0x%08X, expected 0x%08X)", magic, MAGIC));
     }
     byte version = snapshot[OFFSET_VERSION];
-    if (version != FORMAT_VERSION) {
-      throw new SnapshotFormatException("snapshot format version " + version + " is not supported; this build reads version "
-          + FORMAT_VERSION);
+    if (version != FORMAT_VERSION && version != FORMAT_VERSION_1) {
+      throw new SnapshotFormatException("snapshot format version " + version + " is not supported; this build reads versions "
+          + FORMAT_VERSION_1 + " and " + FORMAT_VERSION);
     }
+    boolean classed = version == FORMAT_VERSION;
     long payloadBytes = header.getLong(OFFSET_PAYLOAD_BYTES);
     if (payloadBytes != snapshot.length - HEADER_BYTES) {
       throw new SnapshotFormatException("snapshot truncated or padded: header says " + payloadBytes
@@ -127,7 +148,7 @@ public final class Snapshots {
     }
     try {
       DataInputStream in = new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES));
-      PairEngine engine = new PairEngine(readConfig(in));
+      PairEngine engine = new PairEngine(readConfig(in, classed));
       engine.watermarkMillis = in.readLong();
       engine.baskets = in.readLong();
       engine.pairUpdates = in.readLong();
@@ -139,12 +160,23 @@ public final class Snapshots {
         for (int p = 0; p < state.paneCount; p++) {
           state.paneOfSlot[p] = in.readLong();
           state.basketWeight[p] = in.readDouble();
+          if (classed) {
+            state.unclassedBaskets[p] = in.readDouble();
+            for (int c = 0; c < state.classCount; c++) {
+              state.classBaskets[p * state.classCount + c] = in.readDouble();
+            }
+            for (int c = 0; c < state.classCount; c++) {
+              state.classItems[p * state.classCount + c] = in.readDouble();
+            }
+          } else {
+            state.unclassedBaskets[p] = state.basketWeight[p];
+          }
           state.itemSketch[p].readCounters(in);
           state.pairSketch[p].readCounters(in);
         }
       }
-      readTable(in, engine.items);
-      readTable(in, engine.pairs);
+      readTable(in, engine.items, classed);
+      readTable(in, engine.pairs, classed);
       if (in.available() != 0) {
         throw new SnapshotFormatException("snapshot has " + in.available() + " unread bytes after the state");
       }
@@ -160,7 +192,8 @@ public final class Snapshots {
   public static EngineConfig configOf(byte[] snapshot) {
     read(snapshot); // validates fully first
     try {
-      return readConfig(new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES)));
+      return readConfig(new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES)),
+          snapshot[OFFSET_VERSION] == FORMAT_VERSION);
     } catch (IOException e) {
       throw new SnapshotFormatException("snapshot configuration unreadable", e);
     }
@@ -187,9 +220,14 @@ public final class Snapshots {
     out.writeInt(config.maxPairsPerBasket());
     out.writeByte(config.updateRule().ordinal());
     out.writeLong(config.seed());
+    SizeClasses classes = config.sizeClasses();
+    out.writeInt(classes.count());
+    for (int c = 0; c < classes.count(); c++) {
+      out.writeInt(classes.lowerBound(c));
+    }
   }
 
-  private static EngineConfig readConfig(DataInputStream in) throws IOException {
+  private static EngineConfig readConfig(DataInputStream in, boolean classed) throws IOException {
     int count = in.readInt();
     if (count < 1 || count > 64) {
       throw new SnapshotFormatException("snapshot names " + count + " horizons");
@@ -217,8 +255,21 @@ public final class Snapshots {
     if (rule < 0 || rule >= UpdateRule.values().length) {
       throw new SnapshotFormatException("snapshot has unknown update rule " + rule);
     }
-    return new EngineConfig(horizons, burst, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta, decayPairEpsilon, pairCapacity,
-        itemCapacity, maxPairs, UpdateRule.values()[rule], in.readLong());
+    long seed = in.readLong();
+    SizeClasses classes = SizeClasses.defaults();
+    if (classed) {
+      int classCount = in.readInt();
+      if (classCount < 1 || classCount > SizeClasses.MAX_CLASSES) {
+        throw new SnapshotFormatException("snapshot names " + classCount + " basket-size classes");
+      }
+      int[] bounds = new int[classCount];
+      for (int c = 0; c < classCount; c++) {
+        bounds[c] = in.readInt();
+      }
+      classes = SizeClasses.of(bounds);
+    }
+    return new EngineConfig(horizons, burst, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta,
+        decayPairEpsilon, pairCapacity, itemCapacity, maxPairs, UpdateRule.values()[rule], seed, classes);
   }
 
   private static void writeTable(DataOutputStream out, TrackedTable table) throws IOException {
@@ -248,10 +299,20 @@ public final class Snapshots {
       for (int h = 0; h < table.horizonCount; h++) {
         out.writeDouble(table.admissionBias[s * table.horizonCount + h]);
       }
+      for (int c = 0; table.classCount > 0 && c < table.paneCells; c++) {
+        for (int k = 0; k < table.classCount; k++) {
+          out.writeInt(table.classPanes[table.classPaneIndex(s, c, k)]);
+        }
+      }
+      for (int d = 0; table.classCount > 0 && d < table.decayCount; d++) {
+        for (int k = 0; k < table.classCount; k++) {
+          out.writeDouble(table.classDecays[table.classDecayIndex(s, d, k)]);
+        }
+      }
     }
   }
 
-  private static void readTable(DataInputStream in, TrackedTable table) throws IOException {
+  private static void readTable(DataInputStream in, TrackedTable table, boolean classed) throws IOException {
     int size = in.readInt();
     if (size < 0 || size > table.capacity) {
       throw new SnapshotFormatException("snapshot table holds " + size + " keys, capacity is " + table.capacity);
@@ -280,6 +341,16 @@ public final class Snapshots {
       }
       for (int h = 0; h < table.horizonCount; h++) {
         table.admissionBias[s * table.horizonCount + h] = in.readDouble();
+      }
+      for (int c = 0; classed && table.classCount > 0 && c < table.paneCells; c++) {
+        for (int k = 0; k < table.classCount; k++) {
+          table.classPanes[table.classPaneIndex(s, c, k)] = in.readInt();
+        }
+      }
+      for (int d = 0; classed && table.classCount > 0 && d < table.decayCount; d++) {
+        for (int k = 0; k < table.classCount; k++) {
+          table.classDecays[table.classDecayIndex(s, d, k)] = in.readDouble();
+        }
       }
     }
     table.rebuild(size);

@@ -24,6 +24,10 @@ import java.util.Arrays;
  *                                       began as its sketch estimate; newer panes are exact.
  *   admissionError[s * decayCount + d]  overcount bound inherited at admission in decay d (forward units)
  *   admissionBias[s * horizonCount + h] estimate − debiased estimate at admission (point value correction)
+ *   classPanes[classPaneIndex(s, c, k)] items only: the part of pane cell c counted exactly in baskets of size
+ *                                       class k (since admission; the admission pane's start, an estimate, has
+ *                                       no class). Beside each other per slot and pane, pane-major like panes
+ *   classDecays[classDecayIndex(s, d, k)] items only: the same for decay d (forward units)
  *   heap[i]     slot at heap position i of a 4-ary min-heap; heapPos[s] = i
  *   heapKey[i]  the tracking count of heap[i] when it was last placed: at most its current tracking
  *               count (counts only grow between rescales, which scale both alike). Kept beside the heap
@@ -68,6 +72,10 @@ final class TrackedTable {
   /** Per slot and horizon: how far the admission estimate lies above its debiased value (point value = upper − bias). */
   final double[] admissionBias;
   final int horizonCount;
+  /** Basket-size classes counted per slot (the item table; 0 for pairs). */
+  final int classCount;
+  final int[] classPanes;
+  final double[] classDecays;
   /** Copy of each slot's tracking cell, kept dense so the heap's comparisons stay in cache. */
   private final double[] heapKey;
 
@@ -83,7 +91,15 @@ final class TrackedTable {
   long rejections;
 
   TrackedTable(int capacity, int paneCells, int trackingDecay, int windowCount, int decayCount, int horizonCount) {
+    this(capacity, paneCells, trackingDecay, windowCount, decayCount, horizonCount, 0);
+  }
+
+  TrackedTable(int capacity, int paneCells, int trackingDecay, int windowCount, int decayCount, int horizonCount,
+      int classCount) {
     this.capacity = capacity;
+    this.classCount = classCount;
+    this.classPanes = new int[capacity * paneCells * classCount];
+    this.classDecays = new double[capacity * decayCount * classCount];
     this.horizonCount = horizonCount;
     this.admissionBias = new double[capacity * horizonCount];
     this.paneCells = paneCells;
@@ -128,6 +144,28 @@ final class TrackedTable {
   /** Index of {@code slot}'s count in decay {@code decay} in {@link #decays}: a slot's decays lie together. */
   int decayIndex(int slot, int decay) {
     return slot * decayCount + decay;
+  }
+
+  /** Index of {@code slot}'s count of size class {@code sizeClass} in window pane cell {@code paneCell}. */
+  int classPaneIndex(int slot, int paneCell, int sizeClass) {
+    return (paneCell * capacity + slot) * classCount + sizeClass;
+  }
+
+  /** Index of {@code slot}'s count of size class {@code sizeClass} in decay {@code decay}. */
+  int classDecayIndex(int slot, int decay, int sizeClass) {
+    return (slot * decayCount + decay) * classCount + sizeClass;
+  }
+
+  /** Zeroes {@code slot}'s class counts in pane cell {@code paneCell} (a key admitted with a sketch estimate there). */
+  void clearClassPane(int slot, int paneCell) {
+    int from = classPaneIndex(slot, paneCell, 0);
+    Arrays.fill(classPanes, from, from + classCount, 0);
+  }
+
+  /** Zeroes {@code slot}'s class counts in every decay. */
+  void clearClassDecays(int slot) {
+    int from = classDecayIndex(slot, 0, 0);
+    Arrays.fill(classDecays, from, from + decayCount * classCount, 0.0);
   }
 
   /** The tracking count of {@code slot}. */
@@ -212,6 +250,12 @@ final class TrackedTable {
       Arrays.fill(admissionError, slot * decayCount, slot * decayCount + decayCount, 0.0);
     }
     Arrays.fill(admissionBias, slot * horizonCount, slot * horizonCount + horizonCount, 0.0);
+    for (int c = 0; classCount > 0 && c < paneCells; c++) {
+      clearClassPane(slot, c);
+    }
+    if (classCount > 0) {
+      clearClassDecays(slot);
+    }
   }
 
   /** Restores heap order after {@code slot}'s tracking count was set at admission. */
@@ -225,6 +269,9 @@ final class TrackedTable {
   /** Zeroes window pane cell {@code paneCell} of every slot (a pane left its window). */
   void clearPane(int paneCell) {
     Arrays.fill(panes, paneIndex(0, paneCell), paneIndex(0, paneCell) + capacity, 0);
+    if (classCount > 0) {
+      Arrays.fill(classPanes, classPaneIndex(0, paneCell, 0), classPaneIndex(0, paneCell + 1, 0), 0);
+    }
   }
 
   /** Adds an integer window weight to a pane cell, saturating at Integer.MAX_VALUE. */
@@ -239,6 +286,9 @@ final class TrackedTable {
       decays[decayIndex(s, decay)] *= factor;
       admissionError[s * decayCount + decay] *= factor;
       admissionBias[s * horizonCount + horizon] *= factor;
+      for (int c = 0; c < classCount; c++) {
+        classDecays[classDecayIndex(s, decay, c)] *= factor;
+      }
     }
     if (decay == trackingDecay) {
       for (int i = 0; i < size; i++) {
@@ -322,7 +372,7 @@ final class TrackedTable {
   long stateBytes(TrackedTable shared) {
     long bytes = 8L * keys.length * 4 // keys, hashA, hashB, admittedAtMillis
         + 4L * panes.length + 8L * decays.length + 8L * admissionPane.length + 8L * admissionError.length
-        + 8L * admissionBias.length + 8L * heapKey.length
+        + 8L * admissionBias.length + 8L * heapKey.length + 4L * classPanes.length + 8L * classDecays.length
         + 4L * heap.length * 2 // heap, heapPos
         + 2L * 4 * capacity // label references (compressed oops)
         + (long) index.keys.length * 12; // hppc index: long keys + int values

@@ -83,4 +83,34 @@ final class ExactOracle {
   static String[] split(String pairKey) {
     return pairKey.split("\\|", 2);
   }
+
+  /**
+   * E = Σ_c n_a,c·n_b,c / N_c over the size classes that hold pairs, recomputed from every basket (the class of a
+   * basket is that of its number of distinct items): returns a function of the pair.
+   */
+  java.util.function.ToDoubleBiFunction<String, String> stratifiedExpected(HorizonSpec h,
+      org.pairpulse.sketch.stats.SizeClasses classes) {
+    int count = classes.count();
+    double[] n = new double[count];
+    Map<String, double[]> byItem = new HashMap<>();
+    for (Basket basket : baskets) {
+      double w = weight(h, basket.eventMillis);
+      int c = classes.classOf(basket.items.size());
+      n[c] += w;
+      for (String item : basket.items) {
+        byItem.computeIfAbsent(item, k -> new double[count])[c] += w;
+      }
+    }
+    return (a, b) -> {
+      double[] na = byItem.getOrDefault(a, new double[count]);
+      double[] nb = byItem.getOrDefault(b, new double[count]);
+      double sum = 0;
+      for (int c = 0; c < count; c++) {
+        if (n[c] > 0 && !classes.pairless(c)) {
+          sum += na[c] * nb[c] / n[c];
+        }
+      }
+      return sum;
+    };
+  }
 }

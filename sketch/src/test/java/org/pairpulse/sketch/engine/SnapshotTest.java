@@ -2,6 +2,7 @@ package org.pairpulse.sketch.engine;
 
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -17,6 +18,7 @@ import org.junit.jupiter.api.Test;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.snapshot.SnapshotFormatException;
 import org.pairpulse.sketch.stats.Estimate;
+import org.pairpulse.sketch.table.PairStats;
 
 /** Snapshot round trip, merge of disjoint streams, corruption, version mismatch, a stored fixture. */
 class SnapshotTest {
@@ -68,8 +70,8 @@ class SnapshotTest {
     assertMessage(new byte[0], "truncated");
 
     byte[] newer = good.clone();
-    newer[Snapshots.OFFSET_VERSION] = 2;
-    assertMessage(newer, "version 2 is not supported");
+    newer[Snapshots.OFFSET_VERSION] = 3;
+    assertMessage(newer, "version 3 is not supported");
 
     byte[] foreign = good.clone();
     foreign[0] = 'X';
@@ -99,28 +101,44 @@ class SnapshotTest {
     return engine;
   }
 
-  /** Format compatibility: a version-1 snapshot stored in the repository must still read, with the same answers. */
+  /**
+   * Format compatibility: the version-2 snapshot stored in the repository must still read, with the same answers and
+   * the same bytes; the version-1 one (before basket-size classes) must still read, with the same counts, under the
+   * default size classes, its baskets unclassed (so its horizons publish textbook measures).
+   */
   @Test
-  void storedVersionOneFixtureStillReads() throws IOException {
-    byte[] stored;
-    try (InputStream in = SnapshotTest.class.getResourceAsStream("/snapshots/fixture-v1.ppsn")) {
-      assertTrue(in != null, "fixture missing; regenerate with -Dpairpulse.writeFixture=<dir>");
-      stored = in.readAllBytes();
-    }
+  void storedFixturesStillRead() throws IOException {
+    byte[] stored = fixture("fixture-v2.ppsn");
     PairEngine fromFile = Snapshots.read(stored);
     PairEngine fresh = fixtureEngine();
     assertEquals(fresh.basketCount("day"), fromFile.basketCount("day"));
     assertEquals(fresh.pairCount("tea", "scone", "day"), fromFile.pairCount("tea", "scone", "day"));
     assertEquals(fresh.pairCount("tea", "scone", "recent"), fromFile.pairCount("tea", "scone", "recent"));
-    assertArrayEquals(stored, Snapshots.write(fresh), "format v1 changed: bump FORMAT_VERSION and keep a reader for v1");
+    assertArrayEquals(stored, Snapshots.write(fresh), "format v2 changed: bump FORMAT_VERSION and keep a reader for v2");
+
+    PairEngine fromVersionOne = Snapshots.read(fixture("fixture-v1.ppsn"));
+    assertEquals(fixtureConfig(), fromVersionOne.config());
+    assertEquals(fresh.basketCount("day"), fromVersionOne.basketCount("day"));
+    assertEquals(fresh.pairCount("tea", "scone", "day"), fromVersionOne.pairCount("tea", "scone", "day"));
+    assertEquals(fresh.itemCount("tea", "recent"), fromVersionOne.itemCount("tea", "recent"));
+    PairStats textbook = fromVersionOne.refresh(PairTables.Options.of(1, 0)).pair("tea", "scone", "day").orElseThrow();
+    assertFalse(textbook.counts().isStratified(), "restored baskets have no class: textbook measures");
+    assertTrue(fresh.refresh(PairTables.Options.of(1, 0)).pair("tea", "scone", "day").orElseThrow().counts().isStratified());
   }
 
-  /** Not a test: writes the fixture when asked (mvn test -Dtest=SnapshotTest -Dpairpulse.writeFixture=DIR). */
+  private static byte[] fixture(String name) throws IOException {
+    try (InputStream in = SnapshotTest.class.getResourceAsStream("/snapshots/" + name)) {
+      assertTrue(in != null, "fixture missing; regenerate with -Dpairpulse.writeFixture=<dir>");
+      return in.readAllBytes();
+    }
+  }
+
+  /** Not a test: writes the current version's fixture when asked (mvn test -Dtest=SnapshotTest -Dpairpulse.writeFixture=DIR). */
   @Test
   void writeFixtureWhenAsked() throws IOException {
     String dir = System.getProperty("pairpulse.writeFixture");
     if (dir != null) {
-      Files.write(Path.of(dir, "fixture-v1.ppsn"), Snapshots.write(fixtureEngine()));
+      Files.write(Path.of(dir, "fixture-v" + Snapshots.FORMAT_VERSION + ".ppsn"), Snapshots.write(fixtureEngine()));
     }
     assertTrue(Snapshots.write(fixtureEngine()).length < 16_384, "fixture stays small");
   }

@@ -1,0 +1,147 @@
+package org.pairpulse.sketch.engine;
+
+import org.pairpulse.sketch.stats.Estimate;
+import org.pairpulse.sketch.stats.MantelHaenszel;
+import org.pairpulse.sketch.stats.SizeClasses;
+
+/**
+ * One horizon's basket-size strata at a refresh, and the stratified expected pair count
+ * E = Σ_c n_a,c·n_b,c / N_c ({@link MantelHaenszel}) with bounds, from what the engine knows of each item.
+ *
+ * <h2>What is known per class</h2>
+ * N_c is exact (counted per pane and class). A tracked item's count splits into a part known exactly per class
+ * (counted since its admission, {@link Counts#knownByClass}) and a remainder u of unknown class (panes before its
+ * admission, read from the sketches, and the estimate it was admitted with); an untracked item's whole count is of
+ * unknown class. u carries the item count's bounds: u ∈ [n.lower − known, n.upper − known].
+ *
+ * <h2>Bounds of E</h2>
+ * E is bilinear in the two items' class allocations, so over all ways of placing u_a and u_b into classes (any class
+ * with N_c &gt; 0; a pairless class takes mass but adds nothing) its extremes lie at vertices: all of u_a in one class
+ * c_a, all of u_b in one class c_b. {@link #expected} tries every (c_a, c_b), with u at its upper bound for E's upper
+ * bound and at its lower bound for E's lower bound, so E's bounds hold whenever the item counts' bounds do
+ * (probability ≥ 1 − δ per sketch, as theirs). An item counted exactly from its first basket has u = 0 and an exact E.
+ *
+ * <h2>Point value</h2>
+ * The unknown remainder is spread over the classes in proportion to (known_c + π_c) / (known + 1), π_c = M_c/M
+ * the share of item occurrences in class c: the item's own class mix where it has one, the stream's mix (where
+ * independence puts an item) where it has none. Each class's n_c is capped at N_c.
+ *
+ * <p>Refresh-time only (allocates); the hot path never reads this.
+ */
+final class SizeStrata {
+  /** Unclassed baskets (a format-1 restore) above this share of N: the horizon publishes textbook measures. */
+  static final double MAX_UNCLASSED_SHARE = 0.01;
+
+  private final double[] baskets;
+  private final boolean[] pairless;
+  private final double[] itemShares;
+
+  /** One item's counts per class in this horizon. */
+  record ItemClasses(double[] known, double unknownValue, double unknownLower, double unknownUpper, double[] pointShares) {}
+
+  private SizeStrata(double[] baskets, boolean[] pairless, double[] itemShares) {
+    this.baskets = baskets;
+    this.pairless = pairless;
+    this.itemShares = itemShares;
+  }
+
+  /**
+   * The strata of {@code state} as of the engine's watermark, or null when the horizon publishes textbook measures:
+   * one class configured, or more than {@value #MAX_UNCLASSED_SHARE} of its baskets of unknown class.
+   */
+  static SizeStrata of(PairEngine engine, HorizonState state) {
+    SizeClasses classes = engine.config().sizeClasses();
+    if (classes.count() < 2) {
+      return null;
+    }
+    double total = Counts.baskets(engine, state);
+    if (Counts.unclassedBaskets(engine, state) > MAX_UNCLASSED_SHARE * total) {
+      return null;
+    }
+    double[] baskets = Counts.classBaskets(engine, state);
+    double[] items = Counts.classItems(engine, state);
+    double itemTotal = 0;
+    for (double m : items) {
+      itemTotal += m;
+    }
+    boolean[] pairless = new boolean[classes.count()];
+    double[] shares = new double[classes.count()];
+    for (int c = 0; c < shares.length; c++) {
+      pairless[c] = classes.pairless(c);
+      shares[c] = itemTotal > 0 ? items[c] / itemTotal : 1.0 / shares.length;
+    }
+    return new SizeStrata(baskets, pairless, shares);
+  }
+
+  /** An item with {@code known} counted per class and {@code total} its whole count with bounds. */
+  ItemClasses item(double[] known, Estimate total) {
+    double knownSum = 0;
+    for (double k : known) {
+      knownSum += k;
+    }
+    double value = Math.max(0, total.value() - knownSum);
+    double lower = Math.min(value, Math.max(0, total.lower() - knownSum));
+    double upper = Math.max(value, total.upper() - knownSum);
+    double[] shares = new double[known.length];
+    for (int c = 0; c < known.length; c++) {
+      shares[c] = (known[c] + itemShares[c]) / (knownSum + 1.0);
+    }
+    return new ItemClasses(known, value, lower, upper, shares);
+  }
+
+  /** An untracked item: its whole count is of unknown class. */
+  ItemClasses untracked(Estimate total) {
+    return item(new double[baskets.length], total);
+  }
+
+  /** E with bounds for the pair of {@code a} and {@code b}; see the class comment. */
+  Estimate expected(ItemClasses a, ItemClasses b) {
+    int classes = baskets.length;
+    double[] pointA = new double[classes];
+    double[] pointB = new double[classes];
+    for (int c = 0; c < classes; c++) {
+      pointA[c] = Math.min(baskets[c], a.known()[c] + a.unknownValue() * a.pointShares()[c]);
+      pointB[c] = Math.min(baskets[c], b.known()[c] + b.unknownValue() * b.pointShares()[c]);
+      if (pairless[c]) {
+        pointA[c] = 0; // a basket of one item holds no pair: a structural zero, not an expectation
+      }
+    }
+    double value = MantelHaenszel.expected(pointA, pointB, baskets);
+    double base = 0;
+    for (int c = 0; c < classes; c++) {
+      base += perBasket(c, a.known()[c] * b.known()[c]);
+    }
+    double upper = Double.NEGATIVE_INFINITY;
+    double lower = Double.POSITIVE_INFINITY;
+    for (int ca = 0; ca < classes; ca++) {
+      if (!(baskets[ca] > 0)) {
+        continue;
+      }
+      for (int cb = 0; cb < classes; cb++) {
+        if (!(baskets[cb] > 0)) {
+          continue;
+        }
+        upper = Math.max(upper, vertex(base, a, b, ca, cb, a.unknownUpper(), b.unknownUpper()));
+        lower = Math.min(lower, vertex(base, a, b, ca, cb, a.unknownLower(), b.unknownLower()));
+      }
+    }
+    if (upper == Double.NEGATIVE_INFINITY) { // no baskets at all
+      return Estimate.exact(0);
+    }
+    return new Estimate(value, Math.max(0, Math.min(lower, value)), Math.max(upper, value));
+  }
+
+  /** E with u_a placed in class ca and u_b in class cb. */
+  private double vertex(double base, ItemClasses a, ItemClasses b, int ca, int cb, double ua, double ub) {
+    double sum = base + perBasket(ca, ua * b.known()[ca]) + perBasket(cb, ub * a.known()[cb]);
+    if (ca == cb) {
+      sum += perBasket(ca, ua * ub);
+    }
+    return sum;
+  }
+
+  /** x / N_c in a class that holds pairs, else 0. */
+  private double perBasket(int c, double product) {
+    return pairless[c] || !(baskets[c] > 0) ? 0.0 : product / baskets[c];
+  }
+}

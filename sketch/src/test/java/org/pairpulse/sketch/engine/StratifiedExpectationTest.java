@@ -1,0 +1,109 @@
+package org.pairpulse.sketch.engine;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.time.Duration;
+import org.junit.jupiter.api.Test;
+import org.pairpulse.sketch.horizon.HorizonSpec;
+import org.pairpulse.sketch.stats.Estimate;
+import org.pairpulse.sketch.stats.MeasureSettings;
+import org.pairpulse.sketch.stats.PairCounts;
+import org.pairpulse.sketch.stats.PairMeasures;
+import org.pairpulse.sketch.stats.SizeClasses;
+import org.pairpulse.sketch.table.PairStats;
+import org.pairpulse.sketch.table.PairTable;
+
+/**
+ * The engine's size-adjusted expected pair count against {@link ExactOracle}'s recomputation from every basket, on
+ * seeded streams whose basket sizes vary (1 to 8 items plus planted partners): exact while the tracked tables never
+ * fill (also after a merge and a snapshot round trip), within its bounds when sketches and evictions do the work.
+ */
+class StratifiedExpectationTest {
+  private static final long HOUR = Duration.ofHours(1).toMillis();
+  private static final long START = 1_700_000_000_000L;
+
+  private static void feed(PairEngine[] engines, ExactOracle oracle, Streams stream, int baskets, int maxItems) {
+    long span = Duration.ofDays(30).toMillis();
+    for (int i = 0; i < baskets; i++) {
+      long t = START + span * i / baskets;
+      if (stream.nextDouble() < 0.05) {
+        t -= stream.nextLong(3 * HOUR);
+      }
+      String[] items = stream.basket(maxItems, 10);
+      engines[i % engines.length].addBasket(t, items);
+      oracle.add(t, items);
+    }
+  }
+
+  @Test
+  void exactWhileTrackedFromTheFirstBasketAlsoMergedAndRestored() {
+    for (SizeClasses classes : new SizeClasses[] {SizeClasses.defaults(), SizeClasses.of(1, 2, 4, 7)}) {
+      EngineConfig config = EngineConfig.builder().trackedPairCapacity(1 << 15).trackedItemCapacity(512)
+          .sizeClasses(classes).build();
+      PairEngine one = new PairEngine(config);
+      PairEngine[] halves = {new PairEngine(config), new PairEngine(config)};
+      ExactOracle oracle = new ExactOracle();
+      Streams stream = new Streams(11, 300, 1.0);
+      feed(new PairEngine[] {one}, new ExactOracle(), new Streams(11, 300, 1.0), 15_000, 8);
+      feed(halves, oracle, stream, 15_000, 8);
+      PairEngine merged = halves[0];
+      merged.merge(halves[1]);
+      merged.advanceTo(one.watermarkMillis());
+      for (PairEngine engine : new PairEngine[] {one, merged, Snapshots.read(Snapshots.write(one))}) {
+        PairTable table = engine.refresh(PairTables.Options.of(1, 0));
+        int checked = 0;
+        for (HorizonSpec h : config.horizons()) {
+          java.util.function.ToDoubleBiFunction<String, String> oracleE = oracle.stratifiedExpected(h, classes);
+          for (PairStats pair : table.pairs(h.name())) {
+            double exact = oracleE.applyAsDouble(pair.itemA(), pair.itemB());
+            Estimate e = pair.counts().expectedCountAB();
+            String what = classes + " " + h.name() + " {" + pair.itemA() + ", " + pair.itemB() + "}";
+            assertEquals(exact, e.value(), 1e-9 * Math.max(1, exact), what);
+            assertEquals(e.lower(), e.upper(), 1e-9 * Math.max(1, exact), what + ": exact counts carry no error");
+            // the adjusted measures against their exact recomputation
+            PairCounts counts = pair.counts();
+            PairMeasures expected = PairMeasures.of(PairCounts.exact(counts.baskets(), counts.countA().value(),
+                counts.countB().value(), counts.countAB().value()).withStratifiedExpected(Estimate.exact(exact)),
+                MeasureSettings.defaults());
+            assertEquals(expected.lift(), pair.measures().lift(), 1e-9 * Math.max(1, expected.lift()), what);
+            assertEquals(expected.shrunkLift(), pair.measures().shrunkLift(), 1e-9 * expected.shrunkLift(), what);
+            assertEquals(expected.signedRootGSquared(), pair.measures().signedRootGSquared(), 1e-6, what);
+            assertEquals(counts.baskets() * counts.countAB().value() / (counts.countA().value() * counts.countB().value()),
+                pair.measures().liftUnadjusted(), 1e-9 * pair.measures().liftUnadjusted(), what);
+            checked++;
+          }
+        }
+        assertTrue(checked > 3_000, "pairs checked: " + checked);
+      }
+    }
+  }
+
+  @Test
+  void boundsHoldWhenSketchesAndEvictionsDoTheWork() {
+    EngineConfig config = EngineConfig.builder().trackedPairCapacity(256).trackedItemCapacity(64)
+        .pairError(0.01, 0.02).itemError(0.01, 0.02).build();
+    PairEngine engine = new PairEngine(config);
+    ExactOracle oracle = new ExactOracle();
+    feed(new PairEngine[] {engine}, oracle, new Streams(5, 2_000, 1.0), 30_000, 8);
+    assertTrue(engine.stats().pairEvictions() > 0);
+    PairTable table = engine.refresh(PairTables.Options.of(1, 0));
+    for (HorizonSpec h : config.horizons()) {
+      int outside = 0;
+      int checked = 0;
+      java.util.function.ToDoubleBiFunction<String, String> oracleE = oracle.stratifiedExpected(h, config.sizeClasses());
+      for (PairStats pair : table.pairs(h.name())) {
+        double exact = oracleE.applyAsDouble(pair.itemA(), pair.itemB());
+        Estimate e = pair.counts().expectedCountAB();
+        if (exact < e.lower() * (1 - 1e-9) || exact > e.upper() * (1 + 1e-9)) {
+          outside++;
+        }
+        checked++;
+      }
+      // the bounds hold when the item counts' bounds do: per pane with probability >= 1 − δ (union bound)
+      double allowed = h.paneCount() * Math.exp(-4) * 2 + 0.01;
+      assertTrue(checked > 50, h.name());
+      assertTrue(outside <= allowed * checked, h.name() + ": " + outside + " of " + checked + " outside their bounds");
+    }
+  }
+}
