@@ -46,6 +46,12 @@ public final class Wire {
     out.put("liftLower", m.liftLower());
     out.put("liftUpper", m.liftUpper());
     out.put("shrunkLift", m.shrunkLift());
+    out.put("expectedCount", m.expectedCountAB());
+    out.put("associationPValue", m.associationPValue());
+    out.put("liftUnadjusted", m.liftUnadjusted());
+    out.put("liftLowerUnadjusted", m.liftLowerUnadjusted());
+    out.put("liftUpperUnadjusted", m.liftUpperUnadjusted());
+    out.put("shrunkLiftUnadjusted", m.shrunkLiftUnadjusted());
     out.put("leverage", m.leverage());
     out.put("convictionAB", m.convictionAB());
     out.put("convictionBA", m.convictionBA());

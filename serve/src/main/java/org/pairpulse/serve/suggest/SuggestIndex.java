@@ -5,6 +5,7 @@ import java.util.List;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
 import org.pairpulse.serve.floor.FlooredTable;
+import org.pairpulse.serve.floor.OfferScreen;
 import org.pairpulse.sketch.stats.Measure;
 import org.pairpulse.sketch.stats.PairMeasures;
 import org.pairpulse.sketch.table.PairStats;
@@ -13,7 +14,7 @@ import org.pairpulse.sketch.table.PairStats;
  * The suggester's view of one floored table: per horizon, each item's first {@code limit}
  * neighbours (best first) as directed entries item ⇒ other in flat arrays (compressed sparse rows),
  * with what a suggestion reads precomputed: the other item's id, the rule's confidence, the pair's
- * support and bundle flag, and the per-pair contribution φ of each measure (computed on first use
+ * support, bundle flag and offer screen, and the per-pair contribution φ of each measure (computed on first use
  * per measure, then shared). Built once per table version and limit; immutable afterwards.
  *
  * <p>Memory: about 40 bytes per directed entry plus 8 per measure used; with the default limit of
@@ -35,6 +36,8 @@ final class SuggestIndex {
     final double[] confidence;
     final double[] support;
     final boolean[] bundle;
+    /** Whether the entry's pair passes the offer screen ({@link OfferScreen}): a real association after multiplicity. */
+    final boolean[] significant;
     /**
      * ln s(c) = ln(n_c / N) of item id c in this horizon, NaN when its count is not published (held back by the
      * floor, or not tracked): the prior of the posterior ranking.
@@ -55,6 +58,7 @@ final class SuggestIndex {
       this.confidence = new double[entries];
       this.support = new double[entries];
       this.bundle = new boolean[entries];
+      this.significant = new boolean[entries];
     }
 
     /** φ(m(item ⇒ other)) per entry, NaN where the measure is undefined. */
@@ -112,6 +116,7 @@ final class SuggestIndex {
       });
       int[] popular = published.stream().mapToInt(Integer::intValue).toArray();
       Horizon horizon = new Horizon(h, start, start[names.length], lnSupport, popular);
+      OfferScreen.Horizon screen = OfferScreen.of(table).horizon(h);
       for (int id = 0; id < names.length; id++) {
         List<PairStats> row = table.neighbours(names[id], h);
         int e = start[id];
@@ -125,6 +130,7 @@ final class SuggestIndex {
           horizon.confidence[e] = fwd ? m.confidenceAB() : m.confidenceBA();
           horizon.support[e] = m.support();
           horizon.bundle[e] = m.isBundle();
+          horizon.significant[e] = screen.passes(p);
         }
       }
       horizon.contributions(Measure.SHRUNK_LIFT); // the default measure, ready before the first request

@@ -19,7 +19,10 @@ import org.pairpulse.sketch.table.PairStats;
  * {@link #maxNeighboursPerItem()} per basket item, best first by the table's measure), minus the
  * basket's own items. A candidate is <em>eligible</em> when at least one basket item x gives a
  * rule x ⇒ candidate whose confidence lies in the request's band (default 0.30–0.60) and whose
- * support is at or above the request's floor. A candidate that forms a bundle pair with any basket
+ * support is at or above the request's floor and, under the association ranking, whose pair passes the
+ * offer screen ({@link org.pairpulse.serve.floor.OfferScreen}: its size-adjusted association is significant
+ * after a Benjamini–Hochberg step over the horizon's published pairs), so a list may be shorter than
+ * asked; it is never padded. A candidate that forms a bundle pair with any basket
  * item is dropped unless the request includes bundle pairs.
  *
  * <h2>Combining several basket items</h2>
@@ -27,6 +30,7 @@ import org.pairpulse.sketch.table.PairStats;
  * per-pair contribution φ(m(x ⇒ c)) of the request's measure m:
  * <pre>
  *   score(c) = Σ_x φ(m(x ⇒ c)),   φ = ln  for the ratio measures lift, shrunk_lift, lift_lower, conviction
+ *                                           (and their _unadjusted twins)
  *                                 φ = identity for the others (support, confidence, leverage, kulczynski,
  *                                                              signed_root_g2)
  * </pre>
@@ -220,7 +224,8 @@ public final class Suggester {
             f |= BUNDLE;
           }
           double confidence = h.confidence[e];
-          if (confidence >= minConfidence && confidence <= maxConfidence && h.support[e] >= minSupport) {
+          if (confidence >= minConfidence && confidence <= maxConfidence && h.support[e] >= minSupport
+              && (posterior || h.significant[e])) {
             f |= ELIGIBLE;
           }
           sc.flags[slot] = f;
@@ -355,6 +360,8 @@ public final class Suggester {
         return forward ? m.confidenceAB() : m.confidenceBA();
       case CONVICTION:
         return forward ? m.convictionAB() : m.convictionBA();
+      case CONVICTION_UNADJUSTED:
+        return forward ? m.convictionABUnadjusted() : m.convictionBAUnadjusted();
       default:
         return measure.of(m);
     }
@@ -367,6 +374,10 @@ public final class Suggester {
       case SHRUNK_LIFT:
       case LIFT_LOWER:
       case CONVICTION:
+      case LIFT_UNADJUSTED:
+      case SHRUNK_LIFT_UNADJUSTED:
+      case LIFT_LOWER_UNADJUSTED:
+      case CONVICTION_UNADJUSTED:
         return Math.log(Math.min(MAX_RATIO, Math.max(MIN_RATIO, value)));
       default:
         return value;

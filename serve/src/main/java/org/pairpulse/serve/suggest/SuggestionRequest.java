@@ -82,7 +82,9 @@ public record SuggestionRequest(List<String> basket, String horizon, Measure mea
 
   /** Whether {@code measure} estimates P(x | c) / P(x), the per-pair factor of the naive-Bayes posterior. */
   public static boolean isLiftMeasure(Measure measure) {
-    return measure == Measure.LIFT || measure == Measure.SHRUNK_LIFT || measure == Measure.LIFT_LOWER;
+    Measure textbook = measure.unadjusted();
+    return textbook == Measure.LIFT_UNADJUSTED || textbook == Measure.SHRUNK_LIFT_UNADJUSTED
+        || textbook == Measure.LIFT_LOWER_UNADJUSTED;
   }
 
   /** A request with every default for these items. */

@@ -72,7 +72,10 @@ final class SimpleSuggester {
         if (m.isBundle()) {
           candidate.bundle = true;
         }
-        if (inBand(request, m, pair.itemA().equals(basketItem))) {
+        // the association ranking lists only pairs that pass the offer screen (BH over the horizon's published pairs)
+        boolean screened = request.ranking() == SuggestionRanking.POSTERIOR
+            || org.pairpulse.serve.floor.OfferScreen.of(table).horizon(request.horizon()).passes(pair);
+        if (inBand(request, m, pair.itemA().equals(basketItem)) && screened) {
           candidate.eligible = true;
         }
       }
