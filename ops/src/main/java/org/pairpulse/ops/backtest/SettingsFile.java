@@ -95,6 +95,26 @@ public final class SettingsFile {
     }
   }
 
+  /**
+   * A benchmark's {@code --config FILE} option: {@code base} when {@code file} is null, else {@link #read} with each
+   * note printed to {@code err} as {@code "<who>: <file>: <note>"}.
+   *
+   * @throws IllegalArgumentException when the file is missing or holds a bad key or value
+   */
+  public static BacktestSettings readOption(Path file, BacktestSettings base, java.io.PrintWriter err, String who)
+      throws IOException {
+    if (file == null) {
+      return base;
+    }
+    if (!Files.isRegularFile(file)) {
+      throw new IllegalArgumentException("--config: no such file: " + file);
+    }
+    return read(file, base, note -> {
+      err.println(who + ": " + file + ": " + note);
+      err.flush();
+    });
+  }
+
   /** Applies {@code values} (key to text) over {@code base}; run-only keys are ignored silently. */
   public static BacktestSettings apply(Map<String, String> values, BacktestSettings base) {
     return apply(values, base, note -> {});

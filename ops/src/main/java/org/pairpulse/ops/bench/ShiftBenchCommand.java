@@ -142,16 +142,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
   BacktestSettings settings() throws IOException {
     BacktestSettings settings = benchmarkSettings();
     try {
-      if (config != null) {
-        if (!Files.isRegularFile(config)) {
-          throw new IllegalArgumentException("--config: no such file: " + config);
-        }
-        PrintWriter err = spec.commandLine().getErr();
-        settings = SettingsFile.read(config, settings, note -> {
-          err.println("bench shift: " + config + ": " + note);
-          err.flush();
-        });
-      }
+      settings = SettingsFile.readOption(config, settings, spec.commandLine().getErr(), "bench shift");
       settings = settings.withRefreshEveryMillis(refreshEvery.toMillis());
       EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
       return settings.withEvaluation(evalShare > 0 ? evaluation.withShare(evalShare).withK(10) : null);

@@ -2,7 +2,6 @@ package org.pairpulse.ops.drift;
 
 import java.io.IOException;
 import java.io.PrintWriter;
-import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.time.Instant;
@@ -202,16 +201,7 @@ public final class DriftBenchCommand implements Callable<Integer> {
   BacktestSettings settings() throws IOException {
     BacktestSettings settings = BacktestSettings.defaults().withSummaryEveryMillis(BacktestSettings.DAY_MILLIS);
     try {
-      if (config != null) {
-        if (!Files.isRegularFile(config)) {
-          throw new IllegalArgumentException("--config: no such file: " + config);
-        }
-        PrintWriter err = spec.commandLine().getErr();
-        settings = SettingsFile.read(config, settings, note -> {
-          err.println("bench drift: " + config + ": " + note);
-          err.flush();
-        });
-      }
+      settings = SettingsFile.readOption(config, settings, spec.commandLine().getErr(), "bench drift");
       return settings.withRefreshEveryMillis(refreshEvery.toMillis()).withEvaluation(null);
     } catch (IllegalArgumentException e) {
       throw new ParameterException(spec.commandLine(), e.getMessage(), e);

@@ -3,15 +3,13 @@ package org.pairpulse.ops.drift;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.io.PrintWriter;
-import java.io.StringWriter;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.regex.Pattern;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.pairpulse.ops.Main;
-import picocli.CommandLine;
+import org.pairpulse.ops.MainTestAccess;
 
 /** {@code pairpulse bench drift} on a tiny run: progress, the per-change table, then the RESULT line, last. */
 class DriftBenchCommandTest {
@@ -26,15 +24,10 @@ class DriftBenchCommandTest {
   void printsProgressTheChangesThenTheResultLineLast() throws Exception {
     Files.writeString(directory.resolve("small.properties"),
         "engine.trackedPairCapacity=512\nengine.trackedItemCapacity=512\nserve.cohortFloor=5\n");
-    StringWriter out = new StringWriter();
-    StringWriter err = new StringWriter();
-    CommandLine cli = Main.commandLine();
-    cli.setOut(new PrintWriter(out, true));
-    cli.setErr(new PrintWriter(err, true));
-    int exit = cli.execute("bench", "drift", "--days", "3", "--levels", "quiet", "--traffic-scale", "0.05",
-        "--refresh-every", "1h", "--config", directory.resolve("small.properties").toString());
-    assertEquals(Main.EXIT_OK, exit, err.toString());
-    String text = out.toString();
+    MainTestAccess.Run run = MainTestAccess.run("bench", "drift", "--days", "3", "--levels", "quiet",
+        "--traffic-scale", "0.05", "--refresh-every", "1h", "--config", directory.resolve("small.properties").toString());
+    assertEquals(Main.EXIT_OK, run.exitCode(), run.err());
+    String text = run.out();
     String[] lines = text.strip().split("\n");
     String last = lines[lines.length - 1];
     var matcher = RESULT.matcher(last);
