@@ -152,8 +152,9 @@ public final class ReportCommand implements Callable<Integer> {
     for (ShortlistReport.Segment segment : report.segments()) {
       stdout.printf(Locale.ROOT, "  %-24s %s%n", segment.name(), segment.suppressed()
           ? "under the cohort floor: nothing shown"
-          : String.format(Locale.ROOT, "%d emerging, %d suggestion rows, %d held back by the floor",
-              segment.emerging().size(), segment.suggestions().size(), segment.suppressedRows()));
+          : String.format(Locale.ROOT, "%d emerging, %d suggestion rows (%d of %d pairs screened passed), %d held back"
+              + " by the floor", segment.emerging().size(), segment.suggestions().size(), segment.passedPairs(),
+              segment.screenedPairs(), segment.suppressedRows()));
     }
     stdout.println("  written: " + out.resolve(ShortlistCsv.FILE) + ", " + out.resolve(ShortlistCsv.SUPPRESSED_FILE) + ", "
         + out.resolve(ShortlistHtml.FILE));

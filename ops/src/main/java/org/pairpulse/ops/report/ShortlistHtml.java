@@ -50,7 +50,7 @@ public final class ShortlistHtml {
         .append(" · emerging: ").append(text(settings.drift().recentHorizon())).append(" against ")
         .append(text(settings.drift().baselineHorizon())).append(", signed √G² ≥ ")
         .append(fixed(settings.drift().enterRootG2(), 1)).append(" and lift ratio ≥ ")
-        .append(fixed(settings.drift().enterLiftRatio(), 2)).append(" · cohort floor ")
+        .append(fixed(settings.drift().enterRatio(), 2)).append(" · cohort floor ")
         .append(fixed(settings.cohortFloor(), 0)).append(" distinct baskets</p>\n");
     html.append("<p class=\"legend\">Charts: the lift interval on a log axis (dashed line: lift 1, independence; dot: the"
         + " lift); recent (dark) against baseline (light) lift.</p>\n");
@@ -84,7 +84,9 @@ public final class ShortlistHtml {
       return;
     }
     html.append("<p class=\"meta\">").append(String.format(Locale.ROOT, "%,.0f", segment.baskets())).append(" baskets in ")
-        .append(text(settings.horizon())).append("</p>\n");
+        .append(text(settings.horizon())).append(" · ").append(String.format(Locale.ROOT, "%,d of %,d pairs screened",
+            segment.passedPairs(), segment.screenedPairs()))
+        .append(" passed the offer screen (size-adjusted association, false-discovery rate 5%)</p>\n");
     html.append("<h3>Emerging pairs</h3>\n");
     if (segment.emerging().isEmpty()) {
       html.append("<p class=\"empty\">No pair is emerging now.</p>\n");

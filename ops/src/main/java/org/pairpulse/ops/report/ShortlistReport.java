@@ -14,6 +14,7 @@ import org.pairpulse.serve.drift.DriftFinding;
 import org.pairpulse.serve.drift.DriftMonitor;
 import org.pairpulse.serve.floor.CohortFloor;
 import org.pairpulse.serve.floor.FlooredTable;
+import org.pairpulse.serve.floor.OfferScreen;
 import org.pairpulse.serve.floor.PairKey;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.PairMeasures;
@@ -29,8 +30,10 @@ import org.pairpulse.sketch.table.PairTable;
  *   <li><b>emerging</b>: pairs published in both drift horizons whose comparison ({@link DriftFinding}) meets the
  *       entry condition of an emerging alert now, strongest signed √G² first. (No dwell: a report is one moment.)</li>
  *   <li><b>suggestion</b>: rules a ⇒ b of the pairs published in the report's horizon, in the table's order (shrunk
- *       lift), whose confidence lies in the band and whose lift interval lies above 1 (lower end &gt; 1: an
- *       association, not chance); bundle pairs are left out.</li>
+ *       lift, size-adjusted), whose confidence lies in the band, whose lift interval lies above 1 and whose pair passes
+ *       the offer screen ({@link OfferScreen}: its size-adjusted association is significant after a
+ *       Benjamini–Hochberg step over every published pair of the horizon); bundle pairs are left out. The list may be
+ *       shorter than asked, never padded; each segment says how many pairs were screened and how many passed.</li>
  * </ul>
  *
  * <h2>Cohort floor</h2>
@@ -53,12 +56,20 @@ public record ShortlistReport(ShortlistSettings settings, long asOfMillis, List<
    * @param emerging the emerging rows, best first
    * @param suggestions the suggestion rows, best first
    * @param suppressedRows rows held back by the cohort floor (over both lists)
+   * @param screenedPairs published pairs of the report's horizon tested by the offer screen
+   * @param passedPairs pairs among them whose size-adjusted association passed it
    */
   public record Segment(String name, double baskets, List<ShortlistRow> emerging, List<ShortlistRow> suggestions,
-      int suppressedRows) {
+      int suppressedRows, int screenedPairs, int passedPairs) {
     public Segment {
       emerging = List.copyOf(emerging);
       suggestions = List.copyOf(suggestions);
+    }
+
+    /** A segment without screen counts. */
+    public Segment(String name, double baskets, List<ShortlistRow> emerging, List<ShortlistRow> suggestions,
+        int suppressedRows) {
+      this(name, baskets, emerging, suggestions, suppressedRows, 0, 0);
     }
 
     /** Whether the whole segment is under the floor. */
@@ -97,7 +108,8 @@ public record ShortlistReport(ShortlistSettings settings, long asOfMillis, List<
       List<ShortlistRow> emerging = Double.isNaN(baskets) ? List.of() : emerging(floored, drift, settings);
       List<ShortlistRow> suggestions = Double.isNaN(baskets) ? List.of() : suggestions(floored, drift, settings);
       int held = held(emerging, emerging(open, drift, settings)) + held(suggestions, suggestions(open, drift, settings));
-      segments.add(new Segment(entry.getKey(), baskets, emerging, suggestions, held));
+      OfferScreen.Horizon screen = OfferScreen.of(floored).horizon(settings.horizon());
+      segments.add(new Segment(entry.getKey(), baskets, emerging, suggestions, held, screen.screened(), screen.passed()));
     }
     return new ShortlistReport(settings, asOf, segments);
   }
@@ -151,9 +163,10 @@ public record ShortlistReport(ShortlistSettings settings, long asOfMillis, List<
     List<ShortlistRow> rows = new ArrayList<>();
     String recent = settings.drift().recentHorizon();
     String baseline = settings.drift().baselineHorizon();
+    OfferScreen.Horizon screen = OfferScreen.of(table).horizon(settings.horizon());
     for (PairStats stats : table.pairs(settings.horizon())) {
       PairMeasures m = stats.measures();
-      if (m.isBundle() || m.isRepelling() || !(m.liftLower() > 1.0)) {
+      if (!screen.passes(stats) || m.isBundle() || m.isRepelling() || !(m.liftLower() > 1.0)) {
         continue; // a promotion needs an association: the lift interval must lie above independence
       }
       Optional<DriftFinding> finding = drift.finding(table, PairKey.of(stats.itemA(), stats.itemB()));

@@ -33,6 +33,11 @@ import picocli.CommandLine;
 class ReportCommandTest {
   @TempDir
   static Path directory;
+  /**
+   * A wide confidence band: two days at 3 baskets a minute leave few pairs whose size-adjusted association passes the
+   * offer screen, and fewer still inside the default band.
+   */
+  static final String[] BAND = {"0.05", "0.95"};
 
   @BeforeAll
   static void writeScenario() throws IOException {
@@ -55,7 +60,7 @@ class ReportCommandTest {
   /** {@code report --input} of the scenario file with segments by channel, floor 20, into {@code out}; exit 0. */
   private String[] reportByChannel(String out) {
     String[] result = run("report", "--input", directory.resolve(ScenarioFiles.JSON_LINES_FILE).toString(),
-        "--segment-attribute", "channel", "--config", directory.resolve("small.properties").toString(), "--floor", "20",
+        "--segment-attribute", "channel", "--min-confidence", BAND[0], "--max-confidence", BAND[1], "--config", directory.resolve("small.properties").toString(), "--floor", "20",
         "--quiet", "--out", directory.resolve(out).toString());
     assertEquals("0", result[0], result[2]);
     return result;
@@ -83,7 +88,8 @@ class ReportCommandTest {
         basket -> engine.addBasket(basket.eventMillis(), basket.items()));
     Path snapshot = directory.resolve("state.snapshot");
     Files.write(snapshot, Snapshots.write(engine));
-    String[] bySnapshot = run("report", "--snapshot", snapshot.toString(), "--floor", "20", "--out",
+    String[] bySnapshot = run("report", "--snapshot", snapshot.toString(), "--floor", "20", "--min-confidence", BAND[0],
+        "--max-confidence", BAND[1], "--out",
         directory.resolve("by-snapshot").toString());
     assertEquals("0", bySnapshot[0], bySnapshot[2]);
     List<String> snapshotRows = Files.readAllLines(directory.resolve("by-snapshot").resolve(ShortlistCsv.FILE));
@@ -112,7 +118,8 @@ class ReportCommandTest {
     new LocalDirectoryStore(checkpoints).save(new PartitionCheckpoint("shop.baskets", 0, 1, 1, 0,
         new PartitionFront(settings.front()).encode(), Snapshots.write(engines.all()), segmentStates));
 
-    String[] bySnapshot = run("report", "--snapshot", checkpoints.toString(), "--floor", "20", "--out",
+    String[] bySnapshot = run("report", "--snapshot", checkpoints.toString(), "--floor", "20", "--min-confidence", BAND[0],
+        "--max-confidence", BAND[1], "--out",
         directory.resolve("segments-by-snapshot").toString());
     assertEquals("0", bySnapshot[0], bySnapshot[2]);
     assertTrue(bySnapshot[1].contains("4 segment(s)"), bySnapshot[1]);
