@@ -116,6 +116,11 @@ final class Counts {
     return perClass(engine, state, state.classItems);
   }
 
+  /** K_c per size class as of the watermark: the weight of ordered item pairs k(k − 1) in baskets of class c. */
+  static double[] classPairSlots(PairEngine engine, HorizonState state) {
+    return perClass(engine, state, state.classPairSlots);
+  }
+
   /** Baskets of unknown class (restored from a format-1 snapshot) as of the watermark. */
   static double unclassedBaskets(PairEngine engine, HorizonState state) {
     if (!state.isWindow()) {

@@ -73,6 +73,7 @@ final class EngineMerge {
         for (int c = p * mine.classCount; c < (p + 1) * mine.classCount; c++) {
           mine.classBaskets[c] += theirs.classBaskets[c] * otherScale[h];
           mine.classItems[c] += theirs.classItems[c] * otherScale[h];
+          mine.classPairSlots[c] += theirs.classPairSlots[c] * otherScale[h];
         }
       }
     }

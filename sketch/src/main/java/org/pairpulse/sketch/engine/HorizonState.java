@@ -6,8 +6,8 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
 
 /**
  * The sketches of one horizon: per pane (a decay has one) an item sketch, a pair sketch and the basket
- * weight N; and per pane and basket-size class c the basket weight N_c and the item weight M_c (distinct
- * items times basket weight), the strata of the size-adjusted null model. Baskets restored from a snapshot
+ * weight N; and per pane and basket-size class c the basket weight N_c, the item weight M_c (distinct
+ * items k times basket weight) and the pair-slot weight K_c (k(k − 1) times basket weight), the strata of the size-adjusted null model. Baskets restored from a snapshot
  * that had no classes (format 1) are unclassed: {@code unclassedBaskets}.
  *
  * <h2>Windows</h2>
@@ -43,6 +43,8 @@ final class HorizonState {
   final double[] classBaskets;
   /** M_c of pane p at {@code p * classCount + c}: the weight of item occurrences in baskets of class c. */
   final double[] classItems;
+  /** K_c of pane p at {@code p * classCount + c}: the weight of ordered item pairs k(k − 1) in baskets of class c. */
+  final double[] classPairSlots;
   /** Baskets of pane p whose class is unknown (restored from a format-1 snapshot). */
   final double[] unclassedBaskets;
   /** Window: pane index held by each ring slot (Long.MIN_VALUE: never used). */
@@ -91,6 +93,7 @@ final class HorizonState {
     this.classCount = config.sizeClasses().count();
     this.classBaskets = new double[paneCount * classCount];
     this.classItems = new double[paneCount * classCount];
+    this.classPairSlots = new double[paneCount * classCount];
     this.unclassedBaskets = new double[paneCount];
     this.paneOfSlot = new long[paneCount];
     Arrays.fill(paneOfSlot, Long.MIN_VALUE);
@@ -129,6 +132,7 @@ final class HorizonState {
     basketWeight[slot] = 0;
     Arrays.fill(classBaskets, slot * classCount, (slot + 1) * classCount, 0.0);
     Arrays.fill(classItems, slot * classCount, (slot + 1) * classCount, 0.0);
+    Arrays.fill(classPairSlots, slot * classCount, (slot + 1) * classCount, 0.0);
     unclassedBaskets[slot] = 0;
     paneOfSlot[slot] = newPane;
   }
@@ -140,6 +144,7 @@ final class HorizonState {
     for (int c = 0; c < classCount; c++) {
       classBaskets[c] *= factor;
       classItems[c] *= factor;
+      classPairSlots[c] *= factor;
     }
   }
 
@@ -163,7 +168,7 @@ final class HorizonState {
   }
 
   long stateBytes() {
-    long bytes = 8L * basketWeight.length * 3 + 8L * classBaskets.length * 2;
+    long bytes = 8L * basketWeight.length * 3 + 8L * classBaskets.length * 3;
     for (int p = 0; p < paneCount; p++) {
       bytes += itemSketch[p].stateBytes() + pairSketch[p].stateBytes();
     }

@@ -140,6 +140,7 @@ public final class PairEngine {
         state.basketWeight[pane] += weight;
         state.classBaskets[cell] += weight;
         state.classItems[cell] += weight * distinct;
+        state.classPairSlots[cell] += weight * ((double) distinct * (distinct - 1));
       }
     }
     int pairCount = keys.selectPairs(distinct, sampling);

@@ -5,8 +5,19 @@ import org.pairpulse.sketch.stats.MantelHaenszel;
 import org.pairpulse.sketch.stats.SizeClasses;
 
 /**
- * One horizon's basket-size strata at a refresh, and the stratified expected pair count
- * E = Σ_c n_a,c·n_b,c / N_c ({@link MantelHaenszel}) with bounds, from what the engine knows of each item.
+ * One horizon's basket-size strata at a refresh, and the stratified expected pair count with bounds, from what the
+ * engine knows of each item:
+ * <pre>
+ *   E = Σ_c ρ_c · n_a,c·n_b,c / N_c,     ρ_c = N_c·K_c / M_c²  (K_c = Σ k(k − 1), M_c = Σ k over the class's baskets)
+ * </pre>
+ * the Mantel–Haenszel stratified form ({@link MantelHaenszel}) with a within-class size correction ρ_c. Inside a
+ * class, independence is taken slot by slot: a basket of k distinct items has k(k − 1) ordered pairs of slots, and
+ * an item fills a slot in proportion to its class count, so a pair's expected count is n_a,c·n_b,c·K_c/M_c². For a
+ * class of one size k that is n_a,c·n_b,c/N_c·(k − 1)/k (two independent items meet less often in a small basket
+ * than independent presence says, since a basket holds an item once); for a class of mixed sizes ρ_c grows with
+ * their spread (E[k(k − 1)]/E[k]²), so the sizes inside an open class such as 6+ (from 6 to hundreds) no longer
+ * inflate every pair of popular items. Without it (ρ_c = 1) the benchmark's heavy-tailed stream listed almost only
+ * spurious pairs ({@code bench rules}, ops/README). A class with K_c = 0 (single items) adds nothing.
  *
  * <h2>What is known per class</h2>
  * N_c is exact (counted per pane and class). A tracked item's count splits into a part known exactly per class
@@ -33,14 +44,17 @@ final class SizeStrata {
   static final double MAX_UNCLASSED_SHARE = 0.01;
 
   private final double[] baskets;
+  /** N_c / ρ_c = M_c² / K_c: the class's baskets as the Mantel–Haenszel form reads them. */
+  private final double[] effective;
   private final boolean[] pairless;
   private final double[] itemShares;
 
   /** One item's counts per class in this horizon. */
   record ItemClasses(double[] known, double unknownValue, double unknownLower, double unknownUpper, double[] pointShares) {}
 
-  private SizeStrata(double[] baskets, boolean[] pairless, double[] itemShares) {
+  private SizeStrata(double[] baskets, double[] effective, boolean[] pairless, double[] itemShares) {
     this.baskets = baskets;
+    this.effective = effective;
     this.pairless = pairless;
     this.itemShares = itemShares;
   }
@@ -60,17 +74,20 @@ final class SizeStrata {
     }
     double[] baskets = Counts.classBaskets(engine, state);
     double[] items = Counts.classItems(engine, state);
+    double[] slots = Counts.classPairSlots(engine, state);
     double itemTotal = 0;
     for (double m : items) {
       itemTotal += m;
     }
     boolean[] pairless = new boolean[classes.count()];
     double[] shares = new double[classes.count()];
+    double[] effective = new double[classes.count()];
     for (int c = 0; c < shares.length; c++) {
-      pairless[c] = classes.pairless(c);
+      pairless[c] = classes.pairless(c) || !(slots[c] > 0);
+      effective[c] = pairless[c] ? 0.0 : items[c] * items[c] / slots[c];
       shares[c] = itemTotal > 0 ? items[c] / itemTotal : 1.0 / shares.length;
     }
-    return new SizeStrata(baskets, pairless, shares);
+    return new SizeStrata(baskets, effective, pairless, shares);
   }
 
   /** An item with {@code known} counted per class and {@code total} its whole count with bounds. */
@@ -106,7 +123,7 @@ final class SizeStrata {
         pointA[c] = 0; // a basket of one item holds no pair: a structural zero, not an expectation
       }
     }
-    double value = MantelHaenszel.expected(pointA, pointB, baskets);
+    double value = MantelHaenszel.expected(pointA, pointB, effective);
     double base = 0;
     for (int c = 0; c < classes; c++) {
       base += perBasket(c, a.known()[c] * b.known()[c]);
@@ -140,8 +157,8 @@ final class SizeStrata {
     return sum;
   }
 
-  /** x / N_c in a class that holds pairs, else 0. */
+  /** ρ_c·x / N_c in a class that holds pairs, else 0. */
   private double perBasket(int c, double product) {
-    return pairless[c] || !(baskets[c] > 0) ? 0.0 : product / baskets[c];
+    return pairless[c] || !(effective[c] > 0) ? 0.0 : product / effective[c];
   }
 }

@@ -40,7 +40,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *             pairsSkippedByCap:long
  *   horizons  per horizon {newestPane:long, landmarkMillis:long, per pane {paneOfSlot:long,
  *             basketWeight:double, unclassedBaskets:double, classBaskets:double[classes],
- *             classItems:double[classes], item sketch {total:double, counters:double[width*depth]},
+ *             classItems:double[classes], classPairSlots:double[classes], item sketch {total:double, counters:double[width*depth]},
  *             pair sketch {same}}}
  *   tables    items then pairs, each {size:int, admissions, evictions, rejections:long, per slot
  *             {key:long, labelA:nullable-utf, labelB:nullable-utf, hashA, hashB, admittedAtMillis:long,
@@ -52,7 +52,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *
  * <h2>Format 1</h2>
  * The same without basket-size classes: no sizeClasses in the configuration, no unclassedBaskets,
- * classBaskets and classItems per pane, no class cells in the item table. It reads into an engine with the
+ * classBaskets, classItems and classPairSlots per pane, no class cells in the item table. It reads into an engine with the
  * default size classes ({@link org.pairpulse.sketch.stats.SizeClasses#defaults()}, so that a checkpoint written
  * before classes restores under the default configuration) whose restored baskets are unclassed and whose tracked
  * items' restored counts have no class: a horizon publishes textbook measures until its unclassed share of N falls
@@ -97,6 +97,9 @@ public final class Snapshots {
           }
           for (int c = 0; c < state.classCount; c++) {
             out.writeDouble(state.classItems[p * state.classCount + c]);
+          }
+          for (int c = 0; c < state.classCount; c++) {
+            out.writeDouble(state.classPairSlots[p * state.classCount + c]);
           }
           state.itemSketch[p].writeCounters(out);
           state.pairSketch[p].writeCounters(out);
@@ -167,6 +170,9 @@ public final class Snapshots {
             }
             for (int c = 0; c < state.classCount; c++) {
               state.classItems[p * state.classCount + c] = in.readDouble();
+            }
+            for (int c = 0; c < state.classCount; c++) {
+              state.classPairSlots[p * state.classCount + c] = in.readDouble();
             }
           } else {
             state.unclassedBaskets[p] = state.basketWeight[p];

@@ -45,7 +45,8 @@ import java.util.Objects;
  * Support, confidence, Kulczynski, the imbalance ratio and χ² do not read a null model.
  *
  * <p>{@link #associationPValue()} is the one-sided test the offer lists screen pairs with:
- * P(X ≥ n_ab.lower) for X ~ Poisson(E.upper), at the least favourable sketch bounds.
+ * P(X ≥ n_ab.lower) for X ~ Poisson(λ·E.upper), at the least favourable sketch bounds, with a gamma factor λ
+ * of mean 1 and coefficient of variation {@link #NULL_MODEL_TOLERANCE} for the null model's own error.
  *
  * <p>The shrunk lift is the posterior mean of the rate ratio λ when n_ab ~ Poisson(λ·E) and λ has
  * a Gamma(k, k) prior (mean 1, worth k baskets): the gamma–Poisson shrinker of [5]. It lies
@@ -100,6 +101,15 @@ public final class PairMeasures {
   private final NullModelMeasures adjusted;
   private final NullModelMeasures unadjusted;
 
+  /**
+   * τ, the relative error allowed to the null model's expected count in {@link #associationPValue()}: E is a model
+   * (independence within size classes), right to within some percent for any pair, not exactly; a pair of two very
+   * common items, seen together thousands of times, would otherwise pass on a few percent of model error alone.
+   * 0.1 (a gamma-distributed factor of mean 1 and standard deviation 0.1 on E, the mixture of DuMouchel's shrinker
+   * [5]) leaves thin pairs to the Poisson term and asks a heavily evidenced one for a lift clearly beyond 1.
+   */
+  public static final double NULL_MODEL_TOLERANCE = 0.1;
+
   /** The measures that read E, the pair count expected under a null model. */
   private record NullModelMeasures(double lift, double liftLower, double liftUpper, double shrunkLift, double leverage,
       double convictionAB, double convictionBA, double gSquared, double signedRootGSquared, double gSquaredPValue) {
@@ -140,7 +150,8 @@ public final class PairMeasures {
     adjusted = counts.isStratified() ? adjusted(counts, point, expectedPoint, settings) : unadjusted;
     double upperA = Math.min(counts.countA().upper(), baskets);
     double upperB = Math.min(counts.countB().upper(), baskets);
-    associationPValue = poissonUpperTail(Math.min(counts.countAB().lower(), Math.min(upperA, upperB)), expected.upper());
+    associationPValue = gammaPoissonUpperTail(Math.min(counts.countAB().lower(), Math.min(upperA, upperB)),
+        expected.upper(), NULL_MODEL_TOLERANCE);
   }
 
   /** The size-adjusted measures: E from basket-size classes in place of n_a·n_b/N (see the class comment). */
@@ -169,6 +180,25 @@ public final class PairMeasures {
     }
     double logTerm = observed == 0 ? 0.0 : observed * Math.log(observed / expected);
     return Math.max(0.0, 2.0 * (logTerm - (observed - expected)));
+  }
+
+  /**
+   * P(X ≥ x) for X ~ Poisson(λ·mean) with λ ~ Gamma(1/τ², rate 1/τ²) (mean 1, coefficient of variation τ): the
+   * negative binomial with mean E and variance E + τ²E², continued to real x by the regularised incomplete beta
+   * function, I_{E/(E + r)}(x, r) with r = 1/τ² (exact for whole x); τ = 0 is the Poisson tail. 1 when x ≤ 0.
+   */
+  static double gammaPoissonUpperTail(double x, double mean, double tolerance) {
+    if (!(x > 0)) {
+      return 1.0;
+    }
+    if (!(mean > 0)) {
+      return 0.0;
+    }
+    if (tolerance == 0) {
+      return poissonUpperTail(x, mean);
+    }
+    double r = 1.0 / (tolerance * tolerance);
+    return org.apache.commons.math3.special.Beta.regularizedBeta(mean / (mean + r), x, r);
   }
 
   /**
@@ -293,8 +323,10 @@ public final class PairMeasures {
 
   /**
    * One-sided p-value of the size-adjusted association at the sketch's least favourable bounds:
-   * P(X ≥ n_ab.lower) for X ~ Poisson(E.upper). Small when the pair occurs together more often than the null
-   * model allows even at the bounds; the offer lists pass it through a multiplicity step.
+   * P(X ≥ n_ab.lower) for X ~ Poisson(λ·E.upper), λ ~ Gamma with mean 1 and coefficient of variation
+   * {@link #NULL_MODEL_TOLERANCE} (a negative binomial). Small when the pair occurs together more often than the
+   * null model allows even at the bounds and its own tolerance; the offer lists pass it through a multiplicity
+   * step.
    */
   public double associationPValue() {
     return associationPValue;

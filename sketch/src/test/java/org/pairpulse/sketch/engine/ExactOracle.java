@@ -85,20 +85,26 @@ final class ExactOracle {
   }
 
   /**
-   * E = Σ_c n_a,c·n_b,c / N_c over the size classes that hold pairs, recomputed from every basket (the class of a
-   * basket is that of its number of distinct items): returns a function of the pair.
+   * E = Σ_c ρ_c·n_a,c·n_b,c / N_c, ρ_c = N_c·Σk(k − 1) / (Σk)² over each class's baskets, over the size classes that
+   * hold pairs, recomputed from every basket (the class of a basket is that of its number k of distinct items):
+   * returns a function of the pair.
    */
   java.util.function.ToDoubleBiFunction<String, String> stratifiedExpected(HorizonSpec h,
       org.pairpulse.sketch.stats.SizeClasses classes) {
     int count = classes.count();
     double[] n = new double[count];
+    double[] slots = new double[count];
+    double[] pairSlots = new double[count];
     Map<String, double[]> byItem = new HashMap<>();
     for (Basket basket : baskets) {
       double w = weight(h, basket.eventMillis);
-      int c = classes.classOf(basket.items.size());
+      int k = basket.items.size();
+      int c = classes.classOf(k);
       n[c] += w;
+      slots[c] += w * k;
+      pairSlots[c] += w * k * (k - 1.0);
       for (String item : basket.items) {
-        byItem.computeIfAbsent(item, k -> new double[count])[c] += w;
+        byItem.computeIfAbsent(item, key -> new double[count])[c] += w;
       }
     }
     return (a, b) -> {
@@ -106,8 +112,9 @@ final class ExactOracle {
       double[] nb = byItem.getOrDefault(b, new double[count]);
       double sum = 0;
       for (int c = 0; c < count; c++) {
-        if (n[c] > 0 && !classes.pairless(c)) {
-          sum += na[c] * nb[c] / n[c];
+        if (n[c] > 0 && pairSlots[c] > 0 && !classes.pairless(c)) {
+          double rho = n[c] * pairSlots[c] / (slots[c] * slots[c]);
+          sum += rho * na[c] * nb[c] / n[c];
         }
       }
       return sum;

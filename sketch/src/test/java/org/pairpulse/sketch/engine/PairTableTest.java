@@ -44,19 +44,19 @@ class PairTableTest {
     assertEquals(1.0, beerToDiapers, 1e-12);
     assertEquals(0.75, diapersToBeer, 1e-12);
     assertEquals(1.25, diapersBeer.measures().liftUnadjusted(), 1e-12);
-    // size-adjusted (hand-computed): one basket of 2 items, four of 4 (class 4-5); Diapers and Beer only in the
-    // four: E = 4·3/4 = 3 = n_ab, lift 1: the textbook 1.25 is the basket-size effect
-    assertEquals(3.0, diapersBeer.counts().expectedCountAB().value(), 1e-12);
-    assertEquals(1.0, diapersBeer.measures().lift(), 1e-12);
-    // {Milk, Bread}: 3 of 5 baskets, each in 4: textbook lift = 0.6 / 0.64; adjusted E = 1·1/1 + 3·3/4 = 3.25
+    // size-adjusted (hand-computed): one basket of 2 items, four of 4 (class 4-5, ρ = 4·(4·12)/16² = 3/4, the slot
+    // correction (k − 1)/k); Diapers and Beer only in the four: E = 3/4·4·3/4 = 2.25, lift 3/2.25 = 4/3
+    assertEquals(2.25, diapersBeer.counts().expectedCountAB().value(), 1e-12);
+    assertEquals(4.0 / 3, diapersBeer.measures().lift(), 1e-12);
+    // {Milk, Bread}: 3 of 5 baskets, each in 4: textbook lift = 0.6 / 0.64; adjusted E = 1/2·1·1/1 + 3/4·3·3/4 = 2.1875
     PairStats milkBread = table.pair("Milk", "Bread", "baseline").orElseThrow();
     assertEquals(0.6 / 0.64, milkBread.measures().liftUnadjusted(), 1e-12);
-    assertEquals(3 / 3.25, milkBread.measures().lift(), 1e-12);
+    assertEquals(3 / 2.1875, milkBread.measures().lift(), 1e-12);
     // decayed horizon: the five lie 4 s apart in a 6 h half-life, so weights differ by < 2^(4/21600) − 1
-    // ≈ 1.3e-4 and the lift stays within that of 1.25 (textbook) and of 1 (adjusted)
+    // ≈ 1.3e-4 and the lift stays within that of 1.25 (textbook) and of 4/3 (adjusted)
     PairStats recent = table.pair("Beer", "Diapers", "recent").orElseThrow();
     assertEquals(1.25, recent.measures().liftUnadjusted(), 1.25 * 2e-4);
-    assertEquals(1.0, recent.measures().lift(), 2e-4);
+    assertEquals(4.0 / 3, recent.measures().lift(), 3e-4);
     assertEquals(T0 + 4000, table.watermarkMillis());
     assertEquals(1, table.version());
     assertEquals(List.of("recent", "day", "baseline"), table.horizonNames());

@@ -119,7 +119,8 @@ class SizeAdjustedMeasuresTest {
     PairCounts open = PairCounts.exact(1_000, 100, 200, 40).withStratifiedExpected(new Estimate(25, 0, 30));
     assertEquals(Double.POSITIVE_INFINITY, PairMeasures.of(open).liftUpper());
     // the offer test reads the least favourable bounds: E.upper
-    assertEquals(PairMeasures.poissonUpperTail(40, 30), b.associationPValue(), 0.0);
+    assertEquals(PairMeasures.gammaPoissonUpperTail(40, 30, PairMeasures.NULL_MODEL_TOLERANCE), b.associationPValue(),
+        0.0);
   }
 
   @Test
@@ -132,6 +133,20 @@ class SizeAdjustedMeasuresTest {
       }
     }
     assertEquals(1.0, PairMeasures.poissonUpperTail(0, 5));
+    // the gamma–Poisson tail against a direct sum of the negative binomial: r = 100 (τ 0.1), mean 50, x 70
+    double r = 100;
+    double p = r / (r + 50);
+    double term = Math.pow(p, r); // P(X = 0)
+    double below = 0;
+    for (int k = 0; k < 70; k++) {
+      below += term;
+      term *= (k + r) / (k + 1) * (1 - p);
+    }
+    assertEquals(1 - below, PairMeasures.gammaPoissonUpperTail(70, 50, 0.1), 1e-9);
+    assertEquals(PairMeasures.poissonUpperTail(70, 50), PairMeasures.gammaPoissonUpperTail(70, 50, 0), 0.0);
+    // a 5% excess over E = 15,000 is no evidence under a 10% tolerance; a doubling is
+    assertTrue(PairMeasures.gammaPoissonUpperTail(15_750, 15_000, 0.1) > 0.3);
+    assertTrue(PairMeasures.gammaPoissonUpperTail(30_000, 15_000, 0.1) < 1e-6);
     assertEquals(0.0, PairMeasures.poissonUpperTail(2, 0));
   }
 
