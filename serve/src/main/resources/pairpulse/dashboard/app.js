@@ -125,8 +125,9 @@
     if (!(sk.horizons || []).length) { bounds.textContent = 'not reported'; }
     renderEvaluation(s.evaluation);
     $('floor').textContent = count(s.serving.cohortFloor);
-    $('drift-hint').textContent = s.drift ? 'recent against baseline · enter at √G² ≥ ' + fmt(s.drift.enterRootG2, 1) +
-      ' and lift ×' + fmt(s.drift.enterLiftRatio, 1) : 'recent against baseline';
+    $('drift-hint').textContent = s.drift ? s.drift.recentHorizon + ' against ' + s.drift.referenceHorizon +
+      ' · rate or association moved at √G² ≥ ' + fmt(s.drift.enterRootG2, 1) + ' and ×' + fmt(s.drift.enterRatio, 1) :
+      'recent against the reference period';
   }
 
   var METHOD_NAMES = { incremental: 'served', nightly: 'daily rebuild', popular: 'most popular' };
@@ -279,6 +280,11 @@
     return api('/api/v1/trend/pair', { a: a, b: b }).then(pairChart);
   }
 
+  /** A ratio for people: ×3.2, or "from none" when the reference had none (JSON carries no infinity). */
+  function ratio(x) {
+    return x === null || x === undefined ? 'from none' : '×' + fmt(x, x >= 10 ? 0 : 2);
+  }
+
   function driftList(target, entries, kind) {
     clear(target);
     if (!entries.length) {
@@ -298,9 +304,11 @@
       if (kind === 'bundle') {
         facts.textContent = 'both confidences ≥ ' + fmt(e.recentMinConfidence, 2) + ' · ' + count(e.recentPairBaskets) + ' recent baskets · since ' + when(e.sinceMillis);
       } else {
-        facts.appendChild(document.createTextNode('lift ' + fmt(e.baselineLift, 1) + ' → '));
-        facts.appendChild(el('span', kind === 'emerging' ? 'up-text' : 'down-text', fmt(e.recentLift, 1)));
-        facts.appendChild(document.createTextNode(' · √G² ' + fmt(e.signedRootG2, 1) + ' · since ' + when(e.sinceMillis)));
+        facts.appendChild(document.createTextNode((e.change ? e.change + ' · ' : '') + 'per basket '));
+        facts.appendChild(el('span', kind === 'emerging' ? 'up-text' : 'down-text', ratio(e.rateRatio)));
+        facts.appendChild(document.createTextNode(' · odds ratio ' + ratio(e.oddsRatioRatio) + ' · ' +
+          count(e.baselinePairBaskets) + ' → ' + count(e.recentPairBaskets) + ' baskets · since ' + when(e.sinceMillis)));
+        facts.title = e.summary || '';
       }
       li.appendChild(facts);
       if (kind !== 'bundle') {
@@ -349,8 +357,9 @@
         li.appendChild(el('div', 'what', a.kind + ' ' + a.transition + ' · ' + pairName(a.a, a.b)));
         var ev = a.evidence;
         var detail = when(a.atMillis);
-        if (ev && a.kind !== 'bundle') { detail += ' · lift ' + fmt(ev.baselineLift, 1) + ' → ' + fmt(ev.recentLift, 1) + ' · √G² ' + fmt(ev.signedRootG2, 1); }
+        if (ev && a.kind !== 'bundle') { detail += ' · ' + (a.change || 'evidence') + ' · per basket ' + ratio(ev.rateRatio) + ' · odds ratio ' + ratio(ev.oddsRatioRatio); }
         li.appendChild(el('div', 'when', detail));
+        if (a.summary && a.transition === 'raised') { li.appendChild(el('div', 'why', a.summary)); }
         list.appendChild(li);
       });
     });

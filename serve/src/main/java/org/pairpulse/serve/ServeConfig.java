@@ -76,16 +76,17 @@ public final class ServeConfig {
   public static final String ALERT_HISTORY = define("serve.alerts.history", Type.INT, "500", "1..100000",
       "alert events kept for the alert history endpoint", v -> (int) v >= 1 && (int) v <= 100_000);
   public static final String DRIFT_ENTER_ROOT_G2 = define("drift.enterRootG2", Type.DOUBLE, "5.0", ">= drift.exitRootG2",
-      "size of signed √G² needed to enter emerging (≥) or fading (≤ its negative); p ≈ 5.7e-7", v -> (double) v >= 0);
+      "size of signed √G² a drift test (rate or association) needs to count as moved; p ≈ 5.7e-7", v -> (double) v >= 0);
   public static final String DRIFT_EXIT_ROOT_G2 = define("drift.exitRootG2", Type.DOUBLE, "3.0", ">= 0",
-      "an active emerging / fading alert clears below this", v -> (double) v >= 0);
-  public static final String DRIFT_ENTER_RATIO = define("drift.enterLiftRatio", Type.DOUBLE, "1.5",
-      ">= drift.exitLiftRatio", "lift recent / baseline needed to enter emerging (its inverse: fading)",
+      "an active emerging / fading alert clears when neither test stays this strong", v -> (double) v >= 0);
+  public static final String DRIFT_ENTER_RATIO = define("drift.enterRatio", Type.DOUBLE, "1.5",
+      ">= drift.exitRatio", "rate ratio or odds-ratio ratio (recent / reference) needed to enter emerging (its inverse: fading)",
       v -> (double) v >= 1);
-  public static final String DRIFT_EXIT_RATIO = define("drift.exitLiftRatio", Type.DOUBLE, "1.2", ">= 1",
-      "an active alert clears when the lift ratio is back within [1/x, x]", v -> (double) v >= 1);
+  public static final String DRIFT_EXIT_RATIO = define("drift.exitRatio", Type.DOUBLE, "1.2", ">= 1",
+      "an active alert clears when its ratios are back within [1/x, x]", v -> (double) v >= 1);
   public static final String DRIFT_BUNDLE_EXIT = define("drift.bundleExitConfidence", Type.DOUBLE, "0.90", "(0, 1]",
-      "an active new-bundle alert clears when a confidence falls below this", v -> (double) v > 0 && (double) v <= 1);
+      "a new-bundle alert needs the reference period's smaller confidence below this, and clears when a recent one"
+          + " falls below it", v -> (double) v > 0 && (double) v <= 1);
   public static final String DRIFT_DWELL = define("drift.minDwellMillis", Type.LONG, "900000", ">= 0",
       "how long an entry (or exit) condition must hold before an alert is raised (or resolved)", v -> (long) v >= 0);
   public static final String DRIFT_COOLDOWN = define("drift.cooldownMillis", Type.LONG, "21600000", ">= 0",
@@ -239,7 +240,7 @@ public final class ServeConfig {
 
   /** Drift thresholds from the drift.* keys. */
   public DriftSettings driftSettings() {
-    return new DriftSettings("recent", "baseline", doubleValue(DRIFT_ENTER_ROOT_G2), doubleValue(DRIFT_EXIT_ROOT_G2),
+    return new DriftSettings("recent", DriftSettings.REFERENCE_HORIZON, doubleValue(DRIFT_ENTER_ROOT_G2), doubleValue(DRIFT_EXIT_ROOT_G2),
         doubleValue(DRIFT_ENTER_RATIO), doubleValue(DRIFT_EXIT_RATIO), doubleValue(DRIFT_BUNDLE_EXIT),
         longValue(DRIFT_DWELL), longValue(DRIFT_COOLDOWN), intValue(DRIFT_REPORTED));
   }

@@ -124,11 +124,11 @@ public final class BacktestJson {
     DriftSettings drift = settings.drift();
     json.writeObjectFieldStart("drift");
     json.writeStringField("recentHorizon", drift.recentHorizon());
-    json.writeStringField("baselineHorizon", drift.baselineHorizon());
+    json.writeStringField("referenceHorizon", drift.referenceHorizon());
     number(json, "enterRootG2", drift.enterRootG2());
     number(json, "exitRootG2", drift.exitRootG2());
-    number(json, "enterLiftRatio", drift.enterLiftRatio());
-    number(json, "exitLiftRatio", drift.exitLiftRatio());
+    number(json, "enterRatio", drift.enterRatio());
+    number(json, "exitRatio", drift.exitRatio());
     number(json, "bundleExitConfidence", drift.bundleExitConfidence());
     json.writeNumberField("minDwellMillis", drift.minDwellMillis());
     json.writeNumberField("cooldownMillis", drift.cooldownMillis());
@@ -197,13 +197,21 @@ public final class BacktestJson {
       json.writeNullField("evidence");
     } else {
       json.writeObjectFieldStart("evidence");
+      json.writeStringField("change", alert.change() == null ? null : alert.change().wireName());
+      json.writeStringField("summary", alert.summary());
       number(json, "signedRootG2", finding.signedRootG2());
       number(json, "pValue", finding.pValue());
+      number(json, "rateRootG2", finding.rateRootG2());
+      number(json, "associationRootG2", finding.associationRootG2());
+      number(json, "rateRatio", finding.rateRatio());
+      number(json, "oddsRatioRatio", finding.oddsRatioRatio());
       number(json, "recentLift", finding.recentLift());
       number(json, "baselineLift", finding.baselineLift());
       number(json, "liftRatio", finding.liftRatio());
       number(json, "recentPairBaskets", finding.recentPairBaskets());
       number(json, "baselinePairBaskets", finding.baselinePairBaskets());
+      number(json, "recentBaskets", finding.recentBaskets());
+      number(json, "referenceBaskets", finding.referenceBaskets());
       number(json, "recentMinConfidence", finding.recentMinConfidence());
       json.writeBooleanField("recentBundle", finding.recentBundle());
       json.writeBooleanField("baselineBundle", finding.baselineBundle());

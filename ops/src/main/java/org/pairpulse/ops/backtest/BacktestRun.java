@@ -143,10 +143,8 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
         out.printf(Locale.ROOT, "    ... (%d more in %s)%n", raised - 10, JSON_FILE);
         break;
       }
-      out.printf(Locale.ROOT, "    %s %-8s %s + %s%s%n", Instant.ofEpochMilli(alert.atMillis()), alert.kind().wireName(),
-          alert.pair().first(), alert.pair().second(), alert.evidence() == null ? ""
-              : String.format(Locale.ROOT, "  (lift %.2f -> %.2f, signed root G2 %.1f)", alert.evidence().baselineLift(),
-                  alert.evidence().recentLift(), alert.evidence().signedRootG2()));
+      out.printf(Locale.ROOT, "    %s %-8s %s + %s: %s%n", Instant.ofEpochMilli(alert.atMillis()), alert.kind().wireName(),
+          alert.pair().first(), alert.pair().second(), alert.summary());
     }
     Evaluator evaluation = result.evaluation();
     if (evaluation != null) {

@@ -65,9 +65,11 @@ public record BacktestSettings(EngineConfig engine, DriftSettings drift, double 
     if (summaryTop < 0 || summaryTop > 10_000) {
       throw new IllegalArgumentException("summaryTop must be in 0..10000, got " + summaryTop);
     }
-    for (String horizon : new String[] {drift.recentHorizon(), drift.baselineHorizon()}) {
-      if (engine.horizons().stream().noneMatch(h -> h.name().equals(horizon))) {
-        throw new IllegalArgumentException("drift horizon '" + horizon + "' is not an engine horizon");
+    for (String horizon : new String[] {drift.recentHorizon(), drift.referenceHorizon()}) {
+      if (engine.horizons().stream().noneMatch(h -> h.name().equals(horizon))
+          && !horizon.equals(EngineConfig.TRACKING_HORIZON_NAME)) {
+        throw new IllegalArgumentException("drift horizon '" + horizon + "' is not an engine horizon (nor '"
+            + EngineConfig.TRACKING_HORIZON_NAME + "', the tracking decay)");
       }
     }
     if (evaluation != null && engine.horizons().stream().noneMatch(h -> h.name().equals(evaluation.horizon()))) {

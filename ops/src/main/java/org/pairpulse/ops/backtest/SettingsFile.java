@@ -23,6 +23,7 @@ import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Measure;
+import org.pairpulse.sketch.stats.SizeClasses;
 
 /**
  * Reads backtest settings from a Java properties file ({@code --config}). It shares the key names of the other
@@ -37,7 +38,8 @@ import org.pairpulse.sketch.stats.Measure;
  *   <li>engine keys: {@code engine.trackedPairCapacity}, {@code engine.trackedItemCapacity},
  *       {@code engine.pairEpsilon}, {@code engine.pairDelta}, {@code engine.itemEpsilon}, {@code engine.itemDelta},
  *       {@code engine.decayPairEpsilon}, {@code engine.maxPairsPerBasket}, {@code engine.trackingHalfLifeMillis},
- *       {@code engine.seed}, and the run configuration's horizon keys {@code horizon.recent.halfLifeMillis},
+ *       {@code engine.seed}, {@code engine.sizeClasses} (basket-size classes of the size-adjusted measures, e.g.
+ *       {@code 1,2,3,4-5,6+}; {@code 1+} for the textbook measures), and the run configuration's horizon keys {@code horizon.recent.halfLifeMillis},
  *       {@code horizon.day.lengthMillis}, {@code horizon.day.panes}, {@code horizon.baseline.lengthMillis},
  *       {@code horizon.baseline.panes} (applied to the engine's horizons of those names, as {@link RunConfig} does);</li>
  *   <li>backtest keys: {@code backtest.refreshEveryMillis}, {@code backtest.summaryEveryMillis},
@@ -54,7 +56,7 @@ import org.pairpulse.sketch.stats.Measure;
 public final class SettingsFile {
   private static final List<String> ENGINE_KEYS = List.of("engine.trackedPairCapacity", "engine.trackedItemCapacity",
       "engine.pairEpsilon", "engine.pairDelta", "engine.itemEpsilon", "engine.itemDelta", "engine.decayPairEpsilon",
-      "engine.maxPairsPerBasket", "engine.trackingHalfLifeMillis", "engine.seed");
+      "engine.maxPairsPerBasket", "engine.trackingHalfLifeMillis", "engine.seed", "engine.sizeClasses");
   private static final List<String> BACKTEST_KEYS = List.of("backtest.refreshEveryMillis", "backtest.summaryEveryMillis",
       "backtest.summaryTop", "evaluation.share", "evaluation.seed", "evaluation.k", "evaluation.horizon",
       "evaluation.measure", "evaluation.minConfidence", "evaluation.maxConfidence", "evaluation.includeBundles",
@@ -175,6 +177,9 @@ public final class SettingsFile {
     engine.maxPairsPerBasket(intOf(values, "engine.maxPairsPerBasket", current.maxPairsPerBasket()));
     engine.trackingHalfLifeMillis(longOf(values, "engine.trackingHalfLifeMillis", current.trackingHalfLifeMillis()));
     engine.seed(longOf(values, "engine.seed", current.seed()));
+    if (values.containsKey("engine.sizeClasses")) {
+      engine.sizeClasses(SizeClasses.parse(values.get("engine.sizeClasses")));
+    }
     engine.horizons(horizons(values, current.horizons()));
     settings = settings.withEngine(engine.build());
     settings = settings.withRefreshEveryMillis(longOf(values, "backtest.refreshEveryMillis", settings.refreshEveryMillis()))

@@ -48,8 +48,8 @@ public final class ShortlistHtml {
         .append(" · suggestion pairs from the <b>").append(text(settings.horizon())).append("</b> horizon with confidence ")
         .append(fixed(settings.minConfidence(), 2)).append("–").append(fixed(settings.maxConfidence(), 2))
         .append(" · emerging: ").append(text(settings.drift().recentHorizon())).append(" against ")
-        .append(text(settings.drift().baselineHorizon())).append(", signed √G² ≥ ")
-        .append(fixed(settings.drift().enterRootG2(), 1)).append(" and lift ratio ≥ ")
+        .append(text(settings.drift().referenceHorizon())).append(", signed √G² ≥ ")
+        .append(fixed(settings.drift().enterRootG2(), 1)).append(" (rate or association) and ratio ≥ ")
         .append(fixed(settings.drift().enterRatio(), 2)).append(" · cohort floor ")
         .append(fixed(settings.cohortFloor(), 0)).append(" distinct baskets</p>\n");
     html.append("<p class=\"legend\">Charts: the lift interval on a log axis (dashed line: lift 1, independence; dot: the"

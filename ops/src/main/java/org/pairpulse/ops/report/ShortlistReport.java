@@ -162,7 +162,7 @@ public record ShortlistReport(ShortlistSettings settings, long asOfMillis, List<
   static List<ShortlistRow> suggestions(FlooredTable table, DriftMonitor drift, ShortlistSettings settings) {
     List<ShortlistRow> rows = new ArrayList<>();
     String recent = settings.drift().recentHorizon();
-    String baseline = settings.drift().baselineHorizon();
+    String baseline = settings.drift().referenceHorizon();
     OfferScreen.Horizon screen = OfferScreen.of(table).horizon(settings.horizon());
     for (PairStats stats : table.pairs(settings.horizon())) {
       PairMeasures m = stats.measures();

@@ -154,7 +154,7 @@ public final class AlertMachine {
       track.state = State.ACTIVE;
       track.raisedAtMillis = nowMillis;
       events.add(AlertEvent.of(key.kind(), AlertTransition.RAISED, segment, key.pair(), nowMillis, track.sinceMillis,
-          version, now));
+          version, now, now.changeFor(key.kind(), settings)));
       return true;
     }
     if (track.state == State.ACTIVE) {

@@ -9,6 +9,9 @@ package org.pairpulse.serve.drift;
  * @param sinceMillis when the condition began to hold
  * @param raisedAtMillis when the alert was raised, or null if it was not
  * @param finding the newest evidence
+ * @param change what the newest evidence shows as changed for this kind (null for a bundle, or when the entry
+ *     condition no longer holds)
+ * @param summary the newest evidence in plain words ({@link DriftWords})
  */
 public record DriftEntry(AlertKind kind, AlertMachine.State state, long sinceMillis, Long raisedAtMillis,
-    DriftFinding finding) {}
+    DriftFinding finding, DriftChange change, String summary) {}

@@ -1,72 +1,165 @@
 package org.pairpulse.serve.drift;
 
 import org.pairpulse.serve.floor.PairKey;
+import org.pairpulse.sketch.stats.PairCounts;
+import org.pairpulse.sketch.stats.MeasureSettings;
 import org.pairpulse.sketch.stats.PairMeasures;
 import org.pairpulse.sketch.table.PairStats;
 
 /**
- * One pair's comparison of {@code recent} against {@code baseline} at one table version: the
- * evidence an emerging, fading or new-bundle alert carries.
+ * One pair's comparison of the recent period against the reference period at one table version:
+ * the evidence an emerging, fading or new-bundle alert carries. The two tests of {@link
+ * DriftStatistics} are kept apart: (a) the rate per basket, (b) the association (odds ratio).
+ *
+ * <h2>Entry conditions (z = enterRootG2, R = enterRatio, z′ = exitRootG2)</h2>
+ * <ul>
+ *   <li><b>emerging</b>, with the {@link DriftChange} it reports:
+ *     <ul>
+ *       <li>{@code both}: rate root ≥ z and association root ≥ z, rate ratio ≥ R and odds-ratio ratio ≥ R;</li>
+ *       <li>{@code association}: association root ≥ z, odds-ratio ratio ≥ R, rate root &gt; −z′ (the rate does
+ *           not fall);</li>
+ *       <li>{@code rate}: rate root ≥ z, rate ratio ≥ R, association root &gt; −z′, the association <em>not
+ *           shown unchanged</em> ({@link DriftStatistics#associationShownUnchanged}: ln of the odds-ratio ratio ± one
+ *           standard error inside ±ln R) and the pair
+ *           associated now (recent lift lower bound &gt; 1).</li>
+ *     </ul>
+ *   <li><b>fading</b>: the mirror image (roots ≤ −z, ratios ≤ 1/R; for {@code rate}, associated in the
+ *       reference period).</li>
+ *   <li><b>bundle</b>: a bundle pair now (both confidences ≥ the table's bundle threshold) whose smaller
+ *       confidence in the reference period was below {@code bundleExitConfidence}: it was clearly not
+ *       near-certain before, so a steady near-certain pair never enters.</li>
+ * </ul>
+ * A move of one item's popularity alone moves the rate but not the association; on a pair with enough
+ * evidence the association is then shown unchanged and nothing enters, and on a pair without association
+ * now the {@code rate} route is closed. The direction of an alert never contradicts either test: emerging
+ * needs neither root significantly negative, fading neither significantly positive.
+ *
+ * <h2>Exit conditions</h2>
+ * An active emerging alert clears when neither root stays ≥ z′ with its ratio ≥ exitRatio (fading: the
+ * mirror); a bundle alert clears when the smaller recent confidence falls below {@code bundleExitConfidence}.
  *
  * @param pair the pair
- * @param signedRootG2 signed √G² of the two-rate test ({@link DriftStatistics#conservativeRootG2}); positive: lift rose
+ * @param signedRootG2 the stronger of the two roots (rate or association): the finding's strength
  * @param pValue its two-sided p-value
- * @param recentLift lift in recent
- * @param baselineLift lift in baseline
- * @param liftRatio lift recent / lift baseline (the effect size; significance comes from the G² test, so a
- *     thin pair cannot pass on its ratio alone)
- * @param recentPairBaskets n_ab in recent (decayed units)
- * @param baselinePairBaskets n_ab in baseline (baskets)
- * @param recentMinConfidence the smaller of the two confidences in recent
- * @param recentBundle whether the pair is a bundle pair in recent
- * @param baselineBundle whether it is one in baseline
+ * @param rateRootG2 signed √G² of the rate test (positive: the pair is bought together more often per basket)
+ * @param associationRootG2 signed √G² of the association test (positive: the odds ratio rose)
+ * @param rateRatio rate per basket now / in the reference period (point values; +∞ from nothing)
+ * @param oddsRatioRatio odds ratio now / in the reference period (0.5 added to every cell)
+ * @param associationUnchanged whether the association is shown unchanged within enterRatio (see above)
+ * @param recentLift lift now
+ * @param baselineLift lift in the reference period
+ * @param liftRatio lift now / in the reference period (for people: lift moves with the margins)
+ * @param recentPairBaskets n_ab now (the recent horizon's units)
+ * @param baselinePairBaskets n_ab in the reference period (its units)
+ * @param recentBaskets N now
+ * @param referenceBaskets N in the reference period
+ * @param recentLiftLower the lower bound of the recent lift interval
+ * @param referenceLiftLower the lower bound of the reference lift interval
+ * @param recentMinConfidence the smaller of the two confidences now
+ * @param referenceMinConfidence the smaller of the two confidences in the reference period
+ * @param recentBundle whether the pair is a bundle pair now
+ * @param baselineBundle whether it is one in the reference period
  * @param trackedSinceMillis event time at which the pair entered the tracked table
  */
-public record DriftFinding(PairKey pair, double signedRootG2, double pValue, double recentLift, double baselineLift,
-    double liftRatio, double recentPairBaskets, double baselinePairBaskets, double recentMinConfidence,
-    boolean recentBundle, boolean baselineBundle, long trackedSinceMillis) {
+public record DriftFinding(PairKey pair, double signedRootG2, double pValue, double rateRootG2,
+    double associationRootG2, double rateRatio, double oddsRatioRatio, boolean associationUnchanged, double recentLift,
+    double baselineLift, double liftRatio, double recentPairBaskets, double baselinePairBaskets, double recentBaskets,
+    double referenceBaskets, double recentLiftLower, double referenceLiftLower, double recentMinConfidence,
+    double referenceMinConfidence, boolean recentBundle, boolean baselineBundle, long trackedSinceMillis) {
 
   /**
-   * The finding for one pair from its statistics in the two horizons; {@code recentFactor} and
-   * {@code baselineFactor} turn each horizon's counts into effective counts
-   * ({@link DriftStatistics#decayEffectiveCountFactor}).
+   * Width, in standard errors, of the odds-ratio-ratio interval that shows an association unchanged (the
+   * {@code rate} route's gate against popularity moves): one standard error, so that the gate closes on
+   * pairs with moderate evidence too; a change whose reference odds ratio is unknown (a pair from nothing,
+   * an item bought only with the pair) has an interval far wider than that and passes.
    */
-  public static DriftFinding of(PairStats recent, PairStats baseline, double recentFactor, double baselineFactor) {
+  static final double UNCHANGED_STANDARD_ERRORS = 1.0;
+
+  /**
+   * The finding for one pair from its statistics in the two periods; {@code recentFactor} and
+   * {@code referenceFactor} turn each period's counts into effective counts
+   * ({@link DriftStatistics#effectiveCountFactor}).
+   */
+  public static DriftFinding of(PairStats recent, PairStats reference, double recentFactor, double referenceFactor,
+      DriftSettings settings) {
     PairMeasures r = recent.measures();
-    PairMeasures b = baseline.measures();
-    double root = DriftStatistics.conservativeRootG2(recent.counts(), recentFactor, baseline.counts(), baselineFactor);
-    return new DriftFinding(PairKey.of(recent.itemA(), recent.itemB()), root, DriftStatistics.pValue(root), r.lift(),
-        b.lift(), r.lift() / b.lift(), recent.counts().countAB().value(),
-        baseline.counts().countAB().value(), Math.min(r.confidenceAB(), r.confidenceBA()), r.isBundle(), b.isBundle(),
-        recent.trackedSinceMillis());
+    PairMeasures b = reference.measures();
+    PairCounts rc = recent.counts();
+    PairCounts bc = reference.counts();
+    double rateRoot = DriftStatistics.rateRootG2(rc, recentFactor, bc, referenceFactor);
+    double associationRoot = DriftStatistics.associationRootG2(rc, recentFactor, bc, referenceFactor);
+    double strongest = !(Math.abs(associationRoot) > Math.abs(rateRoot)) ? rateRoot : associationRoot;
+    double rateRatio = (rc.countAB().value() / rc.baskets()) / (bc.countAB().value() / bc.baskets());
+    double oddsRatioRatio = Math.exp(DriftStatistics.logOddsRatioRatio(rc, recentFactor, bc, referenceFactor));
+    boolean unchanged = DriftStatistics.associationShownUnchanged(rc, recentFactor, bc, referenceFactor,
+        UNCHANGED_STANDARD_ERRORS, settings.enterRatio());
+    return new DriftFinding(PairKey.of(recent.itemA(), recent.itemB()), strongest, DriftStatistics.pValue(strongest),
+        rateRoot, associationRoot, rateRatio, oddsRatioRatio, unchanged, r.lift(), b.lift(), r.lift() / b.lift(),
+        rc.countAB().value(), bc.countAB().value(), rc.baskets(), bc.baskets(), r.liftLower(), b.liftLower(),
+        Math.min(r.confidenceAB(), r.confidenceBA()), Math.min(b.confidenceAB(), b.confidenceBA()), r.isBundle(),
+        b.isBundle(), recent.trackedSinceMillis());
   }
 
   /**
-   * Whether a pair could meet any entry condition: a cheap test on its statistics that allocates
-   * nothing, so the monitor builds findings only for the few pairs that pass it.
+   * Whether a pair could meet any entry condition: a cheap test on its statistics (the rate test and the
+   * effect sizes, no fitting), so the monitor builds findings only for the few pairs that pass it.
    */
-  static boolean mayEnter(PairStats recent, PairStats baseline, double recentFactor, double baselineFactor,
+  static boolean mayEnter(PairCounts recent, PairCounts reference, double recentFactor, double referenceFactor,
       DriftSettings s) {
-    if (recent.measures().isBundle() && !baseline.measures().isBundle()) {
+    double ab = recent.countAB().value();
+    if (ab >= MeasureSettings.defaults().bundleConfidence() * Math.max(recent.countA().value(), recent.countB().value())) {
+      double referenceAB = reference.countAB().value();
+      double referenceMax = Math.max(reference.countA().value(), reference.countB().value());
+      return !(referenceAB >= s.bundleExitConfidence() * referenceMax);
+    }
+    double rate = DriftStatistics.rateRootG2(recent, recentFactor, reference, referenceFactor);
+    if (Math.abs(rate) >= s.enterRootG2()) {
       return true;
     }
-    double ratio = recent.measures().lift() / baseline.measures().lift();
-    if (!(ratio >= s.enterLiftRatio() || ratio <= 1.0 / s.enterLiftRatio())) {
-      return false;
+    double logRatio = DriftStatistics.logOddsRatioRatio(recent, recentFactor, reference, referenceFactor);
+    return Math.abs(logRatio) >= Math.log(s.enterRatio());
+  }
+
+  /** The change an emerging alert would report, or null when emerging does not enter. */
+  public DriftChange emergingChange(DriftSettings s) {
+    return change(s, 1.0);
+  }
+
+  /** The change a fading alert would report, or null when fading does not enter. */
+  public DriftChange fadingChange(DriftSettings s) {
+    return change(s, -1.0);
+  }
+
+  /** The entry routes of the class comment; {@code sign} +1 for emerging, −1 for fading. */
+  private DriftChange change(DriftSettings s, double sign) {
+    double rate = sign * rateRootG2;
+    double association = sign * associationRootG2;
+    double rateEffect = sign > 0 ? rateRatio : 1.0 / rateRatio;
+    double oddsEffect = sign > 0 ? oddsRatioRatio : 1.0 / oddsRatioRatio;
+    boolean rateMoved = rate >= s.enterRootG2() && rateEffect >= s.enterRatio();
+    boolean associationMoved = association >= s.enterRootG2() && oddsEffect >= s.enterRatio();
+    if (rateMoved && associationMoved) {
+      return DriftChange.BOTH;
     }
-    double root = DriftStatistics.conservativeRootG2(recent.counts(), recentFactor, baseline.counts(), baselineFactor);
-    return Math.abs(root) >= s.enterRootG2();
+    if (associationMoved && rate > -s.exitRootG2()) {
+      return DriftChange.ASSOCIATION;
+    }
+    double liftLower = sign > 0 ? recentLiftLower : referenceLiftLower;
+    if (rateMoved && association > -s.exitRootG2() && !associationUnchanged && liftLower > 1.0) {
+      return DriftChange.RATE;
+    }
+    return null;
   }
 
   /** Whether this finding meets the entry condition of {@code kind}. */
   public boolean enters(AlertKind kind, DriftSettings s) {
     switch (kind) {
       case EMERGING:
-        return signedRootG2 >= s.enterRootG2() && liftRatio >= s.enterLiftRatio();
+        return emergingChange(s) != null;
       case FADING:
-        return signedRootG2 <= -s.enterRootG2() && liftRatio <= 1.0 / s.enterLiftRatio();
+        return fadingChange(s) != null;
       default:
-        return recentBundle && !baselineBundle;
+        return recentBundle && referenceMinConfidence < s.bundleExitConfidence();
     }
   }
 
@@ -74,11 +167,18 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
   public boolean exits(AlertKind kind, DriftSettings s) {
     switch (kind) {
       case EMERGING:
-        return !(signedRootG2 >= s.exitRootG2() && liftRatio >= s.exitLiftRatio());
+        return !(rateRootG2 >= s.exitRootG2() && rateRatio >= s.exitRatio()
+            || associationRootG2 >= s.exitRootG2() && oddsRatioRatio >= s.exitRatio());
       case FADING:
-        return !(signedRootG2 <= -s.exitRootG2() && liftRatio <= 1.0 / s.exitLiftRatio());
+        return !(rateRootG2 <= -s.exitRootG2() && rateRatio <= 1.0 / s.exitRatio()
+            || associationRootG2 <= -s.exitRootG2() && oddsRatioRatio <= 1.0 / s.exitRatio());
       default:
         return !(recentMinConfidence >= s.bundleExitConfidence());
     }
+  }
+
+  /** The change this finding shows for {@code kind}, or null (bundle alerts and findings that do not enter). */
+  public DriftChange changeFor(AlertKind kind, DriftSettings s) {
+    return kind == AlertKind.EMERGING ? emergingChange(s) : kind == AlertKind.FADING ? fadingChange(s) : null;
   }
 }

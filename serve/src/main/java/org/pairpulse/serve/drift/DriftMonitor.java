@@ -9,11 +9,13 @@ import java.util.Objects;
 import java.util.Optional;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.floor.PairKey;
+import org.pairpulse.sketch.stats.PairCounts;
+import org.pairpulse.sketch.stats.PairMeasures;
 import org.pairpulse.sketch.table.PairStats;
 
 /**
- * Drift detection for one segment: compares {@code recent} with {@code baseline} for every pair
- * published in both (so the cohort floor applies to alerts too), feeds the {@link AlertMachine}
+ * Drift detection for one segment: compares the recent period with the reference period (by default
+ * {@code recent} against the engine's tracking decay) for every pair published in both (so the cohort floor applies to alerts too), feeds the {@link AlertMachine}
  * and keeps the newest {@link DriftReport}.
  *
  * <p>Cost: one pass over the published pairs per table version (a hash lookup and a few logarithms
@@ -24,6 +26,8 @@ public final class DriftMonitor {
   private final String segment;
   private final AlertMachine machine;
   private volatile DriftReport report;
+  /** The watermark of the first table observed: the start of the stream as far as the decays' ages go. */
+  private long firstWatermarkMillis = Long.MIN_VALUE;
 
   public DriftMonitor(DriftSettings settings, String segment) {
     this.settings = Objects.requireNonNull(settings, "settings");
@@ -37,36 +41,87 @@ public final class DriftMonitor {
   }
 
   /** The finding of {a, b} in {@code table}, if the pair is published in both horizons. */
-  public Optional<DriftFinding> finding(FlooredTable table, PairKey pair) {
-    Optional<PairStats> recent = table.pair(pair.first(), pair.second(), settings.recentHorizon());
-    Optional<PairStats> baseline = table.pair(pair.first(), pair.second(), settings.baselineHorizon());
-    return recent.isPresent() && baseline.isPresent()
-        ? Optional.of(DriftFinding.of(recent.get(), baseline.get(), factor(table, settings.recentHorizon()),
-            factor(table, settings.baselineHorizon())))
-        : Optional.empty();
+  public synchronized Optional<DriftFinding> finding(FlooredTable table, PairKey pair) {
+    return finding(table, pair, factors(table));
   }
 
-  /** Effective counts per count of a horizon: 1 for a known window, 2 for a decay (or an unknown horizon). */
-  private static double factor(FlooredTable table, String horizon) {
-    return DriftStatistics.decayEffectiveCountFactor(table.floor().isWindow(horizon));
+  private Optional<DriftFinding> finding(FlooredTable table, PairKey pair, Factors factors) {
+    Optional<PairStats> recent = table.pair(pair.first(), pair.second(), settings.recentHorizon());
+    Optional<PairStats> reference = table.pair(pair.first(), pair.second(), factors.referenceHorizon());
+    if (recent.isEmpty() || reference.isEmpty()) {
+      return Optional.empty();
+    }
+    PairCounts counts = referenceCounts(recent.get(), reference.get(), factors);
+    return Optional.of(DriftFinding.of(recent.get(), withCounts(reference.get(), counts), factors.recent(),
+        factors.reference(), settings));
+  }
+
+  /**
+   * How the two periods are read at one table version: each period's effective-count factor
+   * ({@link DriftStatistics#effectiveCountFactor}, from the stream's age as this monitor saw it, which errs low
+   * after a restart: fewer alerts, never more), and whether the recent decay is taken out of the reference
+   * ({@link DriftStatistics#excluding}: when both are decays and the reference is the longer).
+   */
+  private record Factors(double recent, double reference, boolean excludeRecent, String referenceHorizon) {}
+
+  /**
+   * The reference horizon of {@code table}: the configured one, or, in a table that does not hold it (one not
+   * refreshed from an engine, which always holds its tracking decay), the longest window.
+   */
+  private String referenceHorizon(FlooredTable table) {
+    String configured = settings.referenceHorizon();
+    return table.hasHorizon(configured) ? configured : table.evidenceHorizon().orElse(configured);
+  }
+
+  private Factors factors(FlooredTable table) {
+    long watermark = table.table().watermarkMillis();
+    long age = firstWatermarkMillis == Long.MIN_VALUE || watermark == Long.MIN_VALUE ? 0 : watermark - firstWatermarkMillis;
+    long recentHalfLife = table.halfLifeMillis(settings.recentHorizon());
+    String referenceHorizon = referenceHorizon(table);
+    long referenceHalfLife = table.halfLifeMillis(referenceHorizon);
+    boolean exclude = recentHalfLife > 0 && referenceHalfLife > recentHalfLife;
+    double reference = exclude ? DriftStatistics.effectiveCountFactor(referenceHalfLife, recentHalfLife, age)
+        : DriftStatistics.effectiveCountFactor(referenceHalfLife, age);
+    return new Factors(DriftStatistics.effectiveCountFactor(recentHalfLife, age), reference, exclude, referenceHorizon);
+  }
+
+  /** The reference period's counts of a pair, with the recent decay taken out where {@code factors} say so. */
+  private static PairCounts referenceCounts(PairStats recent, PairStats reference, Factors factors) {
+    if (!factors.excludeRecent()) {
+      return reference.counts();
+    }
+    PairCounts shorter = recent.counts();
+    if (!recent.itemA().equals(reference.itemA())) { // the same pair listed the other way round
+      shorter = new PairCounts(shorter.baskets(), shorter.countB(), shorter.countA(), shorter.countAB());
+    }
+    return DriftStatistics.excluding(reference.counts(), shorter);
+  }
+
+  private static PairStats withCounts(PairStats stats, PairCounts counts) {
+    return counts == stats.counts() ? stats : new PairStats(stats.itemA(), stats.itemB(), stats.horizon(), counts,
+        PairMeasures.of(counts), stats.trackedSinceMillis());
   }
 
   /** Observes one table version at {@code nowMillis}; returns the alert events it caused. */
   public synchronized List<AlertEvent> observe(FlooredTable table, long nowMillis) {
     List<DriftFinding> entering = new ArrayList<>();
+    if (firstWatermarkMillis == Long.MIN_VALUE && table.table().watermarkMillis() != Long.MIN_VALUE) {
+      firstWatermarkMillis = table.table().watermarkMillis();
+    }
     int compared = 0;
-    double recentFactor = factor(table, settings.recentHorizon());
-    double baselineFactor = factor(table, settings.baselineHorizon());
+    Factors factors = factors(table);
     for (PairStats recent : table.pairs(settings.recentHorizon())) {
-      Optional<PairStats> baseline = table.pair(recent.itemA(), recent.itemB(), settings.baselineHorizon());
-      if (baseline.isEmpty()) {
+      Optional<PairStats> reference = table.pair(recent.itemA(), recent.itemB(), factors.referenceHorizon());
+      if (reference.isEmpty()) {
         continue;
       }
       compared++;
-      if (!DriftFinding.mayEnter(recent, baseline.get(), recentFactor, baselineFactor, settings)) {
+      PairCounts counts = referenceCounts(recent, reference.get(), factors);
+      if (!DriftFinding.mayEnter(recent.counts(), counts, factors.recent(), factors.reference(), settings)) {
         continue;
       }
-      DriftFinding finding = DriftFinding.of(recent, baseline.get(), recentFactor, baselineFactor);
+      DriftFinding finding = DriftFinding.of(recent, withCounts(reference.get(), counts), factors.recent(),
+          factors.reference(), settings);
       for (AlertKind kind : AlertKind.values()) {
         if (finding.enters(kind, settings)) {
           entering.add(finding);
@@ -75,7 +130,7 @@ public final class DriftMonitor {
       }
     }
     List<AlertEvent> events = machine.step(nowMillis, table.version(), entering,
-        pair -> finding(table, pair).orElse(null));
+        pair -> finding(table, pair, factors).orElse(null));
     report = buildReport(table.version(), nowMillis, compared);
     return events;
   }
@@ -91,7 +146,9 @@ public final class DriftMonitor {
           continue; // cooling down and no longer drifting: nothing to report
         }
         Long raised = track.raisedAtMillis() == Long.MIN_VALUE ? null : track.raisedAtMillis();
-        entries.add(new DriftEntry(kind, track.state(), track.sinceMillis(), raised, track.last()));
+        DriftChange change = track.last().changeFor(kind, settings);
+        entries.add(new DriftEntry(kind, track.state(), track.sinceMillis(), raised, track.last(), change,
+            DriftWords.summary(kind, change, track.last())));
       }
       Comparator<DriftEntry> strongest = kind == AlertKind.BUNDLE
           ? Comparator.comparingDouble((DriftEntry e) -> -e.finding().recentPairBaskets())

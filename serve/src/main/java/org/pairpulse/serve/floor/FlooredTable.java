@@ -27,6 +27,8 @@ public final class FlooredTable {
   private final PairTable table;
   private final CohortFloor floor;
   private final List<String> horizonNames;
+  /** Horizons in {@link #horizonNames}; the held lists may add the table's tracking decay after them. */
+  private final int publishedCount;
   private final Map<String, Integer> horizonIndex;
   private final String evidenceHorizon;
   private final List<List<PairStats>> pairs;
@@ -46,23 +48,28 @@ public final class FlooredTable {
     this.table = table;
     this.floor = floor;
     this.horizonNames = table.horizonNames();
-    int horizonCount = horizonNames.size();
+    List<String> heldNames = new ArrayList<>(horizonNames);
+    if (table.horizon(PairTable.TRACKING_HORIZON).isPresent()) {
+      heldNames.add(PairTable.TRACKING_HORIZON); // drift's reference: floored like the others, not listed
+    }
+    this.publishedCount = horizonNames.size();
+    int horizonCount = heldNames.size();
     Map<String, Integer> index = new HashMap<>();
     for (int h = 0; h < horizonCount; h++) {
-      index.put(horizonNames.get(h), h);
+      index.put(heldNames.get(h), h);
     }
     this.horizonIndex = Map.copyOf(index);
     this.evidenceHorizon = longestWindow(horizonNames, floor);
     int evidence = evidenceHorizon == null ? -1 : index.get(evidenceHorizon);
     this.evidenceOf = new int[horizonCount];
     for (int h = 0; h < horizonCount; h++) {
-      evidenceOf[h] = floor.isWindow(horizonNames.get(h)) || evidence < 0 ? h : evidence;
+      evidenceOf[h] = floor.isWindow(heldNames.get(h)) || evidence < 0 ? h : evidence;
     }
 
     // the join: every pair's statistics over the horizons (pair lookups, decay evidence)
     Map<PairKey, Entry> all = new HashMap<>(Math.max(16, table.pairCount() * 2));
     for (int h = 0; h < horizonCount; h++) {
-      for (PairStats stats : table.pairs(horizonNames.get(h))) {
+      for (PairStats stats : table.pairs(heldNames.get(h))) {
         PairKey key = PairKey.of(stats.itemA(), stats.itemB());
         Entry entry = all.get(key);
         if (entry == null) {
@@ -81,7 +88,7 @@ public final class FlooredTable {
     this.baskets = new double[horizonCount];
     int suppressed = 0;
     for (int h = 0; h < horizonCount; h++) {
-      String name = horizonNames.get(h);
+      String name = heldNames.get(h);
       HorizonTable horizonTable = table.horizon(name).orElseThrow();
       List<PairStats> list = horizonTable.pairs();
       Set<PairStats> rejected = Collections.newSetFromMap(new IdentityHashMap<>());
@@ -94,7 +101,7 @@ public final class FlooredTable {
           rejected.add(stats);
         }
       }
-      suppressed += rejected.size();
+      suppressed += h < publishedCount ? rejected.size() : 0;
       if (rejected.isEmpty()) {
         pairs.add(list);
         neighbours.add(horizonTable.neighbours());
@@ -115,7 +122,7 @@ public final class FlooredTable {
         }
         neighbours.add(byItem);
       }
-      HorizonTable proofTable = table.horizon(horizonNames.get(evidenceOf[h])).orElseThrow();
+      HorizonTable proofTable = table.horizon(heldNames.get(evidenceOf[h])).orElseThrow();
       Map<String, Estimate> itemCounts = new HashMap<>();
       for (Map.Entry<String, Estimate> item : horizonTable.itemCounts().entrySet()) {
         Estimate proof = proofTable.itemCounts().get(item.getKey());
@@ -171,6 +178,7 @@ public final class FlooredTable {
     return horizonNames;
   }
 
+  /** Whether {@code horizon} is held: one of {@link #horizonNames()}, or the table's tracking decay. */
   public boolean hasHorizon(String horizon) {
     return horizonIndex.containsKey(horizon);
   }
@@ -223,11 +231,16 @@ public final class FlooredTable {
     return h == null ? Double.NaN : baskets[h];
   }
 
+  /** The half-life of a held decay horizon; 0 for a window or an unknown horizon. */
+  public long halfLifeMillis(String horizon) {
+    return table.horizon(horizon).map(HorizonTable::halfLifeMillis).orElse(0L);
+  }
+
   /** Published pairs summed over horizons. */
   public int publishedPairs() {
     int sum = 0;
-    for (List<PairStats> list : pairs) {
-      sum += list.size();
+    for (int h = 0; h < publishedCount; h++) {
+      sum += pairs.get(h).size();
     }
     return sum;
   }

@@ -419,10 +419,12 @@ public final class ApiServer implements AutoCloseable {
     serving.put("tokenRequired", token != null);
     body.put("serving", serving);
     Map<String, Object> drift = new LinkedHashMap<>();
+    drift.put("recentHorizon", c.drift().recentHorizon());
+    drift.put("referenceHorizon", c.drift().referenceHorizon());
     drift.put("enterRootG2", c.drift().enterRootG2());
     drift.put("exitRootG2", c.drift().exitRootG2());
-    drift.put("enterLiftRatio", c.drift().enterLiftRatio());
-    drift.put("exitLiftRatio", c.drift().exitLiftRatio());
+    drift.put("enterRatio", c.drift().enterRatio());
+    drift.put("exitRatio", c.drift().exitRatio());
     drift.put("minDwellMillis", c.drift().minDwellMillis());
     drift.put("cooldownMillis", c.drift().cooldownMillis());
     body.put("drift", drift);
@@ -696,7 +698,7 @@ public final class ApiServer implements AutoCloseable {
     SegmentState segment = segment(p);
     Map<String, Object> out = Wire.drift(segment.drift().report(), count(p, 20));
     out.put("recentHorizon", c.drift().recentHorizon());
-    out.put("baselineHorizon", c.drift().baselineHorizon());
+    out.put("referenceHorizon", c.drift().referenceHorizon());
     json(ctx, out);
   }
 

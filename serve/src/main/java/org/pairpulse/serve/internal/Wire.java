@@ -133,12 +133,20 @@ public final class Wire {
     out.put("b", f.pair().second());
     out.put("signedRootG2", f.signedRootG2());
     out.put("pValue", f.pValue());
+    out.put("rateRootG2", f.rateRootG2());
+    out.put("associationRootG2", f.associationRootG2());
+    out.put("rateRatio", f.rateRatio());
+    out.put("oddsRatioRatio", f.oddsRatioRatio());
+    out.put("associationUnchanged", f.associationUnchanged());
     out.put("recentLift", f.recentLift());
     out.put("baselineLift", f.baselineLift());
     out.put("liftRatio", f.liftRatio());
     out.put("recentPairBaskets", f.recentPairBaskets());
     out.put("baselinePairBaskets", f.baselinePairBaskets());
+    out.put("recentBaskets", f.recentBaskets());
+    out.put("referenceBaskets", f.referenceBaskets());
     out.put("recentMinConfidence", f.recentMinConfidence());
+    out.put("referenceMinConfidence", f.referenceMinConfidence());
     out.put("recentBundle", f.recentBundle());
     out.put("baselineBundle", f.baselineBundle());
     out.put("trackedSinceMillis", f.trackedSinceMillis());
@@ -151,6 +159,8 @@ public final class Wire {
     out.put("state", e.state().wireName());
     out.put("sinceMillis", e.sinceMillis());
     out.put("raisedAtMillis", e.raisedAtMillis());
+    out.put("change", e.change() == null ? null : e.change().wireName());
+    out.put("summary", e.summary());
     return out;
   }
 
@@ -179,6 +189,8 @@ public final class Wire {
     out.put("at", Instant.ofEpochMilli(e.atMillis()).toString());
     out.put("sinceMillis", e.sinceMillis());
     out.put("tableVersion", e.tableVersion());
+    out.put("change", e.change() == null ? null : e.change().wireName());
+    out.put("summary", e.summary());
     out.put("evidence", e.evidence() == null ? null : finding(e.evidence()));
     return out;
   }

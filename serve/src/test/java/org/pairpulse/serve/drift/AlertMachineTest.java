@@ -26,12 +26,19 @@ class AlertMachineTest {
   private long version;
 
   private static DriftFinding finding(double root, double ratio) {
-    return new DriftFinding(PAIR, root, DriftStatistics.pValue(root), 3.0 * ratio, 3.0, ratio, 80, 400, 0.4, false,
-        false, 0L);
+    // both tests agree (rate and association), associated now: the "both" route when strong enough
+    return new DriftFinding(PAIR, root, DriftStatistics.pValue(root), root, root, ratio, ratio, false, 3.0 * ratio, 3.0,
+        ratio, 80, 400, 1000, 20_000, 2.0, 2.0, 0.4, 0.3, false, false, 0L);
   }
 
   private static DriftFinding bundleFinding(boolean recentBundle, boolean baselineBundle, double minConfidence) {
-    return new DriftFinding(PAIR, 0, 1, 9, 8, 1.1, 80, 400, minConfidence, recentBundle, baselineBundle, 0L);
+    return bundleFinding(recentBundle, baselineBundle, minConfidence, baselineBundle ? 0.97 : 0.5);
+  }
+
+  private static DriftFinding bundleFinding(boolean recentBundle, boolean baselineBundle, double minConfidence,
+      double referenceMinConfidence) {
+    return new DriftFinding(PAIR, 0, 1, 0, 0, 1.1, 1.1, true, 9, 8, 1.1, 80, 400, 1000, 20_000, 5, 5, minConfidence,
+        referenceMinConfidence, recentBundle, baselineBundle, 0L);
   }
 
   /** One observation of {@code observed} (null: the pair is not published) after {@code minutes}. */
@@ -129,6 +136,16 @@ class AlertMachineTest {
     after(1, bundleFinding(false, false, 0.85));
     after(15, bundleFinding(false, false, 0.85));
     assertEquals(AlertTransition.RESOLVED, events.get(1).transition());
+  }
+
+  @Test
+  void aSteadyNearCertainPairNeverRaisesANewBundle() {
+    // its recent confidence hovers around the 0.95 bundle threshold, as it did in the reference period: not new
+    for (int i = 0; i < 200; i++) {
+      boolean above = i % 3 != 0;
+      after(20, bundleFinding(above, i % 5 == 0, above ? 0.96 : 0.94, i % 5 == 0 ? 0.95 : 0.94));
+    }
+    assertTrue(events.isEmpty(), events.toString());
   }
 
   @Test

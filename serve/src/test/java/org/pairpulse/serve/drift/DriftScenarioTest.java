@@ -81,7 +81,8 @@ class DriftScenarioTest {
     DriftEntry esports = report.emerging().stream()
         .filter(e -> e.finding().pair().equals(PairKey.of("pack-esports", "boost-lowlat"))).findFirst().orElseThrow();
     assertEquals(AlertMachine.State.ACTIVE, esports.state());
-    assertTrue(esports.finding().recentLift() > 1.5 * esports.finding().baselineLift());
+    assertTrue(esports.finding().rateRatio() > 1.5 && esports.finding().oddsRatioRatio() > 1.5, esports.toString());
+    assertEquals(DriftChange.BOTH, esports.change(), esports.summary());
     assertTrue(report.fading().stream().anyMatch(e -> e.finding().pair().equals(PairKey.of("roam-zoneb", "guard-travel"))));
     assertTrue(report.pairsCompared() > 100);
   }

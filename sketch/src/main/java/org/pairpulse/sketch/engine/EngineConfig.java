@@ -57,7 +57,7 @@ public record EngineConfig(
     SizeClasses sizeClasses) {
 
   /** Name of the internal decay that ranks tracked keys (not published, reserved). */
-  public static final String TRACKING_HORIZON_NAME = "tracking";
+  public static final String TRACKING_HORIZON_NAME = org.pairpulse.sketch.table.PairTable.TRACKING_HORIZON;
 
   /** Largest tracked capacity: keeps slot arithmetic in int range for every layout. */
   public static final int MAX_CAPACITY = 1 << 22;

@@ -56,6 +56,10 @@ public final class PairTables {
       tables.put(state.spec.name(), horizonTable(engine, state, options));
       names.add(state.spec.name());
     }
+    // the tracking decay: drift's reference period (a long decay read from the wide decay sketches), kept out of
+    // the horizon names so that it is not offered for ranking or suggestions
+    HorizonState tracking = engine.horizons[engine.trackingHorizon];
+    tables.put(tracking.spec.name(), horizonTable(engine, tracking, options));
     return new PairTable(options.version(), options.publishedAtMillis(), engine.watermarkMillis,
         options.sortBy(), tables, names);
   }
@@ -101,7 +105,8 @@ public final class PairTables {
       neighbours.computeIfAbsent(pair.itemB(), k -> new ArrayList<>()).add(pair);
     }
     neighbours.replaceAll((item, list) -> List.copyOf(list));
-    return new HorizonTable(state.spec.name(), baskets, List.copyOf(stats), neighbours, itemCounts);
+    return new HorizonTable(state.spec.name(), baskets, List.copyOf(stats), neighbours, itemCounts,
+        state.isWindow() ? 0L : state.spec.halfLifeMillis());
   }
 
   /** A pair with its sort key, computed once (a comparator that computed the measure ran it n log n times). */

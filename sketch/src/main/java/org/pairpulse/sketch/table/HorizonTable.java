@@ -14,9 +14,16 @@ import org.pairpulse.sketch.stats.Estimate;
  * @param pairs all published pairs, best first
  * @param neighbours for each item, the published pairs that contain it, best first
  * @param itemCounts n_a of every tracked item
+ * @param halfLifeMillis the half-life of a decay horizon, 0 for a window (or when unknown)
  */
 public record HorizonTable(String name, double baskets, List<PairStats> pairs, Map<String, List<PairStats>> neighbours,
-    Map<String, Estimate> itemCounts) {
+    Map<String, Estimate> itemCounts, long halfLifeMillis) {
+
+  /** A horizon table without a half-life (a window, or a decay whose half-life is not known). */
+  public HorizonTable(String name, double baskets, List<PairStats> pairs, Map<String, List<PairStats>> neighbours,
+      Map<String, Estimate> itemCounts) {
+    this(name, baskets, pairs, neighbours, itemCounts, 0L);
+  }
 
   public HorizonTable {
     pairs = Collections.unmodifiableList(pairs);

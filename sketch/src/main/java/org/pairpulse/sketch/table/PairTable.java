@@ -13,6 +13,9 @@ import org.pairpulse.sketch.stats.Measure;
 public final class PairTable {
   private static final PairTable EMPTY = new PairTable(0, 0, Long.MIN_VALUE, Measure.SHRUNK_LIFT, Map.of(), List.of());
 
+  /** Name of the engine's tracking decay in a refreshed table (not in {@link #horizonNames()}). */
+  public static final String TRACKING_HORIZON = "tracking";
+
   private final long version;
   private final long publishedAtMillis;
   private final long watermarkMillis;
@@ -59,7 +62,11 @@ public final class PairTable {
     return sortMeasure;
   }
 
-  /** Horizon names in configuration order. */
+  /**
+   * Horizon names in configuration order. A refresh also holds the engine's tracking decay under
+   * {@value #TRACKING_HORIZON} ({@link #horizon}, {@link #pairs}, {@link #pair} answer it), which is not
+   * listed here: it is drift's reference period, not a horizon to rank or suggest from.
+   */
   public List<String> horizonNames() {
     return horizonNames;
   }
