@@ -52,22 +52,31 @@ record LiftInterval(double lower, double upper) {
       return UNDEFINED;
     }
     double baskets = counts.baskets();
-    double lowerA = Math.min(counts.countA().lower(), baskets);
-    double lowerB = Math.min(counts.countB().lower(), baskets);
-    double upperA = Math.min(counts.countA().upper(), baskets);
-    double upperB = Math.min(counts.countB().upper(), baskets);
-
+    Margins m = Margins.of(counts);
     if (point.countAB() == 0) {
-      double zeroEventsUpperCount = -Math.log((1.0 - settings.confidenceLevel()) / 2.0);
-      double upperCountAB = counts.countAB().upper() + zeroEventsUpperCount;
-      return new LiftInterval(0.0, supremumLift(baskets, upperCountAB, lowerA, lowerB));
+      double upperCountAB = counts.countAB().upper() + zeroEventsUpperCount(settings);
+      return new LiftInterval(0.0, supremumLift(baskets, upperCountAB, m.lowerA, m.lowerB));
     }
     // point counts are positive here, so upperA >= point.countA() > 0 and likewise for b
-    double sketchLower = baskets * Math.min(counts.countAB().lower(), Math.min(upperA, upperB))
-        / (upperA * upperB);
-    double sketchUpper = supremumLift(baskets, counts.countAB().upper(), lowerA, lowerB);
+    double sketchLower = baskets * Math.min(counts.countAB().lower(), Math.min(m.upperA, m.upperB))
+        / (m.upperA * m.upperB);
+    double sketchUpper = supremumLift(baskets, counts.countAB().upper(), m.lowerA, m.lowerB);
     double samplingFactor = Math.exp(settings.zScore() * Math.sqrt(logLiftVariance(point, pointLift)));
     return new LiftInterval(sketchLower / samplingFactor, sketchUpper * samplingFactor);
+  }
+
+  /** The margins' bounds, each clamped to N. */
+  private record Margins(double lowerA, double lowerB, double upperA, double upperB) {
+    static Margins of(PairCounts counts) {
+      double baskets = counts.baskets();
+      return new Margins(Math.min(counts.countA().lower(), baskets), Math.min(counts.countB().lower(), baskets),
+          Math.min(counts.countA().upper(), baskets), Math.min(counts.countB().upper(), baskets));
+    }
+  }
+
+  /** The exact Poisson upper limit for zero events at one-sided level (1 − level)/2 (see the class comment). */
+  private static double zeroEventsUpperCount(MeasureSettings settings) {
+    return -Math.log((1.0 - settings.confidenceLevel()) / 2.0);
   }
 
   /**
@@ -82,19 +91,14 @@ record LiftInterval(double lower, double upper) {
     if (Double.isNaN(pointLift)) {
       return UNDEFINED;
     }
-    double baskets = counts.baskets();
     Estimate expected = counts.expectedCountAB();
-    double lowerA = Math.min(counts.countA().lower(), baskets);
-    double lowerB = Math.min(counts.countB().lower(), baskets);
-    double upperA = Math.min(counts.countA().upper(), baskets);
-    double upperB = Math.min(counts.countB().upper(), baskets);
+    Margins m = Margins.of(counts);
     if (point.countAB() == 0) {
-      double zeroEventsUpperCount = -Math.log((1.0 - settings.confidenceLevel()) / 2.0);
-      return new LiftInterval(0.0, ratioUpTo(counts.countAB().upper() + zeroEventsUpperCount, expected.lower()));
+      return new LiftInterval(0.0, ratioUpTo(counts.countAB().upper() + zeroEventsUpperCount(settings), expected.lower()));
     }
     double sketchLower = expected.upper() > 0
-        ? Math.min(counts.countAB().lower(), Math.min(upperA, upperB)) / expected.upper() : 0.0;
-    double sketchUpper = ratioUpTo(Math.min(counts.countAB().upper(), Math.min(lowerA, lowerB)), expected.lower());
+        ? Math.min(counts.countAB().lower(), Math.min(m.upperA, m.upperB)) / expected.upper() : 0.0;
+    double sketchUpper = ratioUpTo(Math.min(counts.countAB().upper(), Math.min(m.lowerA, m.lowerB)), expected.lower());
     double samplingFactor = Math.exp(settings.zScore() * Math.sqrt(logLiftVariance(point, pointLift)));
     return new LiftInterval(Math.min(sketchLower / samplingFactor, pointLift),
         Math.max(sketchUpper * samplingFactor, pointLift));
