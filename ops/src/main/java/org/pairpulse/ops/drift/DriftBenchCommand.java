@@ -256,7 +256,24 @@ public final class DriftBenchCommand implements Callable<Integer> {
           change.plant().pair().kind().name().toLowerCase(Locale.ROOT), Instant.ofEpochMilli(change.changeMillis()),
           delay(change), other == null ? "NA" : delay(other), errors == 0 ? "ok" : errors + " wrong-way alert(s)");
     }
+    printFaults(out, "pairpulse", ours);
+    if (reference != null) {
+      printFaults(out, "exact", reference);
+    }
     out.flush();
+  }
+
+  /** The raised alerts that count against a detector: false alerts, wrong-way alerts, bundle flaps. */
+  private static void printFaults(PrintWriter out, String detector, DriftScore score) {
+    for (DriftScore.ScoredAlert alert : score.alerts()) {
+      DriftScore.AlertClass alertClass = alert.alertClass();
+      if (alertClass == DriftScore.AlertClass.FALSE || alertClass == DriftScore.AlertClass.DIRECTION_ERROR
+          || alertClass == DriftScore.AlertClass.BUNDLE_FLAP) {
+        out.printf(Locale.ROOT, "  %s %s: %s %s %s on %s (%s)%n", detector, alertClass.wireName(), alert.stream(),
+            Instant.ofEpochMilli(alert.alert().atMillis()), alert.alert().kind().wireName(), alert.alert().pair(),
+            alert.shape() == null ? "background" : alert.shape().wireName());
+      }
+    }
   }
 
   private static String delay(DriftScore.Change change) {
