@@ -39,6 +39,8 @@ public final class FlooredTable {
   private final int suppressedPairs;
   /** Per horizon index, the index of the horizon whose counts are its distinct-basket evidence. */
   private final int[] evidenceOf;
+  /** Per horizon index, the window horizons whose lower bounds are its evidence (see {@link #passes}). */
+  private final int[][] evidenceWindows;
   private final java.util.concurrent.ConcurrentHashMap<Object, Object> derived = new java.util.concurrent.ConcurrentHashMap<>();
 
   /** A pair's statistics in each horizon (null where absent from that horizon). */
@@ -62,8 +64,10 @@ public final class FlooredTable {
     this.evidenceHorizon = longestWindow(horizonNames, floor);
     int evidence = evidenceHorizon == null ? -1 : index.get(evidenceHorizon);
     this.evidenceOf = new int[horizonCount];
+    this.evidenceWindows = new int[horizonCount][];
     for (int h = 0; h < horizonCount; h++) {
       evidenceOf[h] = floor.isWindow(heldNames.get(h)) || evidence < 0 ? h : evidence;
+      evidenceWindows[h] = containedWindows(heldNames, evidenceOf[h], floor);
     }
 
     // the join: every pair's statistics over the horizons (pair lookups, decay evidence)
@@ -94,8 +98,7 @@ public final class FlooredTable {
       Set<PairStats> rejected = Collections.newSetFromMap(new IdentityHashMap<>());
       List<PairStats> shown = new ArrayList<>(list.size());
       for (PairStats stats : list) {
-        PairStats proof = evidenceOf[h] == h ? stats : all.get(PairKey.of(stats.itemA(), stats.itemB())).stats()[evidenceOf[h]];
-        if (passes(proof)) {
+        if (passes(all.get(PairKey.of(stats.itemA(), stats.itemB())), h)) {
           shown.add(stats);
         } else {
           rejected.add(stats);
@@ -125,8 +128,12 @@ public final class FlooredTable {
       HorizonTable proofTable = table.horizon(heldNames.get(evidenceOf[h])).orElseThrow();
       Map<String, Estimate> itemCounts = new HashMap<>();
       for (Map.Entry<String, Estimate> item : horizonTable.itemCounts().entrySet()) {
-        Estimate proof = proofTable.itemCounts().get(item.getKey());
-        if (proof != null && floor.passes(proof.lower())) {
+        double lower = Double.NaN;
+        for (int w : evidenceWindows[h]) {
+          Estimate proof = table.horizon(heldNames.get(w)).orElseThrow().itemCounts().get(item.getKey());
+          lower = proof == null ? lower : Double.isNaN(lower) ? proof.lower() : Math.max(lower, proof.lower());
+        }
+        if (!Double.isNaN(lower) && floor.passes(lower)) {
           itemCounts.put(item.getKey(), item.getValue());
         }
       }
@@ -136,10 +143,51 @@ public final class FlooredTable {
     this.suppressedPairs = suppressed;
   }
 
-  /** The floor's rule on the evidence statistics of a pair: n_ab and both n_a pass. */
-  private boolean passes(PairStats proof) {
-    return proof != null && floor.passes(proof.counts().countAB().lower())
-        && floor.passes(proof.counts().countA().lower()) && floor.passes(proof.counts().countB().lower());
+  /**
+   * The floor's rule on the evidence of a pair in horizon h: n_ab and both n_a pass, each read as the largest
+   * lower bound among the windows inside h's evidence window. Every window ends at the watermark, so a shorter
+   * window's baskets are a subset of a longer one's and its lower bound bounds the longer one's distinct baskets
+   * too; this matters for a pair admitted today, whose long window carries the admission pane's full sketch
+   * error (ε·W of a day) in its lower bound while the hourly panes of a short window hold exact counts after
+   * the first hour.
+   */
+  private boolean passes(Entry entry, int h) {
+    if (entry == null) {
+      return false;
+    }
+    double ab = Double.NaN;
+    double a = Double.NaN;
+    double b = Double.NaN;
+    for (int w : evidenceWindows[h]) {
+      PairStats proof = entry.stats()[w];
+      if (proof == null) {
+        continue;
+      }
+      ab = Double.isNaN(ab) ? proof.counts().countAB().lower() : Math.max(ab, proof.counts().countAB().lower());
+      a = Double.isNaN(a) ? proof.counts().countA().lower() : Math.max(a, proof.counts().countA().lower());
+      b = Double.isNaN(b) ? proof.counts().countB().lower() : Math.max(b, proof.counts().countB().lower());
+    }
+    return !Double.isNaN(ab) && floor.passes(ab) && floor.passes(a) && floor.passes(b);
+  }
+
+  /**
+   * The horizons whose lower bounds count as evidence for horizon {@code evidence}: itself, and, when it is a
+   * window, every window no longer than it (a subset of its baskets).
+   */
+  private static int[] containedWindows(List<String> names, int evidence, CohortFloor floor) {
+    Optional<HorizonSpec> outer = floor.spec(names.get(evidence));
+    List<Integer> inside = new ArrayList<>();
+    inside.add(evidence);
+    if (outer.isPresent() && outer.get().isWindow()) {
+      for (int w = 0; w < names.size(); w++) {
+        Optional<HorizonSpec> spec = floor.spec(names.get(w));
+        if (w != evidence && spec.isPresent() && spec.get().isWindow()
+            && spec.get().lengthMillis() <= outer.get().lengthMillis()) {
+          inside.add(w);
+        }
+      }
+    }
+    return inside.stream().mapToInt(Integer::intValue).toArray();
   }
 
   private static String longestWindow(List<String> names, CohortFloor floor) {
@@ -207,7 +255,7 @@ public final class FlooredTable {
       return Optional.empty();
     }
     Entry entry = byPair.get(PairKey.of(a, b));
-    if (entry == null || entry.stats()[h] == null || !passes(entry.stats()[evidenceOf[h]])) {
+    if (entry == null || entry.stats()[h] == null || !passes(entry, h)) {
       return Optional.empty();
     }
     return Optional.of(entry.stats()[h]);

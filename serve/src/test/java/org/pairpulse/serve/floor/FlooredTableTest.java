@@ -29,6 +29,25 @@ class FlooredTableTest {
   }
 
   @Test
+  void aLongWindowBorrowsTheTighterLowerBoundOfAShorterWindowInsideIt() {
+    // a pair admitted today: baseline's admission pane carries a day's sketch error (lower bound 10), while
+    // day's hourly panes hold 70 exact baskets, which are baskets of baseline too (day lies inside baseline)
+    PairTable table = Tables.defaultHorizons().baskets(1000).item("a", 100).item("b", 100)
+        .pair("recent", "a", "b", 70).pair("day", "a", "b", 70)
+        .pair("baseline", "a", "b", new Estimate(75, 10, 80)).build(1);
+    FlooredTable floored = FlooredTable.of(table, CohortFloor.defaults());
+    assertTrue(floored.pair("a", "b", "baseline").isPresent());
+    assertTrue(floored.pair("a", "b", "recent").isPresent(), "decays borrow the same evidence");
+    // never the other way: a long window's bound says nothing about a shorter window's baskets
+    PairTable shortThin = Tables.defaultHorizons().baskets(1000).item("a", 100).item("b", 100)
+        .pair("recent", "a", "b", 70).pair("day", "a", "b", new Estimate(40, 30, 40))
+        .pair("baseline", "a", "b", 400).build(1);
+    FlooredTable other = FlooredTable.of(shortThin, CohortFloor.defaults());
+    assertTrue(other.pair("a", "b", "day").isEmpty());
+    assertTrue(other.pair("a", "b", "baseline").isPresent());
+  }
+
+  @Test
   void decayHorizonBorrowsTheLongestWindowsEvidence() {
     // recent (decay) holds a large decayed count, but only 40 distinct baskets stand behind it in baseline
     PairTable thin = Tables.defaultHorizons().baskets(1000).item("a", 100).item("b", 100)
