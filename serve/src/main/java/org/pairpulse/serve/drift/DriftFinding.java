@@ -20,18 +20,21 @@ import org.pairpulse.sketch.table.PairStats;
  *           not fall);</li>
  *       <li>{@code rate}: rate root ≥ z, rate ratio ≥ R, association root &gt; −z′, the association <em>not
  *           shown unchanged</em> ({@link DriftStatistics#associationShownUnchanged}: ln of the odds-ratio ratio ± one
- *           standard error inside ±ln R) and the pair
- *           associated now (recent lift lower bound &gt; 1).</li>
+ *           standard error inside ±ln R).</li>
  *     </ul>
- *   <li><b>fading</b>: the mirror image (roots ≤ −z, ratios ≤ 1/R; for {@code rate}, associated in the
- *       reference period).</li>
+ *     Every route also needs the pair associated now: its lift interval's lower end above 1 under the size-adjusted
+ *     null model (the pair table's default). The odds ratio is a textbook 2×2 measure and moves with basket size:
+ *     when an item's popularity spikes in larger baskets, its pairs' odds ratios rise with it, while their
+ *     size-adjusted lift stays at 1.</li>
+ *   <li><b>fading</b>: the mirror image (roots ≤ −z, ratios ≤ 1/R), the pair associated in the reference
+ *       period.</li>
  *   <li><b>bundle</b>: a bundle pair now (both confidences ≥ the table's bundle threshold) whose smaller
  *       confidence in the reference period was below {@code bundleExitConfidence}: it was clearly not
  *       near-certain before, so a steady near-certain pair never enters.</li>
  * </ul>
  * A move of one item's popularity alone moves the rate but not the association; on a pair with enough
  * evidence the association is then shown unchanged and nothing enters, and on a pair without association
- * now the {@code rate} route is closed. The direction of an alert never contradicts either test: emerging
+ * now (beyond basket size) no route is open. The direction of an alert never contradicts either test: emerging
  * needs neither root significantly negative, fading neither significantly positive.
  *
  * <h2>Exit conditions</h2>
@@ -82,10 +85,20 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
    */
   public static DriftFinding of(PairStats recent, PairStats reference, double recentFactor, double referenceFactor,
       DriftSettings settings) {
+    return of(recent, reference, reference.counts(), recentFactor, referenceFactor, settings);
+  }
+
+  /**
+   * The finding with the reference period's counts given apart ({@code referenceCounts}, e.g. the reference decay
+   * less the recent one: {@link DriftStatistics#excluding}); the tests read them, while the reference's lift and
+   * its interval come from {@code reference}'s own measures (size-adjusted, as the table published them).
+   */
+  public static DriftFinding of(PairStats recent, PairStats reference, PairCounts referenceCounts, double recentFactor,
+      double referenceFactor, DriftSettings settings) {
     PairMeasures r = recent.measures();
     PairMeasures b = reference.measures();
     PairCounts rc = recent.counts();
-    PairCounts bc = reference.counts();
+    PairCounts bc = referenceCounts;
     double rateRoot = DriftStatistics.rateRootG2(rc, recentFactor, bc, referenceFactor);
     double associationRoot = DriftStatistics.associationRootG2(rc, recentFactor, bc, referenceFactor);
     double strongest = !(Math.abs(associationRoot) > Math.abs(rateRoot)) ? rateRoot : associationRoot;
@@ -96,8 +109,14 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
     return new DriftFinding(PairKey.of(recent.itemA(), recent.itemB()), strongest, DriftStatistics.pValue(strongest),
         rateRoot, associationRoot, rateRatio, oddsRatioRatio, unchanged, r.lift(), b.lift(), r.lift() / b.lift(),
         rc.countAB().value(), bc.countAB().value(), rc.baskets(), bc.baskets(), r.liftLower(), b.liftLower(),
-        Math.min(r.confidenceAB(), r.confidenceBA()), Math.min(b.confidenceAB(), b.confidenceBA()), r.isBundle(),
+        Math.min(r.confidenceAB(), r.confidenceBA()), minConfidence(bc), r.isBundle(),
         b.isBundle(), recent.trackedSinceMillis());
+  }
+
+  /** min(n_ab/n_a, n_ab/n_b) from point values; 0 without items. */
+  private static double minConfidence(PairCounts counts) {
+    double most = Math.max(counts.countA().value(), counts.countB().value());
+    return most > 0 ? Math.min(1.0, counts.countAB().value() / most) : 0.0;
   }
 
   /**
@@ -136,6 +155,10 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
     double association = sign * associationRootG2;
     double rateEffect = sign > 0 ? rateRatio : 1.0 / rateRatio;
     double oddsEffect = sign > 0 ? oddsRatioRatio : 1.0 / oddsRatioRatio;
+    // the side where the pair must be associated (beyond basket size): now for emerging, before for fading
+    if (!((sign > 0 ? recentLiftLower : referenceLiftLower) > 1.0)) {
+      return null;
+    }
     boolean rateMoved = rate >= s.enterRootG2() && rateEffect >= s.enterRatio();
     boolean associationMoved = association >= s.enterRootG2() && oddsEffect >= s.enterRatio();
     if (rateMoved && associationMoved) {
@@ -144,8 +167,7 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
     if (associationMoved && rate > -s.exitRootG2()) {
       return DriftChange.ASSOCIATION;
     }
-    double liftLower = sign > 0 ? recentLiftLower : referenceLiftLower;
-    if (rateMoved && association > -s.exitRootG2() && !associationUnchanged && liftLower > 1.0) {
+    if (rateMoved && association > -s.exitRootG2() && !associationUnchanged) {
       return DriftChange.RATE;
     }
     return null;

@@ -10,7 +10,6 @@ import java.util.Optional;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.floor.PairKey;
 import org.pairpulse.sketch.stats.PairCounts;
-import org.pairpulse.sketch.stats.PairMeasures;
 import org.pairpulse.sketch.table.PairStats;
 
 /**
@@ -52,8 +51,8 @@ public final class DriftMonitor {
       return Optional.empty();
     }
     PairCounts counts = referenceCounts(recent.get(), reference.get(), factors);
-    return Optional.of(DriftFinding.of(recent.get(), withCounts(reference.get(), counts), factors.recent(),
-        factors.reference(), settings));
+    return Optional.of(DriftFinding.of(recent.get(), reference.get(), counts, factors.recent(), factors.reference(),
+        settings));
   }
 
   /**
@@ -97,11 +96,6 @@ public final class DriftMonitor {
     return DriftStatistics.excluding(reference.counts(), shorter);
   }
 
-  private static PairStats withCounts(PairStats stats, PairCounts counts) {
-    return counts == stats.counts() ? stats : new PairStats(stats.itemA(), stats.itemB(), stats.horizon(), counts,
-        PairMeasures.of(counts), stats.trackedSinceMillis());
-  }
-
   /** Observes one table version at {@code nowMillis}; returns the alert events it caused. */
   public synchronized List<AlertEvent> observe(FlooredTable table, long nowMillis) {
     List<DriftFinding> entering = new ArrayList<>();
@@ -120,8 +114,8 @@ public final class DriftMonitor {
       if (!DriftFinding.mayEnter(recent.counts(), counts, factors.recent(), factors.reference(), settings)) {
         continue;
       }
-      DriftFinding finding = DriftFinding.of(recent, withCounts(reference.get(), counts), factors.recent(),
-          factors.reference(), settings);
+      DriftFinding finding = DriftFinding.of(recent, reference.get(), counts, factors.recent(), factors.reference(),
+          settings);
       for (AlertKind kind : AlertKind.values()) {
         if (finding.enters(kind, settings)) {
           entering.add(finding);

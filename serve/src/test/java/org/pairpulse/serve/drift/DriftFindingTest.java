@@ -43,6 +43,21 @@ class DriftFindingTest {
   }
 
   @Test
+  void aSpikeInLargerBasketsRaisesTheOddsRatioButNotTheSizeAdjustedLift() {
+    // the spike item lands in large baskets: its pairs' textbook odds ratio doubles and their rate rises 14-fold,
+    // but within basket-size classes they are as expected (E = n_ab): not associated, nothing enters
+    PairCounts reference = PairCounts.exact(100_000, 1000, 10_000, 100).withStratifiedExpected(Estimate.exact(100));
+    PairCounts recent = PairCounts.exact(10_000, 800, 1000, 140).withStratifiedExpected(Estimate.exact(140));
+    DriftFinding f = finding(recent, reference);
+    assertTrue(f.rateRootG2() > 5 && f.oddsRatioRatio() > 1.5, f.toString());
+    assertNothing(f);
+    // the same counts with an expectation that knows no sizes (textbook E = 80 now) would have entered
+    DriftFinding textbook = finding(PairCounts.exact(10_000, 800, 1000, 140), PairCounts.exact(100_000, 1000, 10_000,
+        100));
+    assertTrue(textbook.enters(AlertKind.EMERGING, SETTINGS), textbook.toString());
+  }
+
+  @Test
   void aPairFromNothingAmongPopularItemsEmerges() {
     // before admission: a count-min bound [0, 60] over 300,000 baskets; now 150 of 12,000 baskets
     PairCounts reference = new PairCounts(300_000, Estimate.exact(6000), Estimate.exact(5000), new Estimate(20, 0, 60));
