@@ -96,7 +96,9 @@ public final class PairMeasures {
   private final double chiSquare;
   private final boolean bundle;
   private final double expectedCountAB;
-  private final double associationPValue;
+  /** The observed count and the expected count at the bounds that {@link #associationPValue()} reads. */
+  private final double pValueCount;
+  private final double pValueMean;
   /** The measures that depend on the null model: size-adjusted (the default) and textbook. */
   private final NullModelMeasures adjusted;
   private final NullModelMeasures unadjusted;
@@ -150,8 +152,10 @@ public final class PairMeasures {
     adjusted = counts.isStratified() ? adjusted(counts, point, expectedPoint, settings) : unadjusted;
     double upperA = Math.min(counts.countA().upper(), baskets);
     double upperB = Math.min(counts.countB().upper(), baskets);
-    associationPValue = gammaPoissonUpperTail(Math.min(counts.countAB().lower(), Math.min(upperA, upperB)),
-        expected.upper(), NULL_MODEL_TOLERANCE);
+    // the tail (an incomplete beta function) is computed when asked: only the offer screen reads it, for one
+    // horizon, while a refresh builds the measures of every pair in every horizon
+    pValueCount = Math.min(counts.countAB().lower(), Math.min(upperA, upperB));
+    pValueMean = expected.upper();
   }
 
   /** The size-adjusted measures: E from basket-size classes in place of n_a·n_b/N (see the class comment). */
@@ -329,7 +333,7 @@ public final class PairMeasures {
    * step.
    */
   public double associationPValue() {
-    return associationPValue;
+    return gammaPoissonUpperTail(pValueCount, pValueMean, NULL_MODEL_TOLERANCE);
   }
 
   /** Pearson's χ² of the 2×2 table (no continuity correction, plain independence), for reference. */
@@ -409,6 +413,6 @@ public final class PairMeasures {
     return "PairMeasures[support=" + support + ", confidenceAB=" + confidenceAB + ", confidenceBA=" + confidenceBA
         + ", expectedCountAB=" + expectedCountAB + ", adjusted=" + adjusted + ", unadjusted=" + unadjusted
         + ", kulczynski=" + kulczynski + ", imbalanceRatio=" + imbalanceRatio + ", chiSquare=" + chiSquare
-        + ", associationPValue=" + associationPValue + ", bundle=" + bundle + "]";
+        + ", associationPValue=" + associationPValue() + ", bundle=" + bundle + "]";
   }
 }
