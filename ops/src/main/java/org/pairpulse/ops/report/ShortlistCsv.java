@@ -23,7 +23,7 @@ public final class ShortlistCsv {
   public static final String SUPPRESSED_FILE = "shortlist-suppressed.csv";
   public static final List<String> COLUMNS = List.of("segment", "list", "rank", "item_a", "item_b", "horizon",
       "pair_baskets", "support", "confidence", "lift", "lift_lower", "lift_upper", "recent_lift", "baseline_lift",
-      "lift_ratio", "signed_root_g2");
+      "lift_ratio", "signed_root_g2", "drift_change", "evidence");
   public static final List<String> SUPPRESSED_COLUMNS = List.of("segment", "suppressed_rows", "segment_under_floor");
 
   private ShortlistCsv() {}
@@ -39,7 +39,7 @@ public final class ShortlistCsv {
               field(row.itemB()), field(row.horizon()), number(row.pairBaskets()), number(row.support()),
               number(row.confidence()), number(row.lift()), number(row.liftLower()), number(row.liftUpper()),
               number(row.recentLift()), number(row.baselineLift()), number(row.liftRatio()),
-              number(row.signedRootG2())));
+              number(row.signedRootG2()), field(row.change()), field(row.evidence())));
           out.write('\n');
         }
       }

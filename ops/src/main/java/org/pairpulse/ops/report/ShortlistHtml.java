@@ -34,7 +34,7 @@ public final class ShortlistHtml {
           + "font-size:13px}",
       "p.empty{color:#5b6478;font-style:italic}footer{margin-top:36px;padding-top:10px;border-top:1px solid #c9c9c0;"
           + "color:#3a4356}",
-      "svg{display:block}.legend{font-size:12px;color:#5b6478}");
+      "svg{display:block}.legend{font-size:12px;color:#5b6478}td.why{font-size:12px;max-width:320px}");
 
   private ShortlistHtml() {}
 
@@ -93,14 +93,15 @@ public final class ShortlistHtml {
     } else {
       double high = scale(segment.emerging());
       html.append("<table>\n<thead><tr><th>#</th><th>rule</th><th>recent vs baseline</th><th>lift recent</th>"
-          + "<th>lift baseline</th><th>ratio</th><th>signed √G²</th><th>lift interval (recent)</th><th>confidence</th>"
-          + "<th>support</th></tr></thead>\n<tbody>\n");
+          + "<th>lift baseline</th><th>ratio</th><th>signed √G²</th><th>what changed</th><th>lift interval (recent)</th>"
+          + "<th>confidence</th><th>support</th></tr></thead>\n<tbody>\n");
       for (ShortlistRow row : segment.emerging()) {
         html.append("<tr><td class=\"n\">").append(row.rank()).append("</td><td class=\"rule\">").append(rule(row))
             .append("</td><td>").append(driftChart(row, high)).append("</td><td class=\"n\">")
             .append(fixed(row.recentLift(), 2)).append("</td><td class=\"n\">").append(fixed(row.baselineLift(), 2))
             .append("</td><td class=\"n\">").append(fixed(row.liftRatio(), 2)).append("</td><td class=\"n\">")
-            .append(fixed(row.signedRootG2(), 1)).append("</td><td>").append(intervalChart(row, high))
+            .append(fixed(row.signedRootG2(), 1)).append("</td><td class=\"why\"><b>").append(text(row.change()))
+            .append("</b> ").append(text(row.evidence())).append("</td><td>").append(intervalChart(row, high))
             .append("</td><td class=\"n\">").append(fixed(row.confidence(), 3)).append("</td><td class=\"n\">")
             .append(percent(row.support())).append("</td></tr>\n");
       }

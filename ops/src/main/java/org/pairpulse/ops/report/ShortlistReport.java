@@ -10,7 +10,9 @@ import java.util.Objects;
 import java.util.Optional;
 import java.util.Set;
 import org.pairpulse.serve.drift.AlertKind;
+import org.pairpulse.serve.drift.DriftChange;
 import org.pairpulse.serve.drift.DriftFinding;
+import org.pairpulse.serve.drift.DriftWords;
 import org.pairpulse.serve.drift.DriftMonitor;
 import org.pairpulse.serve.floor.CohortFloor;
 import org.pairpulse.serve.floor.FlooredTable;
@@ -129,6 +131,11 @@ public record ShortlistReport(ShortlistSettings settings, long asOfMillis, List<
     return held;
   }
 
+  private static String change(DriftFinding finding, ShortlistSettings settings) {
+    DriftChange change = finding.emergingChange(settings.drift());
+    return change == null ? "" : change.wireName();
+  }
+
   static List<ShortlistRow> emerging(FlooredTable table, DriftMonitor drift, ShortlistSettings settings) {
     String recent = settings.drift().recentHorizon();
     List<DriftFinding> findings = new ArrayList<>();
@@ -154,7 +161,8 @@ public record ShortlistReport(ShortlistSettings settings, long asOfMillis, List<
       rows.add(new ShortlistRow(ShortlistRow.EMERGING, rows.size() + 1, forward ? stats.itemA() : stats.itemB(),
           forward ? stats.itemB() : stats.itemA(), recent, stats.counts().countAB().value(), m.support(),
           forward ? m.confidenceAB() : m.confidenceBA(), m.lift(), m.liftLower(), m.liftUpper(), finding.recentLift(),
-          finding.baselineLift(), finding.signedRootG2()));
+          finding.baselineLift(), finding.signedRootG2(), change(finding, settings),
+          DriftWords.summary(AlertKind.EMERGING, finding.emergingChange(settings.drift()), finding)));
     }
     return rows;
   }
@@ -180,7 +188,7 @@ public record ShortlistReport(ShortlistSettings settings, long asOfMillis, List<
         if (confidence >= settings.minConfidence() && confidence <= settings.maxConfidence()) {
           rows.add(new ShortlistRow(ShortlistRow.SUGGESTION, rows.size() + 1, forward ? stats.itemA() : stats.itemB(),
               forward ? stats.itemB() : stats.itemA(), settings.horizon(), stats.counts().countAB().value(), m.support(),
-              confidence, m.lift(), m.liftLower(), m.liftUpper(), recentLift, baselineLift, root));
+              confidence, m.lift(), m.liftLower(), m.liftUpper(), recentLift, baselineLift, root, "", ""));
         }
       }
       if (rows.size() == settings.top()) {

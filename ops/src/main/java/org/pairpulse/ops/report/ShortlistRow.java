@@ -19,11 +19,13 @@ package org.pairpulse.ops.report;
  * @param liftUpper upper end of the lift interval (may be +∞)
  * @param recentLift lift in {@code recent} (NaN when not published there)
  * @param baselineLift lift in {@code baseline} (NaN when not published there)
- * @param signedRootG2 signed √G² of recent against baseline (NaN when either is missing)
+ * @param signedRootG2 the drift finding's strength, signed √G² of its stronger test (NaN when not compared)
+ * @param change what moved for an emerging row ({@code rate}, {@code association} or {@code both}); empty otherwise
+ * @param evidence the emerging row's evidence in plain words (serve's {@code DriftWords}); empty otherwise
  */
 public record ShortlistRow(String list, int rank, String itemA, String itemB, String horizon, double pairBaskets,
     double support, double confidence, double lift, double liftLower, double liftUpper, double recentLift,
-    double baselineLift, double signedRootG2) {
+    double baselineLift, double signedRootG2, String change, String evidence) {
 
   public static final String EMERGING = "emerging";
   public static final String SUGGESTION = "suggestion";

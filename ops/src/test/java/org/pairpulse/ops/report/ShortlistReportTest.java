@@ -144,14 +144,19 @@ class ShortlistReportTest {
     String[] lines = csv.split("\n");
     assertEquals(String.join(",", ShortlistCsv.COLUMNS), lines[0]);
     assertEquals("segment,list,rank,item_a,item_b,horizon,pair_baskets,support,confidence,lift,lift_lower,lift_upper,"
-        + "recent_lift,baseline_lift,lift_ratio,signed_root_g2", lines[0]);
+        + "recent_lift,baseline_lift,lift_ratio,signed_root_g2,drift_change,evidence", lines[0]);
     assertEquals(1 + 3, lines.length, csv);
     for (int i = 1; i < lines.length; i++) {
-      String[] fields = lines[i].split(",", -1);
+      String[] fields = lines[i].split(",(?=(?:[^\"]*\"[^\"]*\")*[^\"]*$)", -1); // commas outside quotes
       assertEquals(ShortlistCsv.COLUMNS.size(), fields.length, lines[i]);
       assertEquals("all", fields[0]);
     }
     assertTrue(lines[1].startsWith("all,emerging,1,"), lines[1]);
+    // an emerging row says what moved and the counts behind it; a suggestion row leaves both empty
+    assertTrue(lines[1].contains(",association,\"") || lines[1].contains(",both,\"") || lines[1].contains(",rate,\""),
+        lines[1]);
+    assertTrue(lines[1].endsWith("in the reference period)\""), lines[1]);
+    assertTrue(lines[2].endsWith(",,"), lines[2]);
     assertTrue(lines[2].startsWith("all,suggestion,1,"), lines[2]);
     assertTrue(lines[3].startsWith("all,suggestion,2,"), lines[3]);
     assertEquals("0.5", lines[2].split(",")[8]);
