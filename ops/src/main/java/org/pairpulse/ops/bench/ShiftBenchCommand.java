@@ -6,6 +6,7 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.time.Instant;
+import java.util.ArrayList;
 import java.util.Comparator;
 import java.util.List;
 import java.util.Locale;
@@ -16,6 +17,9 @@ import org.pairpulse.ops.backtest.Backtest;
 import org.pairpulse.ops.backtest.BacktestRun;
 import org.pairpulse.ops.backtest.BacktestSettings;
 import org.pairpulse.ops.backtest.Detection;
+import org.pairpulse.ops.backtest.ReplayBasket;
+import org.pairpulse.ops.backtest.ReplaySource;
+import org.pairpulse.ops.drift.ExactDriftDetector;
 import org.pairpulse.ops.backtest.DurationText;
 import org.pairpulse.ops.backtest.SettingsFile;
 import org.pairpulse.ops.evaluation.EvaluationMethod;
@@ -105,7 +109,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     try {
       scenario = ScenarioConfig.defaults().withSeed(seed).withDurationDays(days).withBasketsPerMinute(basketsPerMinute);
     } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e, null, null);
+      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
     boolean temporary = workDir == null;
     Path directory = temporary ? Files.createTempDirectory("pairpulse-shift-") : workDir;
@@ -128,6 +132,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
       }
       run.printSummary(out);
       printDaysAfterChanges(out, run);
+      printReference(out, directory.resolve(ScenarioFiles.JSON_LINES_FILE), settings, truth, run);
       out.printf(Locale.ROOT, "  %.1f s in all%n", seconds(started));
       out.println(resultLine(run));
       out.flush();
@@ -147,7 +152,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
       EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
       return settings.withEvaluation(evalShare > 0 ? evaluation.withShare(evalShare).withK(10) : null);
     } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e, null, null);
+      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
   }
 
@@ -177,6 +182,43 @@ public final class ShiftBenchCommand implements Callable<Integer> {
   }
 
   /** The hit rates of the RESULT line, with their period and the planted-pair trials among them. */
+  /**
+   * The reference detector on exact counts ({@link ExactDriftDetector}, the drift benchmark's) on the same baskets:
+   * its delay per planted change, the delay the evidence allows, and pairpulse's delay over it (the reference's delay
+   * floored at one refresh interval).
+   */
+  private static void printReference(PrintWriter out, Path file, BacktestSettings settings, ScenarioGroundTruth truth,
+      BacktestRun run) throws IOException {
+    List<ReplayBasket> baskets = new ArrayList<>();
+    new ReplaySource(settings.limits(), settings.front()).read(file, null, baskets::add);
+    ExactDriftDetector.Result reference = new ExactDriftDetector(ExactDriftDetector.Settings.defaults()).run(baskets);
+    Detection exact = Detection.score(truth, reference.alerts(), reference.firstEventMillis(),
+        reference.lastEventMillis());
+    out.printf(Locale.ROOT, "  reference detector on exact counts: %d/%d planted changes, median delay %s simulated"
+        + " minutes, %d false alarms%n", exact.detected(), exact.events().size(), minutes(exact.medianDelayMinutes()),
+        exact.falseAlerts());
+    List<Double> ratios = new ArrayList<>();
+    for (int i = 0; i < run.detection().events().size() && i < exact.events().size(); i++) {
+      Detection.PlantedEvent ours = run.detection().events().get(i);
+      Detection.PlantedEvent theirs = exact.events().get(i);
+      out.printf(Locale.ROOT, "    %-8s %s + %s: pairpulse %s, exact counts %s%n", ours.kind().name().toLowerCase(Locale.ROOT),
+          ours.pair().first(), ours.pair().second(), minutes(ours.delayMinutes()), minutes(theirs.delayMinutes()));
+      if (ours.detected() && theirs.detected()) {
+        ratios.add(ours.delayMinutes() / Math.max(theirs.delayMinutes(), settings.refreshEveryMillis() / 60_000.0));
+      }
+    }
+    ratios.sort(null);
+    int n = ratios.size();
+    out.printf(Locale.ROOT, "  delay ratio to the reference, median over the changes both found: %s%n",
+        n == 0 ? "NA" : String.format(Locale.ROOT, "%.2f", n % 2 == 1 ? ratios.get(n / 2)
+            : (ratios.get(n / 2 - 1) + ratios.get(n / 2)) / 2));
+    out.flush();
+  }
+
+  private static String minutes(double value) {
+    return Double.isNaN(value) ? "not found" : String.format(Locale.ROOT, "%.0f min", value);
+  }
+
   private static void printDaysAfterChanges(PrintWriter out, BacktestRun run) {
     if (run.result().evaluation() == null || run.daysAfterChanges().isEmpty()) {
       return;

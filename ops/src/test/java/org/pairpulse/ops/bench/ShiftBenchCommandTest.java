@@ -69,5 +69,9 @@ class ShiftBenchCommandTest {
     String last = lines[lines.length - 1];
     assertTrue(RESULT.matcher(last).matches(), last);
     assertTrue(last.matches("RESULT shift detected=[0-3]/3 .*"), last);
+    // the reference detector on exact counts ran on the same baskets, change by change
+    assertTrue(out.toString().matches("(?s).*reference detector on exact counts: [0-3]/3 planted changes.*"),
+        out.toString());
+    assertTrue(out.toString().contains("delay ratio to the reference"), out.toString());
   }
 }
