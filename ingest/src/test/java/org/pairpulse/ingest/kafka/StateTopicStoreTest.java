@@ -1,6 +1,7 @@
 package org.pairpulse.ingest.kafka;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertNotNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.charset.StandardCharsets;
@@ -91,8 +92,18 @@ class StateTopicStoreTest {
         live.sendOffsetsToTransaction(w.offsets(), member.groupMetadata());
       }
       live.commitTransaction();
-      OffsetAndMetadata committed = admin.listConsumerGroupOffsets(group).partitionsToOffsetAndMetadata()
-          .get(60, TimeUnit.SECONDS).get(tp);
+      // a transactional offset commit shows once the coordinator has written the commit markers: on a loaded
+      // machine that can lag the producer's return, so ask again for a bounded time
+      OffsetAndMetadata committed = null;
+      long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(60);
+      while (committed == null && System.nanoTime() < deadline) {
+        committed = admin.listConsumerGroupOffsets(group).partitionsToOffsetAndMetadata()
+            .get(60, TimeUnit.SECONDS).get(tp);
+        if (committed == null) {
+          Thread.sleep(100);
+        }
+      }
+      assertNotNull(committed, "the committed offsets of " + group);
       assertEquals(42, committed.offset());
       assertTrue(committed.metadata().startsWith("pp1 0 1 3 1"), committed.metadata());
       assertEquals(0L, reader.endOffsets(List.of(statePartition)).get(statePartition),
