@@ -20,7 +20,8 @@ import org.pairpulse.sketch.table.PairStats;
  *           not fall);</li>
  *       <li>{@code rate}: rate root ≥ z, rate ratio ≥ R, association root &gt; −z′, the association <em>not
  *           shown unchanged</em> ({@link DriftStatistics#associationShownUnchanged}: ln of the odds-ratio ratio ± one
- *           standard error inside ±ln R).</li>
+ *           standard error inside ±ln R), and the pair's association now significant at the drift level (its
+ *           size-adjusted signed √G² ≥ z).</li>
  *     </ul>
  *     Every route also needs the pair associated now: its lift interval's lower end above 1 under the size-adjusted
  *     null model (the pair table's default). The odds ratio is a textbook 2×2 measure and moves with basket size:
@@ -58,6 +59,8 @@ import org.pairpulse.sketch.table.PairStats;
  * @param referenceBaskets N in the reference period
  * @param recentLiftLower the lower bound of the recent lift interval
  * @param referenceLiftLower the lower bound of the reference lift interval
+ * @param recentAssociationRoot signed √G² of the pair's association now (size-adjusted null model, effective counts)
+ * @param referenceAssociationRoot the same in the reference period
  * @param recentMinConfidence the smaller of the two confidences now
  * @param referenceMinConfidence the smaller of the two confidences in the reference period
  * @param recentBundle whether the pair is a bundle pair now
@@ -67,7 +70,8 @@ import org.pairpulse.sketch.table.PairStats;
 public record DriftFinding(PairKey pair, double signedRootG2, double pValue, double rateRootG2,
     double associationRootG2, double rateRatio, double oddsRatioRatio, boolean associationUnchanged, double recentLift,
     double baselineLift, double liftRatio, double recentPairBaskets, double baselinePairBaskets, double recentBaskets,
-    double referenceBaskets, double recentLiftLower, double referenceLiftLower, double recentMinConfidence,
+    double referenceBaskets, double recentLiftLower, double referenceLiftLower, double recentAssociationRoot,
+    double referenceAssociationRoot, double recentMinConfidence,
     double referenceMinConfidence, boolean recentBundle, boolean baselineBundle, long trackedSinceMillis) {
 
   /**
@@ -109,6 +113,7 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
     return new DriftFinding(PairKey.of(recent.itemA(), recent.itemB()), strongest, DriftStatistics.pValue(strongest),
         rateRoot, associationRoot, rateRatio, oddsRatioRatio, unchanged, r.lift(), b.lift(), r.lift() / b.lift(),
         rc.countAB().value(), bc.countAB().value(), rc.baskets(), bc.baskets(), r.liftLower(), b.liftLower(),
+        r.signedRootGSquared() * Math.sqrt(recentFactor), b.signedRootGSquared() * Math.sqrt(referenceFactor),
         Math.min(r.confidenceAB(), r.confidenceBA()), minConfidence(bc), r.isBundle(),
         b.isBundle(), recent.trackedSinceMillis());
   }
@@ -167,7 +172,11 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
     if (associationMoved && rate > -s.exitRootG2()) {
       return DriftChange.ASSOCIATION;
     }
-    if (rateMoved && association > -s.exitRootG2() && !associationUnchanged) {
+    // the rate route has no test of a change of association: it needs the association itself (now for emerging,
+    // before for fading) at the drift level, not at a single interval's 95 %; an item whose popularity jumps has
+    // hundreds of pairs, and some of them sit just above lift 1 by chance
+    double associated = sign > 0 ? recentAssociationRoot : referenceAssociationRoot;
+    if (rateMoved && association > -s.exitRootG2() && !associationUnchanged && associated >= s.enterRootG2()) {
       return DriftChange.RATE;
     }
     return null;

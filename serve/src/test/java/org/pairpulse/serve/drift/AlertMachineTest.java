@@ -28,7 +28,7 @@ class AlertMachineTest {
   private static DriftFinding finding(double root, double ratio) {
     // both tests agree (rate and association), associated now: the "both" route when strong enough
     return new DriftFinding(PAIR, root, DriftStatistics.pValue(root), root, root, ratio, ratio, false, 3.0 * ratio, 3.0,
-        ratio, 80, 400, 1000, 20_000, 2.0, 2.0, 0.4, 0.3, false, false, 0L);
+        ratio, 80, 400, 1000, 20_000, 2.0, 2.0, 8.0, 6.0, 0.4, 0.3, false, false, 0L);
   }
 
   private static DriftFinding bundleFinding(boolean recentBundle, boolean baselineBundle, double minConfidence) {
@@ -37,7 +37,8 @@ class AlertMachineTest {
 
   private static DriftFinding bundleFinding(boolean recentBundle, boolean baselineBundle, double minConfidence,
       double referenceMinConfidence) {
-    return new DriftFinding(PAIR, 0, 1, 0, 0, 1.1, 1.1, true, 9, 8, 1.1, 80, 400, 1000, 20_000, 5, 5, minConfidence,
+    return new DriftFinding(PAIR, 0, 1, 0, 0, 1.1, 1.1, true, 9, 8, 1.1, 80, 400, 1000, 20_000, 5, 5, 20, 20,
+        minConfidence,
         referenceMinConfidence, recentBundle, baselineBundle, 0L);
   }
 
