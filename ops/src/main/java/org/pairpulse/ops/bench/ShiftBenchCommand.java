@@ -194,8 +194,8 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     ExactDriftDetector.Result reference = new ExactDriftDetector(ExactDriftDetector.Settings.defaults()).run(baskets);
     Detection exact = Detection.score(truth, reference.alerts(), reference.firstEventMillis(),
         reference.lastEventMillis());
-    out.printf(Locale.ROOT, "  reference detector on exact counts: %d/%d planted changes, median delay %s simulated"
-        + " minutes, %d false alarms%n", exact.detected(), exact.events().size(), minutes(exact.medianDelayMinutes()),
+    out.printf(Locale.ROOT, "  reference detector on exact counts: %d/%d planted changes, median delay %s"
+        + " (simulated), %d false alarms%n", exact.detected(), exact.events().size(), minutes(exact.medianDelayMinutes()),
         exact.falseAlerts());
     List<Double> ratios = new ArrayList<>();
     for (int i = 0; i < run.detection().events().size() && i < exact.events().size(); i++) {
