@@ -19,6 +19,7 @@ import org.pairpulse.ops.backtest.BacktestSettings;
 import org.pairpulse.ops.backtest.Detection;
 import org.pairpulse.ops.backtest.ReplayBasket;
 import org.pairpulse.ops.backtest.ReplaySource;
+import org.pairpulse.ops.drift.DriftScore;
 import org.pairpulse.ops.drift.ExactDriftDetector;
 import org.pairpulse.ops.backtest.DurationText;
 import org.pairpulse.ops.backtest.SettingsFile;
@@ -207,11 +208,9 @@ public final class ShiftBenchCommand implements Callable<Integer> {
         ratios.add(ours.delayMinutes() / Math.max(theirs.delayMinutes(), settings.refreshEveryMillis() / 60_000.0));
       }
     }
-    ratios.sort(null);
-    int n = ratios.size();
+    double median = DriftScore.median(ratios.stream().mapToDouble(Double::doubleValue).toArray());
     out.printf(Locale.ROOT, "  delay ratio to the reference, median over the changes both found: %s%n",
-        n == 0 ? "NA" : String.format(Locale.ROOT, "%.2f", n % 2 == 1 ? ratios.get(n / 2)
-            : (ratios.get(n / 2 - 1) + ratios.get(n / 2)) / 2));
+        Double.isNaN(median) ? "NA" : String.format(Locale.ROOT, "%.2f", median));
     out.flush();
   }
 

@@ -241,7 +241,7 @@ public record DriftScore(List<Change> changes, List<ScoredAlert> alerts, double 
   }
 
   /** The median (mean of the middle two for an even count); NaN for none. */
-  static double median(double[] values) {
+  public static double median(double[] values) {
     if (values.length == 0) {
       return Double.NaN;
     }

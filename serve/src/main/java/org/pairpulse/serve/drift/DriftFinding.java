@@ -131,7 +131,8 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
   static boolean mayEnter(PairCounts recent, PairCounts reference, double recentFactor, double referenceFactor,
       DriftSettings s) {
     double ab = recent.countAB().value();
-    if (ab >= MeasureSettings.defaults().bundleConfidence() * Math.max(recent.countA().value(), recent.countB().value())) {
+    double mostA = Math.max(recent.countA().value(), recent.countB().value());
+    if (ab >= MeasureSettings.defaults().bundleConfidence() * mostA) {
       double referenceAB = reference.countAB().value();
       double referenceMax = Math.max(reference.countA().value(), reference.countB().value());
       return !(referenceAB >= s.bundleExitConfidence() * referenceMax);

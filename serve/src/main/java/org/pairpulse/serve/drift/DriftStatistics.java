@@ -85,15 +85,6 @@ public final class DriftStatistics {
     return observed <= 0 ? 0.0 : observed * Math.log(observed / expected);
   }
 
-  /** E = n_a·n_b / N from point values clamped to N; NaN when N or a marginal is 0. */
-  public static double exposure(PairCounts counts) {
-    double baskets = counts.baskets();
-    double a = Math.min(counts.countA().value(), baskets);
-    double b = Math.min(counts.countB().value(), baskets);
-    double e = a * b / baskets;
-    return e > 0 && !Double.isInfinite(e) ? e : Double.NaN;
-  }
-
   /**
    * Effective baskets per unit of decayed count of a decay with half-life h whose stream began
    * {@code ageMillis} ago: 2 / (1 + 2^(−age/h)); 1 for a window ({@code halfLifeMillis} ≤ 0).
@@ -170,9 +161,6 @@ public final class DriftStatistics {
       return new Period(n * factor, a * factor, b * factor, ab * factor);
     }
 
-    double rate() {
-      return countAB / baskets;
-    }
   }
 
   /**
