@@ -93,6 +93,9 @@ public final class ServeConfig {
       "quiet time after a resolved alert before the same pair and kind can alert again", v -> (long) v >= 0);
   public static final String DRIFT_REPORTED = define("drift.maxReported", Type.INT, "100", ">= 1",
       "entries per kind in a drift report", v -> (int) v >= 1);
+  public static final String DRIFT_SHORT_HALF_LIFE = define("drift.shortHalfLifeMillis", Type.LONG, "3600000", ">= 0",
+      "half-life of the short scale each pair is also tested at, derived from successive tables; 0: recent decay only",
+      v -> (long) v >= 0);
   public static final String KAFKA_BOOTSTRAP = define("alerts.kafka.bootstrapServers", Type.STRING, "",
       "empty, or host:port[,host:port]", "Kafka cluster for the alerts topic; empty: no topic publishing", v -> true);
   public static final String KAFKA_TOPIC = define("alerts.kafka.topic", Type.STRING, "pairpulse.alerts",
@@ -242,7 +245,7 @@ public final class ServeConfig {
   public DriftSettings driftSettings() {
     return new DriftSettings("recent", DriftSettings.REFERENCE_HORIZON, doubleValue(DRIFT_ENTER_ROOT_G2), doubleValue(DRIFT_EXIT_ROOT_G2),
         doubleValue(DRIFT_ENTER_RATIO), doubleValue(DRIFT_EXIT_RATIO), doubleValue(DRIFT_BUNDLE_EXIT),
-        longValue(DRIFT_DWELL), longValue(DRIFT_COOLDOWN), intValue(DRIFT_REPORTED));
+        longValue(DRIFT_DWELL), longValue(DRIFT_COOLDOWN), intValue(DRIFT_REPORTED), longValue(DRIFT_SHORT_HALF_LIFE));
   }
 
   public Duration watchInterval() {

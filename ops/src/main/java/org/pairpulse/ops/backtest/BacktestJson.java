@@ -132,6 +132,7 @@ public final class BacktestJson {
     number(json, "bundleExitConfidence", drift.bundleExitConfidence());
     json.writeNumberField("minDwellMillis", drift.minDwellMillis());
     json.writeNumberField("cooldownMillis", drift.cooldownMillis());
+    json.writeNumberField("shortHalfLifeMillis", drift.shortHalfLifeMillis());
     json.writeEndObject();
     EvaluationSettings evaluation = settings.evaluation();
     if (evaluation != null) {
@@ -216,6 +217,7 @@ public final class BacktestJson {
       json.writeBooleanField("recentBundle", finding.recentBundle());
       json.writeBooleanField("baselineBundle", finding.baselineBundle());
       time(json, "trackedSince", finding.trackedSinceMillis());
+      json.writeNumberField("recentHalfLifeMillis", finding.recentHalfLifeMillis());
       json.writeEndObject();
     }
     json.writeEndObject();

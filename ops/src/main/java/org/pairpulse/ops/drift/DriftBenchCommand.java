@@ -94,7 +94,7 @@ public final class DriftBenchCommand implements Callable<Integer> {
   int threads = Math.min(2, Runtime.getRuntime().availableProcessors());
 
   /** One stream's scores: pairpulse's and the reference's (null when skipped). */
-  private record StreamScores(DriftScore ours, DriftScore exact) {}
+  private record StreamScores(DriftScore ours, DriftScore exact, DriftScore floored) {}
 
   @Override
   public Integer call() throws Exception {
@@ -124,6 +124,7 @@ public final class DriftBenchCommand implements Callable<Integer> {
     ExecutorService pool = Executors.newFixedThreadPool(Math.min(threads, streams.size()));
     List<DriftScore> ours = new ArrayList<>();
     List<DriftScore> exact = new ArrayList<>();
+    List<DriftScore> floored = new ArrayList<>();
     try {
       List<Future<StreamScores>> runs = new ArrayList<>();
       for (DriftStream stream : streams) {
@@ -134,6 +135,7 @@ public final class DriftBenchCommand implements Callable<Integer> {
         ours.add(scores.ours());
         if (scores.exact() != null) {
           exact.add(scores.exact());
+          floored.add(scores.floored());
         }
       }
     } finally {
@@ -141,7 +143,14 @@ public final class DriftBenchCommand implements Callable<Integer> {
     }
     DriftScore all = DriftScore.combine(ours);
     DriftScore reference = noReference ? null : DriftScore.combine(exact);
-    printChanges(out, all, reference);
+    DriftScore flooredReference = noReference ? null : DriftScore.combine(floored);
+    printChanges(out, all, reference, flooredReference);
+    if (flooredReference != null) {
+      double ratio = all.medianDelayRatio(flooredReference, refreshMinutes);
+      out.printf(Locale.ROOT, "  reference median delay %.0f min; held to the cohort floor (%.0f baskets) %.0f min,"
+          + " pairpulse's median ratio to it %.2f%n", reference.medianDelayMinutes(), settings.cohortFloor(),
+          flooredReference.medianDelayMinutes(), ratio);
+    }
     out.printf(Locale.ROOT, "  %.1f s in all%n", seconds(started));
     out.println(resultLine(all, reference, refreshMinutes));
     out.flush();
@@ -156,17 +165,26 @@ public final class DriftBenchCommand implements Callable<Integer> {
     print(out, String.format(Locale.ROOT, "  %s pairpulse: %,d baskets, %,d refreshes, %d alerts raised: %s; %.1f s",
         stream.name(), result.baskets(), result.refreshes(), score.alerts().size(), classes(score), seconds(started)));
     if (noReference) {
-      return new StreamScores(score, null);
+      return new StreamScores(score, null, null);
     }
     ExactDriftDetector.Settings exact = ExactDriftDetector.Settings.defaults();
+    DriftScore referenceScore = reference(stream, exact, "exact", out, started);
+    DriftScore flooredScore = reference(stream, exact.withCohortFloor((int) Math.ceil(settings.cohortFloor())),
+        "exact, cohort floor", out, started);
+    return new StreamScores(score, referenceScore, flooredScore);
+  }
+
+  /** The reference detector's score on one stream, with a progress line. */
+  private static DriftScore reference(DriftStream stream, ExactDriftDetector.Settings exact, String label,
+      PrintWriter out, long started) {
     ExactDriftDetector.Result reference = new ExactDriftDetector(exact).run(stream);
     DriftScore referenceScore = DriftScore.score(stream.name(), stream.truth(), reference.alerts(),
         reference.firstEventMillis(), reference.lastEventMillis());
-    print(out, String.format(Locale.ROOT, "  %s exact: %,d pairs tested (>= %d occurrences), threshold G2 %.1f"
-        + " (alpha %.2g), %d alarms: %s; %.1f s", stream.name(), reference.pairsTested(), exact.minPairCount(),
+    print(out, String.format(Locale.ROOT, "  %s %s: %,d pairs tested (>= %d occurrences), threshold G2 %.1f"
+        + " (alpha %.2g), %d alarms: %s; %.1f s", stream.name(), label, reference.pairsTested(), exact.minPairCount(),
         reference.thresholdG2(), reference.testLevel(), reference.alarms().size(), classes(referenceScore),
         seconds(started)));
-    return new StreamScores(score, referenceScore);
+    return referenceScore;
   }
 
   private static void print(PrintWriter out, String line) {
@@ -243,18 +261,23 @@ public final class DriftBenchCommand implements Callable<Integer> {
     return text.length() == 0 ? "none" : text.toString();
   }
 
-  /** One line per planted change: shape, level, change time, both delays, direction errors on the pair. */
-  static void printChanges(PrintWriter out, DriftScore ours, DriftScore reference) {
-    out.printf(Locale.ROOT, "  %-15s %-7s %-8s %-20s %12s %12s  %s%n", "shape", "level", "kind", "change",
-        "pairpulse", "exact", "direction");
+  /**
+   * One line per planted change: shape, level, change time, the delays (pairpulse's, the reference's, the reference's
+   * held to the cohort floor), direction errors on the pair.
+   */
+  static void printChanges(PrintWriter out, DriftScore ours, DriftScore reference, DriftScore floored) {
+    out.printf(Locale.ROOT, "  %-15s %-7s %-8s %-20s %12s %12s %12s  %s%n", "shape", "level", "kind", "change",
+        "pairpulse", "exact", "exact_floor", "direction");
     for (DriftScore.Change change : ours.changes()) {
       DriftScore.Change other = reference == null ? null : DriftScore.find(reference.changes(), change);
+      DriftScore.Change held = floored == null ? null : DriftScore.find(floored.changes(), change);
       String stream = change.stream();
       String level = stream.substring(0, stream.indexOf('/'));
       long errors = ours.directionErrors(stream, change.plant());
-      out.printf(Locale.ROOT, "  %-15s %-7s %-8s %-20s %12s %12s  %s%n", change.plant().shape().wireName(), level,
+      out.printf(Locale.ROOT, "  %-15s %-7s %-8s %-20s %12s %12s %12s  %s%n", change.plant().shape().wireName(), level,
           change.plant().pair().kind().name().toLowerCase(Locale.ROOT), Instant.ofEpochMilli(change.changeMillis()),
-          delay(change), other == null ? "NA" : delay(other), errors == 0 ? "ok" : errors + " wrong-way alert(s)");
+          delay(change), other == null ? "NA" : delay(other), held == null ? "NA" : delay(held),
+          errors == 0 ? "ok" : errors + " wrong-way alert(s)");
     }
     printFaults(out, "pairpulse", ours);
     if (reference != null) {

@@ -42,6 +42,11 @@ import org.pairpulse.serve.floor.PairKey;
  * at most B (conservative: overlapping windows and scales are strongly dependent). The threshold is the χ²(1) quantile
  * at 1 − α (Commons Math).
  *
+ * <h2>Cohort floor</h2>
+ * With {@link Settings#cohortFloor()} set, a pair cannot alarm before it was bought together in that many baskets
+ * (counted from the run's start): the delay a detector that obeys pairpulse's privacy rule cannot beat, whatever its
+ * statistics. Without it (the default), the delay the evidence alone allows.
+ *
  * <h2>Alarms</h2>
  * An alarm of a pair and direction is raised at the first boundary where some scale signals it after a boundary where
  * none did (an episode raises once), as an {@link AlertEvent} (segment {@value #SEGMENT}, transition RAISED, no
@@ -60,13 +65,16 @@ public final class ExactDriftDetector {
    * @param referenceHours the reference period's length before the recent period
    * @param minReferenceHours no test while the reference period is shorter
    * @param falseAlarmsPerDay the Bonferroni budget B of expected false alarms per simulated day
+   * @param cohortFloor no alarm on a pair before it was bought together in this many baskets since the run began
+   *     (0: none): the privacy rule pairpulse's published statistics and alerts obey (serve's cohort floor, whose
+   *     evidence window, 28 days by default, holds a whole run of the family)
    */
   public record Settings(int minPairCount, List<Integer> scalesHours, int referenceHours, int minReferenceHours,
-      double falseAlarmsPerDay) {
+      double falseAlarmsPerDay, int cohortFloor) {
     public Settings {
       scalesHours = List.copyOf(scalesHours);
       if (minPairCount < 1 || scalesHours.isEmpty() || referenceHours < 1 || minReferenceHours < 1
-          || minReferenceHours > referenceHours || !(falseAlarmsPerDay > 0)) {
+          || minReferenceHours > referenceHours || !(falseAlarmsPerDay > 0) || cohortFloor < 0) {
         throw new IllegalArgumentException("invalid reference detector settings");
       }
       for (int scale : scalesHours) {
@@ -76,9 +84,17 @@ public final class ExactDriftDetector {
       }
     }
 
-    /** 20 occurrences, scales 1–32 h, 7 days of reference (at least 24 h), 0.5 false alarms per simulated day. */
+    /**
+     * 20 occurrences, scales 1–32 h, 7 days of reference (at least 24 h), 0.5 false alarms per simulated day, no
+     * cohort floor.
+     */
     public static Settings defaults() {
-      return new Settings(20, List.of(1, 2, 4, 8, 16, 32), 7 * 24, 24, 0.5);
+      return new Settings(20, List.of(1, 2, 4, 8, 16, 32), 7 * 24, 24, 0.5, 0);
+    }
+
+    /** These settings with an alarm held back until the pair reaches {@code baskets} co-occurrences. */
+    public Settings withCohortFloor(int baskets) {
+      return new Settings(minPairCount, scalesHours, referenceHours, minReferenceHours, falseAlarmsPerDay, baskets);
     }
   }
 
@@ -217,6 +233,9 @@ public final class ExactDriftDetector {
         }
         for (int row = 0; row < pairs; row++) {
           int base = row * stride;
+          if (pairCum[base + boundary] < settings.cohortFloor()) {
+            continue; // under the cohort floor: nothing may be said about the pair yet
+          }
           long x = pairCum[base + boundary] - pairCum[base + recentFrom];
           long y = pairCum[base + recentFrom] - pairCum[base + referenceFrom];
           double rate = PeriodTests.rateG2(x, recentBaskets, y, referenceBaskets);

@@ -48,7 +48,7 @@ class ExactDriftDetectorTest {
         baskets.add(new ReplayBasket("h" + hour + "-" + i, START + hour * HOUR + i * 30_000L, contents.get(i), Map.of()));
       }
     }
-    ExactDriftDetector detector = new ExactDriftDetector(new ExactDriftDetector.Settings(20, List.of(1), 48, 24, 0.5));
+    ExactDriftDetector detector = new ExactDriftDetector(new ExactDriftDetector.Settings(20, List.of(1), 48, 24, 0.5, 0));
     ExactDriftDetector.Result result = detector.run(baskets);
     assertEquals(1, result.pairsTested());
     assertEquals(0.5 / 24, result.testLevel(), 1e-15);
@@ -63,6 +63,10 @@ class ExactDriftDetectorTest {
     assertEquals(PeriodTests.homogeneityG2(new double[] {10, 0, 0, 90}, new double[] {48, 480, 480, 3792}),
         alarm.associationG2(), 1e-9);
     assertTrue(alarm.associationG2() > 20, "association G2 " + alarm.associationG2());
+    // the cohort floor counts the pair's baskets up to the boundary: 48 + 10 = 58 at hour 49
+    ExactDriftDetector.Settings oneScale = new ExactDriftDetector.Settings(20, List.of(1), 48, 24, 0.5, 0);
+    assertEquals(result.alarms(), new ExactDriftDetector(oneScale.withCohortFloor(58)).run(baskets).alarms());
+    assertEquals(List.of(), new ExactDriftDetector(oneScale.withCohortFloor(59)).run(baskets).alarms());
   }
 
   private static void addCopies(List<List<String>> contents, List<String> items, int copies) {

@@ -8,7 +8,7 @@ import java.util.Locale;
 import java.util.Map;
 import java.util.Objects;
 import java.util.TreeMap;
-import java.util.function.Function;
+import java.util.function.BiFunction;
 import org.pairpulse.serve.floor.PairKey;
 
 /**
@@ -93,11 +93,11 @@ public final class AlertMachine {
    * @param nowMillis the alert clock's time
    * @param tableVersion the version observed
    * @param entering findings that meet an entry condition this round (others may be left out)
-   * @param lookup the current finding of any pair, or null when it is not published in both horizons
+   * @param lookup the current finding of any pair for a kind, or null when it is not published in both horizons
    * @return the events of this round, in key order
    */
   public List<AlertEvent> step(long nowMillis, long tableVersion, Iterable<DriftFinding> entering,
-      Function<PairKey, DriftFinding> lookup) {
+      BiFunction<PairKey, AlertKind, DriftFinding> lookup) {
     for (DriftFinding finding : entering) {
       for (AlertKind kind : AlertKind.values()) {
         if (finding.enters(kind, settings)) {
@@ -110,7 +110,7 @@ public final class AlertMachine {
       Map.Entry<Key, Track> entry = it.next();
       Key key = entry.getKey();
       Track track = entry.getValue();
-      DriftFinding now = lookup.apply(key.pair());
+      DriftFinding now = lookup.apply(key.pair(), key.kind());
       if (now != null) {
         track.last = now;
       }

@@ -66,13 +66,16 @@ import org.pairpulse.sketch.table.PairStats;
  * @param recentBundle whether the pair is a bundle pair now
  * @param baselineBundle whether it is one in the reference period
  * @param trackedSinceMillis event time at which the pair entered the tracked table
+ * @param recentHalfLifeMillis the half-life of the recent period the two tests read: the table's recent decay, or
+ *     the monitor's shorter scale ({@link ShortScale}); 0 when the recent period is a window
  */
 public record DriftFinding(PairKey pair, double signedRootG2, double pValue, double rateRootG2,
     double associationRootG2, double rateRatio, double oddsRatioRatio, boolean associationUnchanged, double recentLift,
     double baselineLift, double liftRatio, double recentPairBaskets, double baselinePairBaskets, double recentBaskets,
     double referenceBaskets, double recentLiftLower, double referenceLiftLower, double recentAssociationRoot,
     double referenceAssociationRoot, double recentMinConfidence,
-    double referenceMinConfidence, boolean recentBundle, boolean baselineBundle, long trackedSinceMillis) {
+    double referenceMinConfidence, boolean recentBundle, boolean baselineBundle, long trackedSinceMillis,
+    long recentHalfLifeMillis) {
 
   /**
    * Width, in standard errors, of the odds-ratio-ratio interval that shows an association unchanged (the
@@ -99,9 +102,21 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
    */
   public static DriftFinding of(PairStats recent, PairStats reference, PairCounts referenceCounts, double recentFactor,
       double referenceFactor, DriftSettings settings) {
+    return of(recent, recent.counts(), 0L, reference, referenceCounts, recentFactor, referenceFactor, settings);
+  }
+
+  /**
+   * The finding with both periods' counts given apart: the tests read {@code recentCounts} (e.g. the monitor's short
+   * scale, of half-life {@code recentHalfLifeMillis}) and {@code referenceCounts}; the lifts, their intervals, the
+   * association now and the confidences come from {@code recent}'s and {@code reference}'s own measures
+   * (size-adjusted, as the table published them), so the gate "associated beyond basket size" reads the table.
+   */
+  public static DriftFinding of(PairStats recent, PairCounts recentCounts, long recentHalfLifeMillis,
+      PairStats reference, PairCounts referenceCounts, double recentFactor, double referenceFactor,
+      DriftSettings settings) {
     PairMeasures r = recent.measures();
     PairMeasures b = reference.measures();
-    PairCounts rc = recent.counts();
+    PairCounts rc = recentCounts;
     PairCounts bc = referenceCounts;
     double rateRoot = DriftStatistics.rateRootG2(rc, recentFactor, bc, referenceFactor);
     double associationRoot = DriftStatistics.associationRootG2(rc, recentFactor, bc, referenceFactor);
@@ -115,7 +130,7 @@ public record DriftFinding(PairKey pair, double signedRootG2, double pValue, dou
         rc.countAB().value(), bc.countAB().value(), rc.baskets(), bc.baskets(), r.liftLower(), b.liftLower(),
         r.signedRootGSquared() * Math.sqrt(recentFactor), b.signedRootGSquared() * Math.sqrt(referenceFactor),
         Math.min(r.confidenceAB(), r.confidenceBA()), minConfidence(bc), r.isBundle(),
-        b.isBundle(), recent.trackedSinceMillis());
+        b.isBundle(), recent.trackedSinceMillis(), recentHalfLifeMillis);
   }
 
   /** min(n_ab/n_a, n_ab/n_b) from point values; 0 without items. */

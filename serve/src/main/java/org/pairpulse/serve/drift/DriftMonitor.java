@@ -14,16 +14,30 @@ import org.pairpulse.sketch.table.PairStats;
 
 /**
  * Drift detection for one segment: compares the recent period with the reference period (by default
- * {@code recent} against the engine's tracking decay) for every pair published in both (so the cohort floor applies to alerts too), feeds the {@link AlertMachine}
- * and keeps the newest {@link DriftReport}.
+ * {@code recent} against the engine's tracking decay) for every pair published in both (so the cohort floor applies
+ * to alerts too), feeds the {@link AlertMachine} and keeps the newest {@link DriftReport}.
+ *
+ * <h2>Two scales</h2>
+ * Each pair is tested twice against the same reference: with the recent decay's counts (half-life 6 h by default),
+ * and with a shorter decay the monitor derives from successive tables ({@link ShortScale}, half-life
+ * {@link DriftSettings#shortHalfLifeMillis}, 1 h by default), which sees the first hours of a change that the
+ * recent decay still averages away (a pair that stops selling in the evening, a pair that starts in a busy hour).
+ * Both scales test at the Bonferroni-corrected root {@link DriftStatistics#rootForTests}, so the two together keep
+ * the false-alarm bound of one. The gates that read the table (associated beyond basket size now or before, the
+ * bundle confidences) read the recent horizon at both scales. An alert enters when either scale enters and stays
+ * active while either holds.
  *
  * <p>Cost: one pass over the published pairs per table version (a hash lookup and a few logarithms
- * each). Thread-safety: {@link #observe} from one thread; {@link #report()} from any.
+ * each), and one over the tracked pairs for the short scale. Thread-safety: {@link #observe} from one thread;
+ * {@link #report()} from any.
  */
 public final class DriftMonitor {
   private final DriftSettings settings;
+  /** {@link #settings} with the entry root corrected for the number of scales tested (see the class comment). */
+  private DriftSettings tested;
   private final String segment;
-  private final AlertMachine machine;
+  private AlertMachine machine;
+  private final ShortScale shortScale;
   private volatile DriftReport report;
   /** The watermark of the first table observed: the start of the stream as far as the decays' ages go. */
   private long firstWatermarkMillis = Long.MIN_VALUE;
@@ -31,8 +45,26 @@ public final class DriftMonitor {
   public DriftMonitor(DriftSettings settings, String segment) {
     this.settings = Objects.requireNonNull(settings, "settings");
     this.segment = Objects.requireNonNull(segment, "segment");
+    this.tested = settings;
     this.machine = new AlertMachine(settings, segment);
+    this.shortScale = settings.shortHalfLifeMillis() > 0 ? new ShortScale(settings.shortHalfLifeMillis(),
+        settings.recentHorizon()) : null;
     this.report = DriftReport.empty(segment);
+  }
+
+  /**
+   * Sets the tested settings from the first table that shows the recent horizon's half-life (a machine with no
+   * track yet is replaced; its thresholds do not change afterwards, as the horizons of a table do not).
+   */
+  private void calibrate(FlooredTable table) {
+    if (machine.size() > 0 || tested != settings) {
+      return;
+    }
+    int scales = shortScale == null ? 1 : settings.scales(table.halfLifeMillis(settings.recentHorizon()));
+    if (scales > 1) {
+      tested = settings.withRootG2(DriftStatistics.rootForTests(settings.enterRootG2(), scales), settings.exitRootG2());
+      machine = new AlertMachine(tested, segment);
+    }
   }
 
   public DriftSettings settings() {
@@ -41,18 +73,49 @@ public final class DriftMonitor {
 
   /** The finding of {a, b} in {@code table}, if the pair is published in both horizons. */
   public synchronized Optional<DriftFinding> finding(FlooredTable table, PairKey pair) {
-    return finding(table, pair, factors(table));
+    return Optional.ofNullable(finding(table, pair, factors(table), null));
   }
 
-  private Optional<DriftFinding> finding(FlooredTable table, PairKey pair, Factors factors) {
+  /**
+   * The finding of {a, b} for {@code kind} (null: the recent scale's): the scale that enters {@code kind}, else one
+   * that holds it (does not exit), the recent scale first; null when the pair is not published in both horizons.
+   */
+  private DriftFinding finding(FlooredTable table, PairKey pair, Factors factors, AlertKind kind) {
     Optional<PairStats> recent = table.pair(pair.first(), pair.second(), settings.recentHorizon());
     Optional<PairStats> reference = table.pair(pair.first(), pair.second(), factors.referenceHorizon());
     if (recent.isEmpty() || reference.isEmpty()) {
-      return Optional.empty();
+      return null;
     }
     PairCounts counts = referenceCounts(recent.get(), reference.get(), factors);
-    return Optional.of(DriftFinding.of(recent.get(), reference.get(), counts, factors.recent(), factors.reference(),
-        settings));
+    DriftFinding atRecent = DriftFinding.of(recent.get(), recent.get().counts(), factors.recentHalfLife(),
+        reference.get(), counts, factors.recent(), factors.reference(), tested);
+    DriftFinding atShort = kind == null ? null : shortFinding(recent.get(), reference.get(), counts, factors, false);
+    if (atShort == null || atRecent.enters(kind, tested)) {
+      return atRecent;
+    }
+    if (atShort.enters(kind, tested) || atRecent.exits(kind, tested) && !atShort.exits(kind, tested)) {
+      return atShort;
+    }
+    return atRecent;
+  }
+
+  /** The short scale's finding of a pair, or null (no short scale, pair not seen, or cannot enter when screened). */
+  private DriftFinding shortFinding(PairStats recent, PairStats reference, PairCounts referenceCounts, Factors factors,
+      boolean screen) {
+    if (shortScale == null || !factors.withShort()) {
+      return null;
+    }
+    PairCounts counts = shortScale.counts(recent);
+    if (counts == null) {
+      return null;
+    }
+    double factor = DriftStatistics.effectiveCountFactor(shortScale.halfLifeMillis(),
+        Math.min(factors.age(), shortScale.ageMillis(recent)));
+    if (screen && !DriftFinding.mayEnter(counts, referenceCounts, factor, factors.reference(), tested)) {
+      return null;
+    }
+    return DriftFinding.of(recent, counts, shortScale.halfLifeMillis(), reference, referenceCounts, factor,
+        factors.reference(), tested);
   }
 
   /**
@@ -61,7 +124,8 @@ public final class DriftMonitor {
    * after a restart: fewer alerts, never more), and whether the recent decay is taken out of the reference
    * ({@link DriftStatistics#excluding}: when both are decays and the reference is the longer).
    */
-  private record Factors(double recent, double reference, boolean excludeRecent, String referenceHorizon) {}
+  private record Factors(double recent, double reference, boolean excludeRecent, String referenceHorizon,
+      long recentHalfLife, long age, boolean withShort) {}
 
   /**
    * The reference horizon of {@code table}: the configured one, or, in a table that does not hold it (one not
@@ -81,7 +145,8 @@ public final class DriftMonitor {
     boolean exclude = recentHalfLife > 0 && referenceHalfLife > recentHalfLife;
     double reference = exclude ? DriftStatistics.effectiveCountFactor(referenceHalfLife, recentHalfLife, age)
         : DriftStatistics.effectiveCountFactor(referenceHalfLife, age);
-    return new Factors(DriftStatistics.effectiveCountFactor(recentHalfLife, age), reference, exclude, referenceHorizon);
+    return new Factors(DriftStatistics.effectiveCountFactor(recentHalfLife, age), reference, exclude, referenceHorizon,
+        recentHalfLife, age, settings.scales(recentHalfLife) > 1);
   }
 
   /** The reference period's counts of a pair, with the recent decay taken out where {@code factors} say so. */
@@ -102,6 +167,10 @@ public final class DriftMonitor {
     if (firstWatermarkMillis == Long.MIN_VALUE && table.table().watermarkMillis() != Long.MIN_VALUE) {
       firstWatermarkMillis = table.table().watermarkMillis();
     }
+    calibrate(table);
+    if (shortScale != null) {
+      shortScale.advance(table.table());
+    }
     int compared = 0;
     Factors factors = factors(table);
     for (PairStats recent : table.pairs(settings.recentHorizon())) {
@@ -111,22 +180,28 @@ public final class DriftMonitor {
       }
       compared++;
       PairCounts counts = referenceCounts(recent, reference.get(), factors);
-      if (!DriftFinding.mayEnter(recent.counts(), counts, factors.recent(), factors.reference(), settings)) {
-        continue;
+      if (DriftFinding.mayEnter(recent.counts(), counts, factors.recent(), factors.reference(), tested)) {
+        addIfEntering(entering, DriftFinding.of(recent, recent.counts(), factors.recentHalfLife(), reference.get(),
+            counts, factors.recent(), factors.reference(), tested));
       }
-      DriftFinding finding = DriftFinding.of(recent, reference.get(), counts, factors.recent(), factors.reference(),
-          settings);
-      for (AlertKind kind : AlertKind.values()) {
-        if (finding.enters(kind, settings)) {
-          entering.add(finding);
-          break;
-        }
+      DriftFinding atShort = shortFinding(recent, reference.get(), counts, factors, true);
+      if (atShort != null) {
+        addIfEntering(entering, atShort);
       }
     }
     List<AlertEvent> events = machine.step(nowMillis, table.version(), entering,
-        pair -> finding(table, pair, factors).orElse(null));
+        (pair, kind) -> finding(table, pair, factors, kind));
     report = buildReport(table.version(), nowMillis, compared);
     return events;
+  }
+
+  private void addIfEntering(List<DriftFinding> entering, DriftFinding finding) {
+    for (AlertKind kind : AlertKind.values()) {
+      if (finding.enters(kind, tested)) {
+        entering.add(finding);
+        return;
+      }
+    }
   }
 
   private DriftReport buildReport(long version, long nowMillis, int compared) {
@@ -136,11 +211,11 @@ public final class DriftMonitor {
       for (Map.Entry<PairKey, AlertMachine.Track> entry : machine.tracks(kind)) {
         AlertMachine.Track track = entry.getValue();
         if (track.last() == null
-            || (track.state() == AlertMachine.State.COOLDOWN && !track.last().enters(kind, settings))) {
+            || (track.state() == AlertMachine.State.COOLDOWN && !track.last().enters(kind, tested))) {
           continue; // cooling down and no longer drifting: nothing to report
         }
         Long raised = track.raisedAtMillis() == Long.MIN_VALUE ? null : track.raisedAtMillis();
-        DriftChange change = track.last().changeFor(kind, settings);
+        DriftChange change = track.last().changeFor(kind, tested);
         entries.add(new DriftEntry(kind, track.state(), track.sinceMillis(), raised, track.last(), change,
             DriftWords.summary(kind, change, track.last())));
       }

@@ -42,7 +42,7 @@ import java.time.Duration;
  */
 public record DriftSettings(String recentHorizon, String referenceHorizon, double enterRootG2, double exitRootG2,
     double enterRatio, double exitRatio, double bundleExitConfidence, long minDwellMillis,
-    long cooldownMillis, int maxReported) {
+    long cooldownMillis, int maxReported, long shortHalfLifeMillis) {
 
   public DriftSettings {
     if (recentHorizon == null || referenceHorizon == null || recentHorizon.equals(referenceHorizon)) {
@@ -64,6 +64,10 @@ public record DriftSettings(String recentHorizon, String referenceHorizon, doubl
     if (maxReported < 1) {
       throw new IllegalArgumentException("maxReported must be >= 1, got " + maxReported);
     }
+    if (shortHalfLifeMillis < 0) {
+      throw new IllegalArgumentException("shortHalfLifeMillis must be >= 0 (0: no short scale), got "
+          + shortHalfLifeMillis);
+    }
   }
 
   /** The default reference period: the engine's tracking decay, as a refreshed table holds it. */
@@ -72,21 +76,34 @@ public record DriftSettings(String recentHorizon, String referenceHorizon, doubl
   /** The defaults of the table above. */
   public static DriftSettings defaults() {
     return new DriftSettings("recent", REFERENCE_HORIZON, 5.0, 3.0, 1.5, 1.2, 0.90, Duration.ofMinutes(15).toMillis(),
-        Duration.ofHours(6).toMillis(), 100);
+        Duration.ofHours(6).toMillis(), 100, Duration.ofHours(1).toMillis());
   }
 
   public DriftSettings withDwellAndCooldown(long dwellMillis, long coolMillis) {
     return new DriftSettings(recentHorizon, referenceHorizon, enterRootG2, exitRootG2, enterRatio, exitRatio,
-        bundleExitConfidence, dwellMillis, coolMillis, maxReported);
+        bundleExitConfidence, dwellMillis, coolMillis, maxReported, shortHalfLifeMillis);
+  }
+
+  public DriftSettings withShortHalfLife(long millis) {
+    return new DriftSettings(recentHorizon, referenceHorizon, enterRootG2, exitRootG2, enterRatio, exitRatio,
+        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported, millis);
+  }
+
+  /**
+   * The scales each pair is tested at: the recent decay, and the short scale unless it is off (0) or not shorter than
+   * {@code recentHalfLifeMillis}.
+   */
+  public int scales(long recentHalfLifeMillis) {
+    return shortHalfLifeMillis > 0 && shortHalfLifeMillis < recentHalfLifeMillis ? 2 : 1;
   }
 
   public DriftSettings withRootG2(double enter, double exit) {
     return new DriftSettings(recentHorizon, referenceHorizon, enter, exit, enterRatio, exitRatio,
-        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported);
+        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported, shortHalfLifeMillis);
   }
 
   public DriftSettings withRatio(double enter, double exit) {
     return new DriftSettings(recentHorizon, referenceHorizon, enterRootG2, exitRootG2, enter, exit,
-        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported);
+        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported, shortHalfLifeMillis);
   }
 }

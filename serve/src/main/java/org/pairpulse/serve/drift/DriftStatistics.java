@@ -334,4 +334,19 @@ public final class DriftStatistics {
   public static double pValue(double signedRoot) {
     return Double.isNaN(signedRoot) ? Double.NaN : Erf.erfc(Math.abs(signedRoot) / Math.sqrt(2.0));
   }
+
+  /**
+   * The root a test needs so that {@code tests} tests at it keep the false-alarm bound of one test at {@code root}
+   * (Bonferroni): the p-value of {@code root} divided by {@code tests}, turned back into a root; {@code root} itself
+   * for one test. E.g. 5.0 for one test (p 5.7·10⁻⁷) is 5.13 for two.
+   */
+  public static double rootForTests(double root, int tests) {
+    if (tests < 1) {
+      throw new IllegalArgumentException("tests must be >= 1, got " + tests);
+    }
+    if (tests == 1 || !(root > 0)) {
+      return root;
+    }
+    return Math.sqrt(2.0) * Erf.erfcInv(pValue(root) / tests);
+  }
 }

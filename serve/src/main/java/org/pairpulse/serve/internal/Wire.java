@@ -150,6 +150,7 @@ public final class Wire {
     out.put("recentBundle", f.recentBundle());
     out.put("baselineBundle", f.baselineBundle());
     out.put("trackedSinceMillis", f.trackedSinceMillis());
+    out.put("recentHalfLifeMillis", f.recentHalfLifeMillis());
     return out;
   }
 

@@ -43,7 +43,7 @@ class WebhookAlertSinkTest {
   private static final AlertEvent EVENT = AlertEvent.of(AlertKind.EMERGING, AlertTransition.RAISED, "all",
       PairKey.of("pack-esports", "boost-lowlat"), 1_772_409_600_000L, 1_772_408_700_000L, 7,
       new DriftFinding(PairKey.of("pack-esports", "boost-lowlat"), 6.2, 5.6e-10, 6.2, 5.4, 4.1, 5.3, false, 6.1, 1.2,
-          5.08, 44, 180, 900, 22_000, 4.2, 0.9, 12.5, 1.1, 0.41, 0.05, false, false, 1_772_300_000_000L),
+          5.08, 44, 180, 900, 22_000, 4.2, 0.9, 12.5, 1.1, 0.41, 0.05, false, false, 1_772_300_000_000L, 21_600_000L),
       DriftChange.BOTH);
 
   /** Starts a receiver answering with {@code statuses} (the last repeats), after {@code delayMillis}. */

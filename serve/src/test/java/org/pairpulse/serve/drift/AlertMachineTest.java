@@ -28,7 +28,7 @@ class AlertMachineTest {
   private static DriftFinding finding(double root, double ratio) {
     // both tests agree (rate and association), associated now: the "both" route when strong enough
     return new DriftFinding(PAIR, root, DriftStatistics.pValue(root), root, root, ratio, ratio, false, 3.0 * ratio, 3.0,
-        ratio, 80, 400, 1000, 20_000, 2.0, 2.0, 8.0, 6.0, 0.4, 0.3, false, false, 0L);
+        ratio, 80, 400, 1000, 20_000, 2.0, 2.0, 8.0, 6.0, 0.4, 0.3, false, false, 0L, 21_600_000L);
   }
 
   private static DriftFinding bundleFinding(boolean recentBundle, boolean baselineBundle, double minConfidence) {
@@ -39,14 +39,14 @@ class AlertMachineTest {
       double referenceMinConfidence) {
     return new DriftFinding(PAIR, 0, 1, 0, 0, 1.1, 1.1, true, 9, 8, 1.1, 80, 400, 1000, 20_000, 5, 5, 20, 20,
         minConfidence,
-        referenceMinConfidence, recentBundle, baselineBundle, 0L);
+        referenceMinConfidence, recentBundle, baselineBundle, 0L, 21_600_000L);
   }
 
   /** One observation of {@code observed} (null: the pair is not published) after {@code minutes}. */
   private List<AlertEvent> after(long minutes, DriftFinding observed) {
     clock.advance(minutes * MINUTE);
     List<DriftFinding> entering = observed == null ? List.of() : List.of(observed);
-    List<AlertEvent> step = machine.step(clock.millis(), ++version, entering, pair -> observed);
+    List<AlertEvent> step = machine.step(clock.millis(), ++version, entering, (pair, kind) -> observed);
     events.addAll(step);
     return step;
   }
@@ -152,9 +152,9 @@ class AlertMachineTest {
   @Test
   void zeroDwellRaisesAtOnceAndIdsAreStable() {
     AlertMachine immediate = new AlertMachine(DriftSettings.defaults().withDwellAndCooldown(0, 0), "all");
-    List<AlertEvent> first = immediate.step(1000, 1, List.of(finding(6, 2)), p -> finding(6, 2));
+    List<AlertEvent> first = immediate.step(1000, 1, List.of(finding(6, 2)), (p, k) -> finding(6, 2));
     assertEquals(1, first.size());
     AlertMachine twin = new AlertMachine(DriftSettings.defaults().withDwellAndCooldown(0, 0), "all");
-    assertEquals(first, twin.step(1000, 1, List.of(finding(6, 2)), p -> finding(6, 2)));
+    assertEquals(first, twin.step(1000, 1, List.of(finding(6, 2)), (p, k) -> finding(6, 2)));
   }
 }

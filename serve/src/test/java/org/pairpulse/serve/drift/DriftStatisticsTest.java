@@ -13,6 +13,26 @@ import org.pairpulse.sketch.stats.PairCounts;
 class DriftStatisticsTest {
 
   @Test
+  void rootForTestsKeepsTheFalseAlarmBoundOfOneTest() {
+    // Bonferroni: k tests at root r_k have the false-alarm bound of one test at r: 2 (1 − Φ(r_k)) = 2 (1 − Φ(r)) / k,
+    // with Φ from Apache Commons Math 3.6.1 NormalDistribution (inverse cumulative probability)
+    org.apache.commons.math3.distribution.NormalDistribution normal =
+        new org.apache.commons.math3.distribution.NormalDistribution();
+    for (double root : new double[] {3.0, 5.0, 6.0}) {
+      assertEquals(root, DriftStatistics.rootForTests(root, 1), 0.0);
+      for (int tests : new int[] {2, 3, 10}) {
+        double expected = normal.inverseCumulativeProbability(1 - (1 - normal.cumulativeProbability(root)) / tests);
+        double actual = DriftStatistics.rootForTests(root, tests);
+        assertEquals(expected, actual, 1e-6 * root, root + " for " + tests + " tests");
+        assertTrue(actual > root);
+        assertEquals(DriftStatistics.pValue(root) / tests, DriftStatistics.pValue(actual),
+            1e-6 * DriftStatistics.pValue(root));
+      }
+    }
+    assertEquals(5.13, DriftStatistics.rootForTests(5.0, 2), 0.005);
+  }
+
+  @Test
   void agreesWithCommonsMathGoodnessOfFit() {
     // Apache Commons Math 3.6.1 GTest.g(expected, observed): the G-test of goodness of fit; conditional on
     // T = x + y, (x, y) is tested against the expected split T·(Ex, Ey)/(Ex + Ey)
