@@ -14,9 +14,9 @@ public final class DriftWords {
     if (f == null) {
       return "the pair left the published table";
     }
-    String counts = String.format(Locale.ROOT, "%s of %s baskets recently against %s of %s in the reference period",
-        count(f.recentPairBaskets()), count(f.recentBaskets()), count(f.baselinePairBaskets()),
-        count(f.referenceBaskets()));
+    String counts = String.format(Locale.ROOT, "%s of %s baskets recently%s against %s of %s in the reference period",
+        count(f.recentPairBaskets()), count(f.recentBaskets()), scale(f.recentHalfLifeMillis()),
+        count(f.baselinePairBaskets()), count(f.referenceBaskets()));
     if (kind == AlertKind.BUNDLE) {
       return String.format(Locale.ROOT, "now bought together almost always (smaller confidence %.2f, was %.2f); %s",
           f.recentMinConfidence(), f.referenceMinConfidence(), counts);
@@ -34,6 +34,16 @@ public final class DriftWords {
       what = rate + "; " + association;
     }
     return what + " (" + counts + ")";
+  }
+
+  /** " (half-life 1 h)": which recent period the counts are (decays weigh each basket by its age); "" for windows. */
+  private static String scale(long halfLifeMillis) {
+    if (halfLifeMillis <= 0) {
+      return "";
+    }
+    double hours = halfLifeMillis / 3_600_000.0;
+    return hours == Math.rint(hours) ? String.format(Locale.ROOT, " (half-life %.0f h)", hours)
+        : String.format(Locale.ROOT, " (half-life %.0f min)", halfLifeMillis / 60_000.0);
   }
 
   private static String times(double ratio) {

@@ -129,5 +129,15 @@ class DriftFindingTest {
     String words = DriftWords.summary(AlertKind.EMERGING, f.emergingChange(SETTINGS), f);
     assertTrue(words.contains("bought together ×30 as often per basket"), words);
     assertTrue(words.contains("600 of 100,000 baskets recently against 20 of 100,000"), words);
+    // the short scale's counts: the tests read them, the table's gates read the recent horizon, the words say which
+    PairCounts hour = PairCounts.exact(20_000, 150, 140, 130);
+    DriftFinding shortScale = DriftFinding.of(stats("recent", now), hour, 3_600_000L, stats("tracking", before), before,
+        1.0, 1.0, SETTINGS);
+    assertEquals(3_600_000L, shortScale.recentHalfLifeMillis());
+    assertEquals(130, shortScale.recentPairBaskets());
+    assertEquals(f.recentLiftLower(), shortScale.recentLiftLower());
+    assertEquals(DriftStatistics.rateRootG2(hour, 1.0, before, 1.0), shortScale.rateRootG2(), 1e-12);
+    String hourly = DriftWords.summary(AlertKind.EMERGING, shortScale.emergingChange(SETTINGS), shortScale);
+    assertTrue(hourly.contains("130 of 20,000 baskets recently (half-life 1 h) against 20 of 100,000"), hourly);
   }
 }
