@@ -34,9 +34,9 @@ import org.pairpulse.sketch.table.PairStats;
 public final class DriftMonitor {
   private final DriftSettings settings;
   /** {@link #settings} with the entry root corrected for the number of scales tested (see the class comment). */
-  private DriftSettings tested;
+  private final DriftSettings tested;
   private final String segment;
-  private AlertMachine machine;
+  private final AlertMachine machine;
   private final ShortScale shortScale;
   private volatile DriftReport report;
   /** The watermark of the first table observed: the start of the stream as far as the decays' ages go. */
@@ -45,26 +45,15 @@ public final class DriftMonitor {
   public DriftMonitor(DriftSettings settings, String segment) {
     this.settings = Objects.requireNonNull(settings, "settings");
     this.segment = Objects.requireNonNull(segment, "segment");
-    this.tested = settings;
-    this.machine = new AlertMachine(settings, segment);
+    // two scales when the short one is on (one scale less when the table's recent horizon turns out not to be a
+    // longer decay: then the short scale is not tested and the threshold errs high, fewer alerts, never more)
+    this.tested = settings.shortHalfLifeMillis() > 0
+        ? settings.withRootG2(DriftStatistics.rootForTests(settings.enterRootG2(), 2), settings.exitRootG2())
+        : settings;
+    this.machine = new AlertMachine(tested, segment);
     this.shortScale = settings.shortHalfLifeMillis() > 0 ? new ShortScale(settings.shortHalfLifeMillis(),
         settings.recentHorizon()) : null;
     this.report = DriftReport.empty(segment);
-  }
-
-  /**
-   * Sets the tested settings from the first table that shows the recent horizon's half-life (a machine with no
-   * track yet is replaced; its thresholds do not change afterwards, as the horizons of a table do not).
-   */
-  private void calibrate(FlooredTable table) {
-    if (machine.size() > 0 || tested != settings) {
-      return;
-    }
-    int scales = shortScale == null ? 1 : settings.scales(table.halfLifeMillis(settings.recentHorizon()));
-    if (scales > 1) {
-      tested = settings.withRootG2(DriftStatistics.rootForTests(settings.enterRootG2(), scales), settings.exitRootG2());
-      machine = new AlertMachine(tested, segment);
-    }
   }
 
   public DriftSettings settings() {
@@ -167,7 +156,6 @@ public final class DriftMonitor {
     if (firstWatermarkMillis == Long.MIN_VALUE && table.table().watermarkMillis() != Long.MIN_VALUE) {
       firstWatermarkMillis = table.table().watermarkMillis();
     }
-    calibrate(table);
     if (shortScale != null) {
       shortScale.advance(table.table());
     }
