@@ -62,22 +62,25 @@ public final class PairTables {
    */
   static PairTable build(PairEngine engine, Options options, RefreshMemory memory) {
     Map<String, HorizonTable> tables = new LinkedHashMap<>();
+    Map<String, PairStats[]> rows = new HashMap<>();
+    Map<String, int[]> orders = new HashMap<>();
     List<String> names = new ArrayList<>();
     for (int h = 0; h < engine.publishedHorizons; h++) {
       HorizonState state = engine.horizons[h];
-      tables.put(state.spec.name(), horizonTable(engine, state, options, memory));
+      tables.put(state.spec.name(), horizonTable(engine, state, options, memory, rows, orders));
       names.add(state.spec.name());
     }
     // the tracking decay: drift's reference period (a long decay read from the wide decay sketches), kept out of
     // the horizon names so that it is not offered for ranking or suggestions
     HorizonState tracking = engine.horizons[engine.trackingHorizon];
-    tables.put(tracking.spec.name(), horizonTable(engine, tracking, options, memory));
+    tables.put(tracking.spec.name(), horizonTable(engine, tracking, options, memory, rows, orders));
     return new PairTable(options.version(), options.publishedAtMillis(), engine.watermarkMillis,
-        options.sortBy(), tables, names);
+        options.sortBy(), tables, names, rows, orders);
   }
 
+  /** One horizon's table; its pairs by row (the tracked slot) go into {@code rows}, their order into {@code orders}. */
   private static HorizonTable horizonTable(PairEngine engine, HorizonState state, Options options,
-      RefreshMemory memory) {
+      RefreshMemory memory, Map<String, PairStats[]> rows, Map<String, int[]> orders) {
     double baskets = Counts.baskets(engine, state);
     double[] scratch = new double[3];
     TrackedTable items = engine.items;
@@ -121,6 +124,8 @@ public final class PairTables {
     if (memory != null) {
       memory.lastOrder[state.index] = order;
     }
+    rows.put(state.spec.name(), bySlot);
+    orders.put(state.spec.name(), order);
     PairStats[] sorted = new PairStats[order.length];
     for (int i = 0; i < order.length; i++) {
       sorted[i] = bySlot[order[i]];
