@@ -121,7 +121,7 @@ public final class FlooredTable {
       String name = heldNames.get(h);
       HorizonTable horizonTable = table.horizon(name).orElseThrow();
       List<PairStats> list = horizonTable.pairs();
-      Set<PairStats> rejected = Collections.newSetFromMap(new IdentityHashMap<>());
+      Set<PairStats> rejected = Collections.newSetFromMap(new IdentityHashMap<>(list.size()));
       List<PairStats> shown = new ArrayList<>(list.size());
       int[] order = byRow ? rows.get(h).order() : null;
       for (int i = 0; i < list.size(); i++) {

@@ -64,23 +64,24 @@ public final class PairTables {
     Map<String, HorizonTable> tables = new LinkedHashMap<>();
     Map<String, PairStats[]> rows = new HashMap<>();
     Map<String, int[]> orders = new HashMap<>();
+    ItemBuckets buckets = ItemBuckets.of(engine.pairs, engine.items);
     List<String> names = new ArrayList<>();
     for (int h = 0; h < engine.publishedHorizons; h++) {
       HorizonState state = engine.horizons[h];
-      tables.put(state.spec.name(), horizonTable(engine, state, options, memory, rows, orders));
+      tables.put(state.spec.name(), horizonTable(engine, state, options, memory, buckets, rows, orders));
       names.add(state.spec.name());
     }
     // the tracking decay: drift's reference period (a long decay read from the wide decay sketches), kept out of
     // the horizon names so that it is not offered for ranking or suggestions
     HorizonState tracking = engine.horizons[engine.trackingHorizon];
-    tables.put(tracking.spec.name(), horizonTable(engine, tracking, options, memory, rows, orders));
+    tables.put(tracking.spec.name(), horizonTable(engine, tracking, options, memory, buckets, rows, orders));
     return new PairTable(options.version(), options.publishedAtMillis(), engine.watermarkMillis,
         options.sortBy(), tables, names, rows, orders);
   }
 
   /** One horizon's table; its pairs by row (the tracked slot) go into {@code rows}, their order into {@code orders}. */
   private static HorizonTable horizonTable(PairEngine engine, HorizonState state, Options options,
-      RefreshMemory memory, Map<String, PairStats[]> rows, Map<String, int[]> orders) {
+      RefreshMemory memory, ItemBuckets buckets, Map<String, PairStats[]> rows, Map<String, int[]> orders) {
     double baskets = Counts.baskets(engine, state);
     double[] scratch = new double[3];
     TrackedTable items = engine.items;
@@ -105,8 +106,8 @@ public final class PairTables {
       if (countAB.upper() < options.minPairCount() || countAB.upper() <= 0) {
         continue;
       }
-      int slotA = items.find(pairs.hashA[slot]);
-      int slotB = items.find(pairs.hashB[slot]);
+      int slotA = buckets.trackedA(slot);
+      int slotB = buckets.trackedB(slot);
       Estimate countA = slotA >= 0 ? itemBySlot[slotA] : Counts.sketched(engine, state.itemSketch, state, pairs.hashA[slot]);
       Estimate countB = slotB >= 0 ? itemBySlot[slotB] : Counts.sketched(engine, state.itemSketch, state, pairs.hashB[slot]);
       PairCounts counts = new PairCounts(baskets, countA, countB, countAB);
@@ -130,51 +131,77 @@ public final class PairTables {
     for (int i = 0; i < order.length; i++) {
       sorted[i] = bySlot[order[i]];
     }
-    return new HorizonTable(state.spec.name(), baskets, Arrays.asList(sorted), neighbours(pairs, items, order, sorted),
+    return new HorizonTable(state.spec.name(), baskets, Arrays.asList(sorted), neighbours(buckets, order, sorted),
         itemCounts, state.isWindow() ? 0L : state.spec.halfLifeMillis());
   }
 
   /**
-   * Each item's published pairs in table order. Items are bucketed by hash (a tracked item by its slot), counted,
-   * then filled: two passes over the sorted pairs, one map entry per item.
+   * Each item's published pairs in table order: counted per item bucket, then filled, in two passes over the
+   * sorted pairs, one map entry per item.
    */
-  private static Map<String, List<PairStats>> neighbours(TrackedTable pairs, TrackedTable items, int[] order,
-      PairStats[] sorted) {
-    LongIntHashMap untracked = new LongIntHashMap();
-    int[] bucketA = new int[order.length];
-    int[] bucketB = new int[order.length];
-    int buckets = items.size();
-    for (int i = 0; i < order.length; i++) {
-      for (int side = 0; side < 2; side++) {
-        long hash = side == 0 ? pairs.hashA[order[i]] : pairs.hashB[order[i]];
-        int bucket = items.find(hash);
-        if (bucket < 0) {
-          bucket = untracked.getOrDefault(hash, -1);
-          if (bucket < 0) {
-            bucket = buckets++;
-            untracked.put(hash, bucket);
-          }
-        }
-        if (side == 0) {
-          bucketA[i] = bucket;
-        } else {
-          bucketB[i] = bucket;
-        }
-      }
+  private static Map<String, List<PairStats>> neighbours(ItemBuckets buckets, int[] order, PairStats[] sorted) {
+    int[] sizes = new int[buckets.count];
+    for (int slot : order) {
+      sizes[buckets.bucketA[slot]]++;
+      sizes[buckets.bucketB[slot]]++;
     }
-    int[] sizes = new int[buckets];
-    for (int i = 0; i < order.length; i++) {
-      sizes[bucketA[i]]++;
-      sizes[bucketB[i]]++;
-    }
-    PairStats[][] lists = new PairStats[buckets][];
-    int[] filled = new int[buckets];
-    Map<String, List<PairStats>> neighbours = new HashMap<>(buckets * 2);
+    PairStats[][] lists = new PairStats[buckets.count][];
+    int[] filled = new int[buckets.count];
+    Map<String, List<PairStats>> neighbours = new HashMap<>(buckets.count * 2);
     for (int i = 0; i < order.length; i++) { // sorted order: each list is sorted too
-      add(lists, sizes, filled, bucketA[i], sorted[i], sorted[i].itemA(), neighbours);
-      add(lists, sizes, filled, bucketB[i], sorted[i], sorted[i].itemB(), neighbours);
+      add(lists, sizes, filled, buckets.bucketA[order[i]], sorted[i], sorted[i].itemA(), neighbours);
+      add(lists, sizes, filled, buckets.bucketB[order[i]], sorted[i], sorted[i].itemB(), neighbours);
     }
     return neighbours;
+  }
+
+  /**
+   * Each tracked pair's two items as buckets, looked up once per refresh for every horizon: a tracked item's
+   * bucket is its slot, an untracked item's one past the tracked ones (one per distinct hash).
+   */
+  private static final class ItemBuckets {
+    final int[] bucketA;
+    final int[] bucketB;
+    final int tracked;
+    int count;
+
+    private ItemBuckets(int pairs, int tracked) {
+      this.bucketA = new int[pairs];
+      this.bucketB = new int[pairs];
+      this.tracked = tracked;
+      this.count = tracked;
+    }
+
+    static ItemBuckets of(TrackedTable pairs, TrackedTable items) {
+      ItemBuckets buckets = new ItemBuckets(pairs.size(), items.size());
+      LongIntHashMap untracked = new LongIntHashMap();
+      for (int slot = 0; slot < pairs.size(); slot++) {
+        buckets.bucketA[slot] = buckets.bucket(items, untracked, pairs.hashA[slot]);
+        buckets.bucketB[slot] = buckets.bucket(items, untracked, pairs.hashB[slot]);
+      }
+      return buckets;
+    }
+
+    private int bucket(TrackedTable items, LongIntHashMap untracked, long hash) {
+      int bucket = items.find(hash);
+      if (bucket < 0) {
+        bucket = untracked.getOrDefault(hash, -1);
+        if (bucket < 0) {
+          bucket = count++;
+          untracked.put(hash, bucket);
+        }
+      }
+      return bucket;
+    }
+
+    /** The tracked slot of pair {@code slot}'s first item, or −1. */
+    int trackedA(int slot) {
+      return bucketA[slot] < tracked ? bucketA[slot] : -1;
+    }
+
+    int trackedB(int slot) {
+      return bucketB[slot] < tracked ? bucketB[slot] : -1;
+    }
   }
 
   private static void add(PairStats[][] lists, int[] sizes, int[] filled, int bucket, PairStats stats, String item,
