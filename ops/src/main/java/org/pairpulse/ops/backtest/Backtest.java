@@ -49,6 +49,12 @@ public final class Backtest {
 
     /** After each evaluated basket. */
     default void trial(Trial trial) {}
+
+    /**
+     * After each refresh, what it cost on the replay's thread: the engine's table build ({@code PairEngine.refresh})
+     * and the whole refresh step (table, cohort floor, drift monitor, nightly offer, summary).
+     */
+    default void refreshCost(long tableNanos, long stepNanos) {}
   }
 
   private final BacktestSettings settings;
@@ -133,11 +139,13 @@ public final class Backtest {
   }
 
   private void refreshAt(long boundary, boolean offerNightly) {
+    long started = System.nanoTime();
     lastBoundary = boundary;
     engine.advanceTo(boundary);
     alertClock.set(boundary);
     PairTable table = engine.refresh(new PairTables.Options(++version, boundary, MeasureSettings.defaults(),
         Measure.SHRUNK_LIFT, 0.0));
+    long tableNanos = System.nanoTime() - started;
     current = FlooredTable.of(table, floor);
     List<AlertEvent> events = drift.observe(current, alertClock.millis());
     alerts.addAll(events);
@@ -149,6 +157,7 @@ public final class Backtest {
       lastSummaryPeriod = summaryPeriod;
       summaries.add(TableSummary.of(current, boundary, settings.summaryTop()));
     }
+    listener.refreshCost(tableNanos, System.nanoTime() - started);
     listener.refreshed(boundary, table, current, events);
   }
 

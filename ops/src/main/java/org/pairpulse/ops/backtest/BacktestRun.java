@@ -47,6 +47,15 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
    */
   public static BacktestRun run(Path file, BacktestSettings settings, ScenarioGroundTruth truth, ProgressDisplay progress,
       Backtest.Listener listener, MeterRegistry registry) throws IOException {
+    return run(file, settings, truth, progress, listener, registry, true);
+  }
+
+  /**
+   * Replays {@code file}; {@code readAhead}: the file is read and decoded on a second thread
+   * ({@link ReplaySource#readAhead}; the same baskets in the same order, so the same result), else on the caller's.
+   */
+  public static BacktestRun run(Path file, BacktestSettings settings, ScenarioGroundTruth truth, ProgressDisplay progress,
+      Backtest.Listener listener, MeterRegistry registry, boolean readAhead) throws IOException {
     Set<PairKey> focus = new HashSet<>();
     if (truth != null) {
       for (PlantedPair pair : truth.planted()) {
@@ -57,7 +66,8 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
     }
     Backtest backtest = new Backtest(settings, listener, registry, focus);
     ReplaySource source = new ReplaySource(settings.limits(), settings.front());
-    FileSource.Result input = source.read(file, progress, backtest::accept);
+    FileSource.Result input = readAhead ? source.readAhead(file, progress, backtest::accept)
+        : source.read(file, progress, backtest::accept);
     BacktestResult result = backtest.finish();
     Detection detection = truth == null ? null
         : Detection.score(truth, result.alerts(), result.firstEventMillis(), result.lastEventMillis());

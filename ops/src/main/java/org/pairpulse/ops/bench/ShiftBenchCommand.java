@@ -272,7 +272,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     }
   }
 
-  private static void deleteTree(Path directory) throws IOException {
+  static void deleteTree(Path directory) throws IOException {
     try (Stream<Path> paths = Files.walk(directory)) {
       for (Path path : paths.sorted(Comparator.reverseOrder()).toList()) {
         Files.deleteIfExists(path);

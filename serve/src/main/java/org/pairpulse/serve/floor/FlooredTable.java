@@ -19,9 +19,9 @@ import org.pairpulse.sketch.table.PairTable;
  * A {@link PairTable} with every statistic under the {@link CohortFloor} removed: the only view of
  * a pair table that serve publishes. Immutable and safe to share between threads, like the table.
  *
- * <p>Built once per table version, linear in the number of tracked pairs (one hash join over the
- * horizons; a horizon where nothing is held back reuses the table's own lists); lookups are hash
- * lookups or list reads. Lists keep the table's order (best first by {@link PairTable#sortMeasure()}).
+ * <p>Built once per table version, linear in the number of tracked pairs (a join over the horizons by the
+ * table's pair rows, or by item names for a table without rows; a horizon where nothing is held back reuses the
+ * table's own lists); lookups are hash lookups or list reads. Lists keep the table's order (best first by {@link PairTable#sortMeasure()}).
  */
 public final class FlooredTable {
   private final PairTable table;
@@ -70,17 +70,43 @@ public final class FlooredTable {
       evidenceWindows[h] = containedWindows(heldNames, evidenceOf[h], floor);
     }
 
-    // the join: every pair's statistics over the horizons (pair lookups, decay evidence)
+    // the join: every pair's statistics over the horizons (pair lookups, decay evidence); by row when the table
+    // has rows (a refresh's), else by item names
+    List<PairTable.PairRows> rows = new ArrayList<>(horizonCount);
+    for (String name : heldNames) {
+      table.pairRows(name).ifPresent(rows::add);
+    }
+    boolean byRow = rows.size() == horizonCount;
     Map<PairKey, Entry> all = new HashMap<>(Math.max(16, table.pairCount() * 2));
-    for (int h = 0; h < horizonCount; h++) {
-      for (PairStats stats : table.pairs(heldNames.get(h))) {
-        PairKey key = PairKey.of(stats.itemA(), stats.itemB());
-        Entry entry = all.get(key);
-        if (entry == null) {
-          entry = new Entry(new PairStats[horizonCount]);
-          all.put(key, entry);
+    Entry[] entryOfRow = null;
+    if (byRow) {
+      int rowCount = horizonCount == 0 ? 0 : rows.get(0).rows().size();
+      entryOfRow = new Entry[rowCount];
+      for (int r = 0; r < rowCount; r++) {
+        Entry entry = null;
+        for (int h = 0; h < horizonCount; h++) {
+          PairStats stats = rows.get(h).rows().get(r);
+          if (stats != null) {
+            if (entry == null) {
+              entry = new Entry(new PairStats[horizonCount]);
+              all.put(PairKey.of(stats.itemA(), stats.itemB()), entry);
+            }
+            entry.stats()[h] = stats;
+          }
         }
-        entry.stats()[h] = stats;
+        entryOfRow[r] = entry;
+      }
+    } else {
+      for (int h = 0; h < horizonCount; h++) {
+        for (PairStats stats : table.pairs(heldNames.get(h))) {
+          PairKey key = PairKey.of(stats.itemA(), stats.itemB());
+          Entry entry = all.get(key);
+          if (entry == null) {
+            entry = new Entry(new PairStats[horizonCount]);
+            all.put(key, entry);
+          }
+          entry.stats()[h] = stats;
+        }
       }
     }
     this.byPair = all;
@@ -95,10 +121,13 @@ public final class FlooredTable {
       String name = heldNames.get(h);
       HorizonTable horizonTable = table.horizon(name).orElseThrow();
       List<PairStats> list = horizonTable.pairs();
-      Set<PairStats> rejected = Collections.newSetFromMap(new IdentityHashMap<>());
+      Set<PairStats> rejected = Collections.newSetFromMap(new IdentityHashMap<>(list.size()));
       List<PairStats> shown = new ArrayList<>(list.size());
-      for (PairStats stats : list) {
-        if (passes(all.get(PairKey.of(stats.itemA(), stats.itemB())), h)) {
+      int[] order = byRow ? rows.get(h).order() : null;
+      for (int i = 0; i < list.size(); i++) {
+        PairStats stats = list.get(i);
+        Entry entry = byRow ? entryOfRow[order[i]] : all.get(PairKey.of(stats.itemA(), stats.itemB()));
+        if (passes(entry, h)) {
           shown.add(stats);
         } else {
           rejected.add(stats);

@@ -41,6 +41,16 @@ final class Counts {
   }
 
   static Estimate tracked(PairEngine engine, TrackedTable table, int slot, HorizonState state) {
+    return tracked(engine, table, slot, state, null, new double[3]);
+  }
+
+  /**
+   * A tracked key's count; in a window, the panes before its admission come from {@code closed} when it is given
+   * (the refresh's cache, bit-for-bit the same sums) and are summed from the sketches otherwise. {@code scratch}
+   * holds three doubles.
+   */
+  static Estimate tracked(PairEngine engine, TrackedTable table, int slot, HorizonState state, ClosedPaneSums closed,
+      double[] scratch) {
     double bias = table.admissionBias[slot * table.horizonCount + state.index];
     if (!state.isWindow()) {
       double scale = state.scaleAt(engine.watermarkMillis);
@@ -56,6 +66,16 @@ final class Counts {
     double upper = 0;
     double lower = 0;
     double value = 0;
+    if (admittedPane != Long.MIN_VALUE) { // before admission: still in the panes' sketches
+      if (closed != null) {
+        closed.read(state, sketches, slot, key, admittedPane, scratch);
+      } else {
+        preAdmission(state, sketches, key, admittedPane, scratch);
+      }
+      upper = scratch[0];
+      lower = scratch[1];
+      value = scratch[2];
+    }
     for (int p = 0; p < state.paneCount; p++) {
       if (!state.slotLive(p)) {
         continue;
@@ -72,15 +92,32 @@ final class Counts {
         upper += count;
         lower += paneLower;
         value += Math.max(paneLower, count - bias);
-      } else { // before admission: still in the pane's sketch
+      }
+    }
+    lower = Math.min(lower, upper);
+    return new Estimate(Math.min(upper, Math.max(lower, value)), lower, upper);
+  }
+
+  /**
+   * {upper, lower, value} summed over the live panes of window {@code state} older than {@code admittedPane}, in
+   * ring order, into {@code out}: the estimate, {@code max(0, estimate − ε·W)} and the debiased estimate of each.
+   * These panes are closed; see {@link ClosedPaneSums}.
+   */
+  static void preAdmission(HorizonState state, CountMinSketch[] sketches, long key, long admittedPane, double[] out) {
+    double upper = 0;
+    double lower = 0;
+    double value = 0;
+    for (int p = 0; p < state.paneCount; p++) {
+      if (state.slotLive(p) && state.paneOfSlot[p] < admittedPane) {
         double estimate = sketches[p].estimate(key);
         upper += estimate;
         lower += Math.max(0, estimate - sketches[p].maxError());
         value += sketches[p].debiasedEstimate(key);
       }
     }
-    lower = Math.min(lower, upper);
-    return new Estimate(Math.min(upper, Math.max(lower, value)), lower, upper);
+    out[0] = upper;
+    out[1] = lower;
+    out[2] = value;
   }
 
   static Estimate sketched(PairEngine engine, CountMinSketch[] sketches, HorizonState state, long key) {

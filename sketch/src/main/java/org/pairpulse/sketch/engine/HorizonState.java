@@ -53,6 +53,14 @@ final class HorizonState {
   long newestPane = Long.MIN_VALUE;
   /** Decay: landmark L in epoch millis, a multiple of the half-life (Long.MIN_VALUE before the first basket). */
   long landmarkMillis = Long.MIN_VALUE;
+  /**
+   * Window: bumped whenever the closed panes change as a whole (a pane leaves or starts, an engine is merged in):
+   * {@link ClosedPaneSums} entries of an older generation are stale.
+   */
+  long closedPaneGeneration;
+  /** Window: a clock ticked by every late basket; {@code lateStamp[p]} is its value at ring slot p's last one. */
+  long lateClock;
+  final long[] lateStamp;
   /** Window: ordinal among windows; decay: ordinal among decays. */
   final int kindOrdinal;
 
@@ -97,6 +105,21 @@ final class HorizonState {
     this.unclassedBaskets = new double[paneCount];
     this.paneOfSlot = new long[paneCount];
     Arrays.fill(paneOfSlot, Long.MIN_VALUE);
+    this.lateStamp = new long[paneCount];
+  }
+
+  /** A late basket landed in ring slot {@code slot} (not the newest pane): its sketches changed. */
+  void markLate(int slot) {
+    lateStamp[slot] = ++lateClock;
+  }
+
+  /** The newest late stamp among the live panes older than {@code pane} (0: none had a late basket). */
+  long lateStampBefore(long pane) {
+    long newest = 0;
+    for (long q = oldestLivePane(); q < pane && q <= newestPane; q++) {
+      newest = Math.max(newest, lateStamp[slotOf(q)]);
+    }
+    return newest;
   }
 
   /** Seed of every pair sketch (item sketches use the configuration's seed). */
@@ -135,6 +158,7 @@ final class HorizonState {
     Arrays.fill(classPairSlots, slot * classCount, (slot + 1) * classCount, 0.0);
     unclassedBaskets[slot] = 0;
     paneOfSlot[slot] = newPane;
+    lateStamp[slot] = 0;
   }
 
   /** Multiplies the decay's N, N_c, M_c by {@code factor} (a rescale; the sketches are scaled by the engine). */

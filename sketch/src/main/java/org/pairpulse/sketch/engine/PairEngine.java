@@ -51,6 +51,8 @@ public final class PairEngine {
   final TrackedTable items;
   final TrackedTable pairs;
   private final PairSampling sampling;
+  /** What a refresh keeps for the next one (see {@link RefreshMemory}). */
+  final RefreshMemory refreshMemory;
 
   long watermarkMillis = Long.MIN_VALUE;
   long baskets;
@@ -103,6 +105,8 @@ public final class PairEngine {
         config.sizeClasses().count());
     this.pairs = new TrackedTable(config.trackedPairCapacity(), paneCells, trackingDecay, windows, decays, horizons.length);
     this.sampling = new PairSampling(config.maxPairsPerBasket());
+    this.refreshMemory = new RefreshMemory(windows, config.trackedItemCapacity(), config.trackedPairCapacity(),
+        horizons.length);
     this.paneOfHorizon = new int[horizons.length];
     this.weightOfHorizon = new double[horizons.length];
     this.eventPaneOfHorizon = new long[horizons.length];
@@ -130,6 +134,11 @@ public final class PairEngine {
       watermarkMillis = eventMillis;
     }
     placeInHorizons(eventMillis);
+    for (int h = 0; h < horizons.length; h++) {
+      if (lateOfHorizon[h] && paneOfHorizon[h] >= 0) {
+        horizons[h].markLate(paneOfHorizon[h]); // a closed pane's sketches change
+      }
+    }
     basketClass = config.sizeClasses().classOf(distinct);
     for (int h = 0; h < horizons.length; h++) {
       int pane = paneOfHorizon[h];
@@ -380,6 +389,7 @@ public final class PairEngine {
     long first = state.newestPane == Long.MIN_VALUE
         ? newPane - state.paneCount + 1
         : Math.max(state.newestPane + 1, newPane - state.paneCount + 1);
+    state.closedPaneGeneration++;
     for (long q = first; q <= newPane; q++) {
       int slot = state.slotOf(q);
       state.clearSlot(slot, q);
@@ -538,6 +548,9 @@ public final class PairEngine {
    */
   public void merge(PairEngine other) {
     EngineMerge.merge(this, other);
+    for (HorizonState state : horizons) {
+      state.closedPaneGeneration++; // every pane's sketches took the other side's
+    }
   }
 
   PairSampling sampling() {

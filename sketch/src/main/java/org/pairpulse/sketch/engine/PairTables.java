@@ -1,7 +1,9 @@
 package org.pairpulse.sketch.engine;
 
+import com.carrotsearch.hppc.LongIntHashMap;
 import java.util.ArrayList;
-import java.util.Comparator;
+import java.util.Arrays;
+import java.util.Collections;
 import java.util.HashMap;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -49,92 +51,209 @@ public final class PairTables {
   }
 
   static PairTable build(PairEngine engine, Options options) {
+    return build(engine, options, engine.refreshMemory);
+  }
+
+  /**
+   * The refresh. With {@code memory} (the engine's own, between refreshes) the closed panes of windows are read
+   * from {@link ClosedPaneSums} and each horizon's sort starts from the previous table's order; with null
+   * everything is read from the state and sorted from scratch: the slow oracle the tests compare against. The two
+   * give equal tables, bit for bit.
+   */
+  static PairTable build(PairEngine engine, Options options, RefreshMemory memory) {
     Map<String, HorizonTable> tables = new LinkedHashMap<>();
+    Map<String, PairStats[]> rows = new HashMap<>();
+    Map<String, int[]> orders = new HashMap<>();
+    ItemBuckets buckets = ItemBuckets.of(engine.pairs, engine.items);
     List<String> names = new ArrayList<>();
     for (int h = 0; h < engine.publishedHorizons; h++) {
       HorizonState state = engine.horizons[h];
-      tables.put(state.spec.name(), horizonTable(engine, state, options));
+      tables.put(state.spec.name(), horizonTable(engine, state, options, memory, buckets, rows, orders));
       names.add(state.spec.name());
     }
     // the tracking decay: drift's reference period (a long decay read from the wide decay sketches), kept out of
     // the horizon names so that it is not offered for ranking or suggestions
     HorizonState tracking = engine.horizons[engine.trackingHorizon];
-    tables.put(tracking.spec.name(), horizonTable(engine, tracking, options));
+    tables.put(tracking.spec.name(), horizonTable(engine, tracking, options, memory, buckets, rows, orders));
     return new PairTable(options.version(), options.publishedAtMillis(), engine.watermarkMillis,
-        options.sortBy(), tables, names);
+        options.sortBy(), tables, names, rows, orders);
   }
 
-  private static HorizonTable horizonTable(PairEngine engine, HorizonState state, Options options) {
+  /** One horizon's table; its pairs by row (the tracked slot) go into {@code rows}, their order into {@code orders}. */
+  private static HorizonTable horizonTable(PairEngine engine, HorizonState state, Options options,
+      RefreshMemory memory, ItemBuckets buckets, Map<String, PairStats[]> rows, Map<String, int[]> orders) {
     double baskets = Counts.baskets(engine, state);
+    double[] scratch = new double[3];
     TrackedTable items = engine.items;
-    Map<Long, Estimate> itemByHash = new HashMap<>(items.size() * 2);
+    Estimate[] itemBySlot = new Estimate[items.size()];
     Map<String, Estimate> itemCounts = new HashMap<>(items.size() * 2);
     SizeStrata strata = SizeStrata.of(engine, state);
-    Map<Long, SizeStrata.ItemClasses> classesByHash = strata == null ? Map.of() : new HashMap<>(items.size() * 2);
+    SizeStrata.ItemClasses[] classesBySlot = strata == null ? null : new SizeStrata.ItemClasses[items.size()];
     for (int slot = 0; slot < items.size(); slot++) {
-      Estimate count = Counts.tracked(engine, items, slot, state);
-      itemByHash.put(items.keys[slot], count);
+      Estimate count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch);
+      itemBySlot[slot] = count;
       itemCounts.put(items.labelA[slot], count);
       if (strata != null) {
-        classesByHash.put(items.keys[slot], strata.item(Counts.knownByClass(engine, state, slot), count));
+        classesBySlot[slot] = strata.item(Counts.knownByClass(engine, state, slot), count);
       }
     }
     TrackedTable pairs = engine.pairs;
-    List<PairStats> stats = new ArrayList<>(pairs.size());
+    PairStats[] bySlot = new PairStats[pairs.size()];
+    double[] keyBySlot = new double[pairs.size()];
+    int published = 0;
     for (int slot = 0; slot < pairs.size(); slot++) {
-      Estimate countAB = Counts.tracked(engine, pairs, slot, state);
+      Estimate countAB = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch);
       if (countAB.upper() < options.minPairCount() || countAB.upper() <= 0) {
         continue;
       }
-      Estimate countA = itemCount(engine, state, itemByHash, pairs.hashA[slot]);
-      Estimate countB = itemCount(engine, state, itemByHash, pairs.hashB[slot]);
+      int slotA = buckets.trackedA(slot);
+      int slotB = buckets.trackedB(slot);
+      Estimate countA = slotA >= 0 ? itemBySlot[slotA] : Counts.sketched(engine, state.itemSketch, state, pairs.hashA[slot]);
+      Estimate countB = slotB >= 0 ? itemBySlot[slotB] : Counts.sketched(engine, state.itemSketch, state, pairs.hashB[slot]);
       PairCounts counts = new PairCounts(baskets, countA, countB, countAB);
       if (strata != null) {
-        SizeStrata.ItemClasses classesA = classesByHash.get(pairs.hashA[slot]);
-        SizeStrata.ItemClasses classesB = classesByHash.get(pairs.hashB[slot]);
-        counts = counts.withStratifiedExpected(strata.expected(classesA != null ? classesA : strata.untracked(countA),
-            classesB != null ? classesB : strata.untracked(countB)));
+        counts = counts.withStratifiedExpected(strata.expected(slotA >= 0 ? classesBySlot[slotA] : strata.untracked(countA),
+            slotB >= 0 ? classesBySlot[slotB] : strata.untracked(countB)));
       }
-      stats.add(new PairStats(pairs.labelA[slot], pairs.labelB[slot], state.spec.name(), counts,
-          PairMeasures.of(counts, options.settings()), pairs.admittedAtMillis[slot]));
+      PairStats stats = new PairStats(pairs.labelA[slot], pairs.labelB[slot], state.spec.name(), counts,
+          PairMeasures.of(counts, options.settings()), pairs.admittedAtMillis[slot]);
+      bySlot[slot] = stats;
+      keyBySlot[slot] = orderKey(options.sortBy(), stats);
+      published++;
     }
-    sortBest(stats, options.sortBy());
-    Map<String, List<PairStats>> neighbours = new HashMap<>();
-    for (PairStats pair : stats) { // stats is sorted, so each list is sorted too
-      neighbours.computeIfAbsent(pair.itemA(), k -> new ArrayList<>()).add(pair);
-      neighbours.computeIfAbsent(pair.itemB(), k -> new ArrayList<>()).add(pair);
+    int[] order = sortBest(bySlot, keyBySlot, published, memory == null ? null : memory.lastOrder[state.index]);
+    if (memory != null) {
+      memory.lastOrder[state.index] = order;
     }
-    neighbours.replaceAll((item, list) -> List.copyOf(list));
-    return new HorizonTable(state.spec.name(), baskets, List.copyOf(stats), neighbours, itemCounts,
-        state.isWindow() ? 0L : state.spec.halfLifeMillis());
+    rows.put(state.spec.name(), bySlot);
+    orders.put(state.spec.name(), order);
+    PairStats[] sorted = new PairStats[order.length];
+    for (int i = 0; i < order.length; i++) {
+      sorted[i] = bySlot[order[i]];
+    }
+    return new HorizonTable(state.spec.name(), baskets, Arrays.asList(sorted), neighbours(buckets, order, sorted),
+        itemCounts, state.isWindow() ? 0L : state.spec.halfLifeMillis());
   }
 
-  /** A pair with its sort key, computed once (a comparator that computed the measure ran it n log n times). */
-  private record Keyed(double key, PairStats stats) {}
-
-  private static final Comparator<Keyed> BEST_FIRST = Comparator.comparingDouble(Keyed::key).reversed()
-      .thenComparing((Keyed k) -> k.stats().itemA()).thenComparing((Keyed k) -> k.stats().itemB());
-
-  /** Sorts best first by {@code measure} (NaN last), ties by item names. */
-  private static void sortBest(List<PairStats> stats, Measure measure) {
-    List<Keyed> keyed = new ArrayList<>(stats.size());
-    for (PairStats pair : stats) {
-      keyed.add(new Keyed(orderKey(measure, pair), pair));
+  /**
+   * Each item's published pairs in table order: counted per item bucket, then filled, in two passes over the
+   * sorted pairs, one map entry per item.
+   */
+  private static Map<String, List<PairStats>> neighbours(ItemBuckets buckets, int[] order, PairStats[] sorted) {
+    int[] sizes = new int[buckets.count];
+    for (int slot : order) {
+      sizes[buckets.bucketA[slot]]++;
+      sizes[buckets.bucketB[slot]]++;
     }
-    keyed.sort(BEST_FIRST);
-    for (int i = 0; i < keyed.size(); i++) {
-      stats.set(i, keyed.get(i).stats());
+    PairStats[][] lists = new PairStats[buckets.count][];
+    int[] filled = new int[buckets.count];
+    Map<String, List<PairStats>> neighbours = new HashMap<>(buckets.count * 2);
+    for (int i = 0; i < order.length; i++) { // sorted order: each list is sorted too
+      add(lists, sizes, filled, buckets.bucketA[order[i]], sorted[i], sorted[i].itemA(), neighbours);
+      add(lists, sizes, filled, buckets.bucketB[order[i]], sorted[i], sorted[i].itemB(), neighbours);
     }
+    return neighbours;
+  }
+
+  /**
+   * Each tracked pair's two items as buckets, looked up once per refresh for every horizon: a tracked item's
+   * bucket is its slot, an untracked item's one past the tracked ones (one per distinct hash).
+   */
+  private static final class ItemBuckets {
+    final int[] bucketA;
+    final int[] bucketB;
+    final int tracked;
+    int count;
+
+    private ItemBuckets(int pairs, int tracked) {
+      this.bucketA = new int[pairs];
+      this.bucketB = new int[pairs];
+      this.tracked = tracked;
+      this.count = tracked;
+    }
+
+    static ItemBuckets of(TrackedTable pairs, TrackedTable items) {
+      ItemBuckets buckets = new ItemBuckets(pairs.size(), items.size());
+      LongIntHashMap untracked = new LongIntHashMap();
+      for (int slot = 0; slot < pairs.size(); slot++) {
+        buckets.bucketA[slot] = buckets.bucket(items, untracked, pairs.hashA[slot]);
+        buckets.bucketB[slot] = buckets.bucket(items, untracked, pairs.hashB[slot]);
+      }
+      return buckets;
+    }
+
+    private int bucket(TrackedTable items, LongIntHashMap untracked, long hash) {
+      int bucket = items.find(hash);
+      if (bucket < 0) {
+        bucket = untracked.getOrDefault(hash, -1);
+        if (bucket < 0) {
+          bucket = count++;
+          untracked.put(hash, bucket);
+        }
+      }
+      return bucket;
+    }
+
+    /** The tracked slot of pair {@code slot}'s first item, or −1. */
+    int trackedA(int slot) {
+      return bucketA[slot] < tracked ? bucketA[slot] : -1;
+    }
+
+    int trackedB(int slot) {
+      return bucketB[slot] < tracked ? bucketB[slot] : -1;
+    }
+  }
+
+  private static void add(PairStats[][] lists, int[] sizes, int[] filled, int bucket, PairStats stats, String item,
+      Map<String, List<PairStats>> neighbours) {
+    if (lists[bucket] == null) {
+      lists[bucket] = new PairStats[sizes[bucket]];
+      neighbours.put(item, Collections.unmodifiableList(Arrays.asList(lists[bucket])));
+    }
+    lists[bucket][filled[bucket]++] = stats;
+  }
+
+  /**
+   * The slots of the {@code published} non-null pairs, best first by {@code key} (NaN last, as
+   * {@link #orderKey}), ties by item names. The order is strict, so the result does not depend on where the sort
+   * starts; starting from the previous table's order ({@code previous}, or null) makes it nearly sorted already, and
+   * the merge sort (adaptive) runs in about one comparison per pair.
+   */
+  private static int[] sortBest(PairStats[] bySlot, double[] key, int published, int[] previous) {
+    Integer[] order = new Integer[published];
+    boolean[] placed = new boolean[bySlot.length];
+    int n = 0;
+    if (previous != null) {
+      for (int slot : previous) {
+        if (slot < bySlot.length && bySlot[slot] != null) {
+          order[n++] = slot;
+          placed[slot] = true;
+        }
+      }
+    }
+    for (int slot = 0; slot < bySlot.length; slot++) {
+      if (bySlot[slot] != null && !placed[slot]) {
+        order[n++] = slot;
+      }
+    }
+    Arrays.sort(order, (x, y) -> {
+      int byKey = Double.compare(key[y], key[x]);
+      if (byKey != 0) {
+        return byKey;
+      }
+      int byA = bySlot[x].itemA().compareTo(bySlot[y].itemA());
+      return byA != 0 ? byA : bySlot[x].itemB().compareTo(bySlot[y].itemB());
+    });
+    int[] slots = new int[published];
+    for (int i = 0; i < published; i++) {
+      slots[i] = order[i];
+    }
+    return slots;
   }
 
   /** NaN sorts last. */
-  private static double orderKey(Measure measure, PairStats pair) {
+  static double orderKey(Measure measure, PairStats pair) {
     double value = measure.of(pair.measures());
     return Double.isNaN(value) ? Double.NEGATIVE_INFINITY : value;
-  }
-
-  private static Estimate itemCount(PairEngine engine, HorizonState state, Map<Long, Estimate> tracked, long hash) {
-    Estimate count = tracked.get(hash);
-    return count != null ? count : Counts.sketched(engine, state.itemSketch, state, hash);
   }
 }

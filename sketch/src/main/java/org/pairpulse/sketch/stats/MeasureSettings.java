@@ -44,6 +44,13 @@ public record MeasureSettings(double confidenceLevel, double shrinkPriorBaskets,
    * {@code Φ⁻¹((1 + level) / 2) = √2 · erf⁻¹(level)} (1.959964 for 0.95).
    */
   public double zScore() {
-    return Math.sqrt(2.0) * Erf.erfInv(confidenceLevel);
+    return confidenceLevel == DEFAULT_CONFIDENCE_LEVEL ? DEFAULT_Z_SCORE : zScoreOf(confidenceLevel);
+  }
+
+  /** z of the default level, computed once (a refresh asks for it for every pair of every horizon). */
+  private static final double DEFAULT_Z_SCORE = zScoreOf(DEFAULT_CONFIDENCE_LEVEL);
+
+  private static double zScoreOf(double level) {
+    return Math.sqrt(2.0) * Erf.erfInv(level);
   }
 }

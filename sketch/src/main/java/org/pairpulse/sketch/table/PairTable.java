@@ -1,5 +1,7 @@
 package org.pairpulse.sketch.table;
 
+import java.util.Arrays;
+import java.util.Collections;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
@@ -22,6 +24,9 @@ public final class PairTable {
   private final Measure sortMeasure;
   private final Map<String, HorizonTable> horizons;
   private final List<String> horizonNames;
+  /** Per horizon, its pairs by row (null where absent) and its rows best first; null when not known. */
+  private final Map<String, PairStats[]> pairsByRow;
+  private final Map<String, int[]> rowOrder;
 
   /**
    * @param version increasing publication number (0 only for the empty table)
@@ -33,13 +38,50 @@ public final class PairTable {
    */
   public PairTable(long version, long publishedAtMillis, long watermarkMillis, Measure sortMeasure,
       Map<String, HorizonTable> horizons, List<String> horizonNames) {
+    this(version, publishedAtMillis, watermarkMillis, sortMeasure, horizons, horizonNames, null, null);
+  }
+
+  /**
+   * A table whose pairs also have rows: one row per pair, shared by every horizon (a refresh's tracked slots), so
+   * that a reader joins a pair's horizons by row instead of by item names ({@link #pairRows}).
+   *
+   * @param pairsByRow per horizon (every key of {@code horizons}), its pairs by row, null where the pair is absent
+   *     from that horizon; all of one length. Taken over, not copied: the caller must not change them.
+   * @param rowOrder per horizon, the rows of {@link #pairs} in its order. Taken over, not copied.
+   */
+  public PairTable(long version, long publishedAtMillis, long watermarkMillis, Measure sortMeasure,
+      Map<String, HorizonTable> horizons, List<String> horizonNames, Map<String, PairStats[]> pairsByRow,
+      Map<String, int[]> rowOrder) {
     this.version = version;
     this.publishedAtMillis = publishedAtMillis;
     this.watermarkMillis = watermarkMillis;
     this.sortMeasure = sortMeasure;
     this.horizons = Map.copyOf(horizons);
     this.horizonNames = List.copyOf(horizonNames);
+    this.pairsByRow = pairsByRow == null ? null : Map.copyOf(pairsByRow);
+    this.rowOrder = rowOrder == null ? null : Map.copyOf(rowOrder);
   }
+
+  /**
+   * The rows of a horizon's pairs, if this table has them: {@code rows().get(r)} is the pair of row r in the
+   * horizon (null when absent there; the same r is the same pair in every horizon), and {@code order()[i]} is
+   * the row of {@code pairs(horizon).get(i)}. A copy of the order; the list is a read-only view.
+   */
+  public Optional<PairRows> pairRows(String horizon) {
+    if (pairsByRow == null || !pairsByRow.containsKey(horizon)) {
+      return Optional.empty();
+    }
+    return Optional.of(new PairRows(Collections.unmodifiableList(Arrays.asList(pairsByRow.get(horizon))),
+        rowOrder.get(horizon).clone()));
+  }
+
+  /**
+   * One horizon's pairs by row and the rows in the horizon's order; see {@link PairTable#pairRows}.
+   *
+   * @param rows the horizon's pair of each row, null where absent
+   * @param order the rows of the horizon's pairs, best first
+   */
+  public record PairRows(List<PairStats> rows, int[] order) {}
 
   /** The table before any refresh: no horizons, no pairs, version 0. */
   public static PairTable empty() {

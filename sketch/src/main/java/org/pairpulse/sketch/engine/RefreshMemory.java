@@ -1,0 +1,21 @@
+package org.pairpulse.sketch.engine;
+
+/**
+ * What a refresh keeps for the next one, so that its cost follows what changed rather than the table's size: the
+ * closed panes' sums of tracked items and pairs per window ({@link ClosedPaneSums}) and each horizon's order of
+ * pair slots in the last table (the next sort starts from it). Memory only: it never changes a table, which equals
+ * one built without it ({@link PairTables#build(PairEngine, PairTables.Options, RefreshMemory)} with null). Writer
+ * thread only; not in a snapshot.
+ */
+final class RefreshMemory {
+  final ClosedPaneSums items;
+  final ClosedPaneSums pairs;
+  /** Per horizon index, the pair slots of the last table, best first (null before the first refresh). */
+  final int[][] lastOrder;
+
+  RefreshMemory(int windowCount, int itemCapacity, int pairCapacity, int horizonCount) {
+    this.items = new ClosedPaneSums(windowCount, itemCapacity);
+    this.pairs = new ClosedPaneSums(windowCount, pairCapacity);
+    this.lastOrder = new int[horizonCount][];
+  }
+}
