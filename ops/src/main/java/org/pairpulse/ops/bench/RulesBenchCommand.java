@@ -220,12 +220,28 @@ public final class RulesBenchCommand implements Callable<Integer> {
     for (Map.Entry<String, Long> e : stream.plantedCounts().entrySet()) {
       if (e.getValue() >= settings.cohortFloor()) {
         score.aboveFloor++;
-        score.recalled += listedInAll.contains(e.getKey()) ? 1 : 0;
+        boolean listed = listedInAll.contains(e.getKey());
+        score.recalled += listed ? 1 : 0;
+        if (!listed) {
+          out.printf(Locale.ROOT, "  %-10s   not listed: %s (%d baskets)%s%n", shape.wireName(), e.getKey(), e.getValue(),
+              whyNot(tables.get("all"), e.getKey(), settings.horizon()));
+        }
       }
     }
     evaluate(stream, FlooredTable.of(tables.get("all"), new CohortFloor(settings.cohortFloor(), config.horizons())),
         settings.horizon(), score);
     return score;
+  }
+
+  /** What the table says of a planted pair the offer list left out: its counts, expected count and tests. */
+  private static String whyNot(PairTable table, String key, String horizon) {
+    String[] ab = key.split("\\|", 2);
+    return table.pair(ab[0], ab[1], horizon).map(p -> String.format(Locale.ROOT,
+        ": n_ab %.0f [%.0f, %.0f], E %.1f, dispersion %.2f, lift %.2f, confidence %.2f / %.2f, p %.2e",
+        p.counts().countAB().value(), p.counts().countAB().lower(), p.counts().countAB().upper(),
+        p.measures().expectedCountAB(), p.counts().pairCountDispersion(), p.measures().lift(),
+        p.measures().confidenceAB(), p.measures().confidenceBA(), p.measures().associationPValue()))
+        .orElse(": not tracked");
   }
 
   /** Held-out baskets, one item hidden: hit@10 of the suggestions (both null models) and of the most popular items. */

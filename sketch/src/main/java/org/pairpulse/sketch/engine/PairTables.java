@@ -92,8 +92,9 @@ public final class PairTables {
       if (strata != null) {
         SizeStrata.ItemClasses classesA = classesByHash.get(pairs.hashA[slot]);
         SizeStrata.ItemClasses classesB = classesByHash.get(pairs.hashB[slot]);
-        counts = counts.withStratifiedExpected(strata.expected(classesA != null ? classesA : strata.untracked(countA),
-            classesB != null ? classesB : strata.untracked(countB)));
+        SizeStrata.Expectation expectation = strata.expected(classesA != null ? classesA : strata.untracked(countA),
+            classesB != null ? classesB : strata.untracked(countB));
+        counts = counts.withStratifiedExpected(expectation.expected(), expectation.dispersion());
       }
       stats.add(new PairStats(pairs.labelA[slot], pairs.labelB[slot], state.spec.name(), counts,
           PairMeasures.of(counts, options.settings()), pairs.admittedAtMillis[slot]));

@@ -37,6 +37,20 @@ import org.pairpulse.sketch.stats.SizeClasses;
  * the share of item occurrences in class c: the item's own class mix where it has one, the stream's mix (where
  * independence puts an item) where it has none. Each class's n_c is capped at N_c.
  *
+ * <h2>Dispersion of the pair count</h2>
+ * A basket above the pair cap has its pairs sampled with step s: a pair present in it is counted with probability
+ * 1/s and then weighs s ({@link PairSampling}). Its contribution has mean 1 and second moment s, so under the null
+ * model a pair count with expectation E_c from class c has variance about d_c·E_c, d_c = Q_c / K_c, the class's pair
+ * slots' mean step (Q_c = Σ k(k − 1)·s). The pair count's dispersion is then
+ * <pre>
+ *   φ = Σ_c d_c·E_c / Σ_c E_c  (≥ 1; 1 when no basket was above the cap)
+ * </pre>
+ * the variance-to-mean ratio of n_ab under the null model: the count weighs as n_ab / φ independent baskets, the
+ * expectation of Kish's effective count (Σw)² / Σw² over the sampling (L. Kish, Survey Sampling, Wiley 1965, from
+ * memory). It is taken from the strata, not from the pair's own weights: a test reads the variance its null model
+ * gives, and under the Mantel–Haenszel assumption of one rate ratio in every class an associated pair spreads over
+ * the classes as E does, so the same φ serves its interval. It costs one sum per pane and class, nothing per pair.
+ *
  * <p>Refresh-time only (allocates); the hot path never reads this.
  */
 final class SizeStrata {
@@ -48,11 +62,17 @@ final class SizeStrata {
   private final double[] effective;
   private final boolean[] pairless;
   private final double[] itemShares;
+  /** d_c = Q_c / K_c: the mean pair-cap step of the class's pair slots (1 when none was capped). */
+  private final double[] meanStep;
 
   /** One item's counts per class in this horizon. */
   record ItemClasses(double[] known, double unknownValue, double unknownLower, double unknownUpper, double[] pointShares) {}
 
-  private SizeStrata(double[] baskets, double[] effective, boolean[] pairless, double[] itemShares) {
+  /** E with bounds and the pair count's dispersion φ (see the class comment). */
+  record Expectation(Estimate expected, double dispersion) {}
+
+  private SizeStrata(double[] baskets, double[] effective, boolean[] pairless, double[] itemShares, double[] meanStep) {
+    this.meanStep = meanStep;
     this.baskets = baskets;
     this.effective = effective;
     this.pairless = pairless;
@@ -75,6 +95,7 @@ final class SizeStrata {
     double[] baskets = Counts.classBaskets(engine, state);
     double[] items = Counts.classItems(engine, state);
     double[] slots = Counts.classPairSlots(engine, state);
+    double[] weightedSlots = Counts.classWeightedSlots(engine, state);
     double itemTotal = 0;
     for (double m : items) {
       itemTotal += m;
@@ -82,12 +103,14 @@ final class SizeStrata {
     boolean[] pairless = new boolean[classes.count()];
     double[] shares = new double[classes.count()];
     double[] effective = new double[classes.count()];
+    double[] meanStep = new double[classes.count()];
     for (int c = 0; c < shares.length; c++) {
+      meanStep[c] = slots[c] > 0 ? Math.max(1.0, weightedSlots[c] / slots[c]) : 1.0;
       pairless[c] = classes.pairless(c) || !(slots[c] > 0);
       effective[c] = pairless[c] ? 0.0 : items[c] * items[c] / slots[c];
       shares[c] = itemTotal > 0 ? items[c] / itemTotal : 1.0 / shares.length;
     }
-    return new SizeStrata(baskets, effective, pairless, shares);
+    return new SizeStrata(baskets, effective, pairless, shares, meanStep);
   }
 
   /** An item with {@code known} counted per class and {@code total} its whole count with bounds. */
@@ -111,8 +134,8 @@ final class SizeStrata {
     return item(new double[baskets.length], total);
   }
 
-  /** E with bounds for the pair of {@code a} and {@code b}; see the class comment. */
-  Estimate expected(ItemClasses a, ItemClasses b) {
+  /** E with bounds and φ for the pair of {@code a} and {@code b}; see the class comment. */
+  Expectation expected(ItemClasses a, ItemClasses b) {
     int classes = baskets.length;
     double[] pointA = new double[classes];
     double[] pointB = new double[classes];
@@ -124,6 +147,11 @@ final class SizeStrata {
       }
     }
     double value = MantelHaenszel.expected(pointA, pointB, effective);
+    double stepped = 0;
+    for (int c = 0; c < classes; c++) {
+      stepped += meanStep[c] * perBasket(c, pointA[c] * pointB[c]);
+    }
+    double dispersion = value > 0 ? Math.max(1.0, stepped / value) : 1.0;
     double base = 0;
     for (int c = 0; c < classes; c++) {
       base += perBasket(c, a.known()[c] * b.known()[c]);
@@ -143,9 +171,9 @@ final class SizeStrata {
       }
     }
     if (upper == Double.NEGATIVE_INFINITY) { // no baskets at all
-      return Estimate.exact(0);
+      return new Expectation(Estimate.exact(0), 1.0);
     }
-    return new Estimate(value, Math.max(0, Math.min(lower, value)), Math.max(upper, value));
+    return new Expectation(new Estimate(value, Math.max(0, Math.min(lower, value)), Math.max(upper, value)), dispersion);
   }
 
   /** E with u_a placed in class ca and u_b in class cb. */

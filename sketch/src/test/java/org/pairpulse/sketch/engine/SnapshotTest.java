@@ -70,8 +70,8 @@ class SnapshotTest {
     assertMessage(new byte[0], "truncated");
 
     byte[] newer = good.clone();
-    newer[Snapshots.OFFSET_VERSION] = 3;
-    assertMessage(newer, "version 3 is not supported");
+    newer[Snapshots.OFFSET_VERSION] = Snapshots.FORMAT_VERSION + 1;
+    assertMessage(newer, "version " + (Snapshots.FORMAT_VERSION + 1) + " is not supported");
 
     byte[] foreign = good.clone();
     foreign[0] = 'X';
@@ -102,19 +102,28 @@ class SnapshotTest {
   }
 
   /**
-   * Format compatibility: the version-2 snapshot stored in the repository must still read, with the same answers and
-   * the same bytes; the version-1 one (before basket-size classes) must still read, with the same counts, under the
+   * Format compatibility: the version-3 snapshot stored in the repository must still read, with the same answers and
+   * the same bytes; the version-2 one (before the pair-cap steps per size class) must still read, with the same counts
+   * and Q_c = K_c (no basket of the fixture is above the pair cap, so that is also the truth); the version-1 one (before basket-size classes) must still read, with the same counts, under the
    * default size classes, its baskets unclassed (so its horizons publish textbook measures).
    */
   @Test
   void storedFixturesStillRead() throws IOException {
-    byte[] stored = fixture("fixture-v2.ppsn");
+    byte[] stored = fixture("fixture-v3.ppsn");
     PairEngine fromFile = Snapshots.read(stored);
     PairEngine fresh = fixtureEngine();
     assertEquals(fresh.basketCount("day"), fromFile.basketCount("day"));
     assertEquals(fresh.pairCount("tea", "scone", "day"), fromFile.pairCount("tea", "scone", "day"));
     assertEquals(fresh.pairCount("tea", "scone", "recent"), fromFile.pairCount("tea", "scone", "recent"));
-    assertArrayEquals(stored, Snapshots.write(fresh), "format v2 changed: bump FORMAT_VERSION and keep a reader for v2");
+    assertArrayEquals(stored, Snapshots.write(fresh), "format v3 changed: bump FORMAT_VERSION and keep a reader for v3");
+
+    PairEngine fromVersionTwo = Snapshots.read(fixture("fixture-v2.ppsn"));
+    assertEquals(fixtureConfig(), fromVersionTwo.config());
+    assertEquals(fresh.pairCount("tea", "scone", "day"), fromVersionTwo.pairCount("tea", "scone", "day"));
+    for (HorizonState state : fromVersionTwo.horizons) {
+      assertArrayEquals(state.classPairSlots, state.classWeightedSlots, "format 2 reads with Q_c = K_c");
+    }
+    assertArrayEquals(stored, Snapshots.write(fromVersionTwo), "a version-2 state writes as today's");
 
     PairEngine fromVersionOne = Snapshots.read(fixture("fixture-v1.ppsn"));
     assertEquals(fixtureConfig(), fromVersionOne.config());
