@@ -15,7 +15,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
  * an item fills a slot in proportion to its class count, so a pair's expected count is n_a,c·n_b,c·K_c/M_c². For a
  * class of one size k that is n_a,c·n_b,c/N_c·(k − 1)/k (two independent items meet less often in a small basket
  * than independent presence says, since a basket holds an item once); for a class of mixed sizes ρ_c grows with
- * their spread (E[k(k − 1)]/E[k]²), so the sizes inside an open class such as 6+ (from 6 to hundreds) no longer
+ * their spread (E[k(k − 1)]/E[k]²), so the sizes inside a class with a spread (such as a coarse 6+, from 6 to hundreds) do not
  * inflate every pair of popular items. Without it (ρ_c = 1) the benchmark's heavy-tailed stream listed almost only
  * spurious pairs ({@code bench rules}, ops/README). A class with K_c = 0 (single items) adds nothing.
  *
@@ -28,7 +28,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
  * <h2>Bounds of E</h2>
  * E is bilinear in the two items' class allocations, so over all ways of placing u_a and u_b into classes (any class
  * with N_c &gt; 0; a pairless class takes mass but adds nothing) its extremes lie at vertices: all of u_a in one class
- * c_a, all of u_b in one class c_b. {@link #expected} tries every (c_a, c_b), with u at its upper bound for E's upper
+ * c_a, all of u_b in one class c_b. {@link #expected} finds the extreme (c_a, c_b) in O(classes), with u at its upper bound for E's upper
  * bound and at its lower bound for E's lower bound, so E's bounds hold whenever the item counts' bounds do
  * (probability ≥ 1 − δ per sketch, as theirs). An item counted exactly from its first basket has u = 0 and an exact E.
  *
@@ -156,24 +156,83 @@ final class SizeStrata {
     for (int c = 0; c < classes; c++) {
       base += perBasket(c, a.known()[c] * b.known()[c]);
     }
-    double upper = Double.NEGATIVE_INFINITY;
-    double lower = Double.POSITIVE_INFINITY;
-    for (int ca = 0; ca < classes; ca++) {
-      if (!(baskets[ca] > 0)) {
-        continue;
-      }
-      for (int cb = 0; cb < classes; cb++) {
-        if (!(baskets[cb] > 0)) {
-          continue;
-        }
-        upper = Math.max(upper, vertex(base, a, b, ca, cb, a.unknownUpper(), b.unknownUpper()));
-        lower = Math.min(lower, vertex(base, a, b, ca, cb, a.unknownLower(), b.unknownLower()));
-      }
-    }
-    if (upper == Double.NEGATIVE_INFINITY) { // no baskets at all
+    double upper = extremeVertex(base, a, b, a.unknownUpper(), b.unknownUpper(), true);
+    double lower = extremeVertex(base, a, b, a.unknownLower(), b.unknownLower(), false);
+    if (Double.isNaN(upper)) { // no baskets at all
       return new Expectation(Estimate.exact(0), 1.0);
     }
     return new Expectation(new Estimate(value, Math.max(0, Math.min(lower, value)), Math.max(upper, value)), dispersion);
+  }
+
+  /**
+   * The largest ({@code largest}) or smallest vertex value over the classes with baskets, in O(classes): a vertex is
+   * base + A(c_a) + B(c_b) + [c_a = c_b]·D(c_a) with A(c) = ρ_c·u_a·known_b,c/N_c, B likewise, D(c) = ρ_c·u_a·u_b/N_c,
+   * so the extreme is the better of the best diagonal (c_a = c_b) and the best off-diagonal sum, which takes the
+   * two best A and the two best B. NaN when no class has baskets. {@link #extremeVertexByEnumeration} is the
+   * obvious version (tests).
+   */
+  private double extremeVertex(double base, ItemClasses a, ItemClasses b, double ua, double ub, boolean largest) {
+    double sign = largest ? 1.0 : -1.0; // minimise by maximising the negated terms
+    int bestA = -1;
+    int secondA = -1;
+    int bestB = -1;
+    int secondB = -1;
+    double diagonal = Double.NEGATIVE_INFINITY;
+    for (int c = 0; c < baskets.length; c++) {
+      if (!(baskets[c] > 0)) {
+        continue;
+      }
+      double termA = sign * perBasket(c, ua * b.known()[c]);
+      double termB = sign * perBasket(c, ub * a.known()[c]);
+      diagonal = Math.max(diagonal, termA + termB + sign * perBasket(c, ua * ub));
+      if (bestA < 0 || termA > sign * perBasket(bestA, ua * b.known()[bestA])) {
+        secondA = bestA;
+        bestA = c;
+      } else if (secondA < 0 || termA > sign * perBasket(secondA, ua * b.known()[secondA])) {
+        secondA = c;
+      }
+      if (bestB < 0 || termB > sign * perBasket(bestB, ub * a.known()[bestB])) {
+        secondB = bestB;
+        bestB = c;
+      } else if (secondB < 0 || termB > sign * perBasket(secondB, ub * a.known()[secondB])) {
+        secondB = c;
+      }
+    }
+    if (bestA < 0) {
+      return Double.NaN;
+    }
+    double best = diagonal;
+    if (bestA != bestB) {
+      best = Math.max(best, sign * (perBasket(bestA, ua * b.known()[bestA]) + perBasket(bestB, ub * a.known()[bestB])));
+    } else {
+      if (secondB >= 0) {
+        best = Math.max(best, sign * (perBasket(bestA, ua * b.known()[bestA]) + perBasket(secondB, ub * a.known()[secondB])));
+      }
+      if (secondA >= 0) {
+        best = Math.max(best, sign * (perBasket(secondA, ua * b.known()[secondA]) + perBasket(bestB, ub * a.known()[bestB])));
+      }
+    }
+    return base + sign * best;
+  }
+
+  /** {@link #expected}'s bounds by trying every pair of classes: the slow, obvious version (tests). */
+  double[] boundsByEnumeration(ItemClasses a, ItemClasses b) {
+    int classes = baskets.length;
+    double base = 0;
+    for (int c = 0; c < classes; c++) {
+      base += perBasket(c, a.known()[c] * b.known()[c]);
+    }
+    double upper = Double.NEGATIVE_INFINITY;
+    double lower = Double.POSITIVE_INFINITY;
+    for (int ca = 0; ca < classes; ca++) {
+      for (int cb = 0; ca < classes && baskets[ca] > 0 && cb < classes; cb++) {
+        if (baskets[cb] > 0) {
+          upper = Math.max(upper, vertex(base, a, b, ca, cb, a.unknownUpper(), b.unknownUpper()));
+          lower = Math.min(lower, vertex(base, a, b, ca, cb, a.unknownLower(), b.unknownLower()));
+        }
+      }
+    }
+    return new double[] {lower, upper};
   }
 
   /** E with u_a placed in class ca and u_b in class cb. */

@@ -18,6 +18,7 @@ import org.junit.jupiter.api.Test;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.snapshot.SnapshotFormatException;
 import org.pairpulse.sketch.stats.Estimate;
+import org.pairpulse.sketch.stats.SizeClasses;
 import org.pairpulse.sketch.table.PairStats;
 
 /** Snapshot round trip, merge of disjoint streams, corruption, version mismatch, a stored fixture. */
@@ -88,7 +89,7 @@ class SnapshotTest {
     return EngineConfig.builder()
         .horizons(List.of(HorizonSpec.decay("recent", Duration.ofHours(1)), HorizonSpec.window("day", Duration.ofHours(2), 2)))
         .trackingHorizon("recent").itemError(0.1, 0.2).pairError(0.1, 0.2).decayPairEpsilon(0.1)
-        .trackedPairCapacity(8).trackedItemCapacity(8).build();
+        .trackedPairCapacity(8).trackedItemCapacity(8).sizeClasses(SizeClasses.of(1, 2, 3, 4, 6)).build();
   }
 
   static PairEngine fixtureEngine() {
@@ -126,7 +127,8 @@ class SnapshotTest {
     assertArrayEquals(stored, Snapshots.write(fromVersionTwo), "a version-2 state writes as today's");
 
     PairEngine fromVersionOne = Snapshots.read(fixture("fixture-v1.ppsn"));
-    assertEquals(fixtureConfig(), fromVersionOne.config());
+    assertEquals(fixtureConfig().toBuilder().sizeClasses(SizeClasses.defaults()).build(), fromVersionOne.config(),
+        "format 1 reads under the default classes");
     assertEquals(fresh.basketCount("day"), fromVersionOne.basketCount("day"));
     assertEquals(fresh.pairCount("tea", "scone", "day"), fromVersionOne.pairCount("tea", "scone", "day"));
     assertEquals(fresh.itemCount("tea", "recent"), fromVersionOne.itemCount("tea", "recent"));

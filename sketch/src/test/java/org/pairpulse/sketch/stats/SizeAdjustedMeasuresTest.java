@@ -182,14 +182,19 @@ class SizeAdjustedMeasuresTest {
   @Test
   void sizeClassesParseLabelAndClassify() {
     SizeClasses defaults = SizeClasses.defaults();
-    assertEquals("1,2,3,4-5,6+", defaults.toString());
-    assertEquals(defaults, SizeClasses.parse("1,2,3,4-5,6+"));
-    assertEquals(defaults, SizeClasses.parse("1, 2, 3, 4, 6"));
-    int[] expectedClass = {-1, 0, 1, 2, 3, 3, 4, 4, 4};
+    assertEquals("1,2,3,4-5,6-9,10-15,16-24,25-39,40+", defaults.toString());
+    assertEquals(defaults, SizeClasses.parse("1,2,3,4-5,6-9,10-15,16-24,25-39,40+"));
+    assertEquals(defaults, SizeClasses.parse("1, 2, 3, 4, 6, 10, 16, 25, 40"));
+    int[] expectedClass = {-1, 0, 1, 2, 3, 3, 4, 4, 4, 4, 5};
     for (int size = 1; size < expectedClass.length; size++) {
       assertEquals(expectedClass[size], defaults.classOf(size), "size " + size);
     }
-    assertEquals(4, defaults.classOf(1_000));
+    assertEquals(7, defaults.classOf(39));
+    assertEquals(8, defaults.classOf(40));
+    assertEquals(8, defaults.classOf(1_000));
+    SizeClasses coarse = SizeClasses.parse("1,2,3,4-5,6+");
+    assertEquals(SizeClasses.of(1, 2, 3, 4, 6), coarse);
+    assertEquals(4, coarse.classOf(1_000));
     assertTrue(defaults.pairless(0));
     assertFalse(defaults.pairless(1));
     assertFalse(SizeClasses.single().pairless(0));
