@@ -43,6 +43,10 @@ import org.pairpulse.sketch.table.PairTable;
  *       published pair or, for a pair the engine does not track, from {@code pairCount}/{@code itemCount}
  *       (its sketches); p95 by nearest rank.</li>
  * </ul>
+ * Lift here is the textbook lift N·n_ab/(n_a·n_b) on both sides ({@code liftUnadjusted}): the check measures what the
+ * sketches and the tracked tables do to counts, which the exact side counts the same way. The size-adjusted lift
+ * reads the same counts against a stratified expected count; its exact recomputation is checked in the sketch
+ * module's tests (StratifiedExpectationTest).
  */
 final class AccuracyCheck {
   private AccuracyCheck() {}
@@ -149,7 +153,7 @@ final class AccuracyCheck {
         engineAbove.add(stats);
       }
     }
-    engineAbove.sort(Comparator.comparingDouble((PairStats p) -> sortableLift(p.measures().lift())).reversed()
+    engineAbove.sort(Comparator.comparingDouble((PairStats p) -> sortableLift(p.measures().liftUnadjusted())).reversed()
         .thenComparing(PairStats::itemA).thenComparing(PairStats::itemB));
     Map<Long, Integer> engineRank = new HashMap<>();
     for (int r = 0; r < engineAbove.size(); r++) {
@@ -161,7 +165,7 @@ final class AccuracyCheck {
       PairStats stats = engineAbove.get(r);
       engineTop.add(ExactCounts.pairKey(Catalog.idOf(stats.itemA()), Catalog.idOf(stats.itemB())));
     }
-    double kthEngineLift = engineAbove.size() >= k ? engineAbove.get(k - 1).measures().lift() : Double.NaN;
+    double kthEngineLift = engineAbove.size() >= k ? engineAbove.get(k - 1).measures().liftUnadjusted() : Double.NaN;
     // diagnostic only (not in RESULT): the list with the floor applied to the point estimate of support
     List<PairStats> byPoint = new ArrayList<>();
     for (PairStats stats : table.pairs(horizon)) {
@@ -169,7 +173,7 @@ final class AccuracyCheck {
         byPoint.add(stats);
       }
     }
-    byPoint.sort(Comparator.comparingDouble((PairStats p) -> sortableLift(p.measures().lift())).reversed()
+    byPoint.sort(Comparator.comparingDouble((PairStats p) -> sortableLift(p.measures().liftUnadjusted())).reversed()
         .thenComparing(PairStats::itemA).thenComparing(PairStats::itemB));
     Set<Long> engineTopByPoint = new HashSet<>();
     for (PairStats stats : byPoint.subList(0, Math.min(k, byPoint.size()))) {
@@ -188,7 +192,7 @@ final class AccuracyCheck {
       int a = ExactCounts.lowItem(pair.key);
       int b = ExactCounts.highItem(pair.key);
       PairStats stats = published.get(pair.key);
-      double estimate = stats != null ? stats.measures().lift() : sketchLift(engine, horizon, names[a], names[b]);
+      double estimate = stats != null ? stats.measures().liftUnadjusted() : sketchLift(engine, horizon, names[a], names[b]);
       relErrors[r] = Math.abs(estimate - pair.lift) / pair.lift;
       Kind kind = stream.kindOf(a, b);
       int[] tally = byKind.computeIfAbsent(kind, x -> new int[2]);
@@ -243,7 +247,7 @@ final class AccuracyCheck {
         double exactLift = baskets * exactAB / (items.get(a) * items.get(b));
         details.add(String.format(Locale.ROOT, "intruder %s-%s %s: engine #%d lift %.2f n_ab %.1f [%.1f, %.1f] support %.5f;"
                 + " exact %s lift %.2f n_ab %.1f support %.5f", names[a], names[b], stream.kindOf(a, b).label(), r + 1,
-            stats.measures().lift(), stats.counts().countAB().value(), stats.counts().countAB().lower(),
+            stats.measures().liftUnadjusted(), stats.counts().countAB().value(), stats.counts().countAB().lower(),
             stats.counts().countAB().upper(), stats.measures().support(),
             rank == null ? "below the floor," : String.format(Locale.ROOT, "#%d", rank + 1), exactLift, exactAB, exactAB / baskets));
       }
@@ -261,6 +265,6 @@ final class AccuracyCheck {
   private static double sketchLift(PairEngine engine, String horizon, String a, String b) {
     PairCounts counts = new PairCounts(engine.basketCount(horizon), engine.itemCount(a, horizon), engine.itemCount(b, horizon),
         engine.pairCount(a, b, horizon));
-    return PairMeasures.of(counts).lift();
+    return PairMeasures.of(counts).liftUnadjusted();
   }
 }

@@ -96,6 +96,10 @@ public final class RulesBenchCommand implements Callable<Integer> {
       + " 1,2,3,4-5,6+ (default: the engine's default).")
   String sizeClasses;
 
+  @Option(names = "--tracked-pairs", paramLabel = "N", description = "Tracked-pair capacity of the engine (default:"
+      + " the engine's default).")
+  Integer trackedPairs;
+
   /** Pooled tallies over the shapes. */
   static final class Score {
     long topRows;
@@ -166,8 +170,14 @@ public final class RulesBenchCommand implements Callable<Integer> {
   /** One shape: count, report, score. */
   Score run(RulesStream.SizeShape shape, long runSeed, PrintWriter out) {
     RulesStream stream = new RulesStream(runSeed, items, 1.0, shape, planted);
-    EngineConfig config = sizeClasses == null ? EngineConfig.defaults()
-        : EngineConfig.builder().sizeClasses(SizeClasses.parse(sizeClasses)).build();
+    EngineConfig.Builder builder = EngineConfig.builder();
+    if (sizeClasses != null) {
+      builder.sizeClasses(SizeClasses.parse(sizeClasses));
+    }
+    if (trackedPairs != null) {
+      builder.trackedPairCapacity(trackedPairs);
+    }
+    EngineConfig config = builder.build();
     Map<String, PairEngine> engines = new LinkedHashMap<>();
     engines.put("all", new PairEngine(config));
     engines.put("channel=app", new PairEngine(config));
@@ -193,6 +203,9 @@ public final class RulesBenchCommand implements Callable<Integer> {
         tables.get("all").pairCount());
     out.flush();
 
+    out.printf(Locale.ROOT, "  %-10s null model on the 20 most popular items (independent): median lift %s size-adjusted,"
+        + " %s textbook%n", shape.wireName(), popularPairsLift(tables.get("all"), true),
+        popularPairsLift(tables.get("all"), false));
     ShortlistSettings settings = ShortlistSettings.defaults().withTop(10_000);
     ShortlistReport report = ShortlistReport.build(tables, config.horizons(), settings);
     Set<String> plantedKeys = new HashSet<>();
@@ -220,12 +233,50 @@ public final class RulesBenchCommand implements Callable<Integer> {
     for (Map.Entry<String, Long> e : stream.plantedCounts().entrySet()) {
       if (e.getValue() >= settings.cohortFloor()) {
         score.aboveFloor++;
-        score.recalled += listedInAll.contains(e.getKey()) ? 1 : 0;
+        boolean listed = listedInAll.contains(e.getKey());
+        score.recalled += listed ? 1 : 0;
+        if (!listed) {
+          out.printf(Locale.ROOT, "  %-10s   not listed: %s (%d baskets)%s%n", shape.wireName(), e.getKey(), e.getValue(),
+              whyNot(tables.get("all"), e.getKey(), settings.horizon()));
+        }
       }
     }
     evaluate(stream, FlooredTable.of(tables.get("all"), new CohortFloor(settings.cohortFloor(), config.horizons())),
         settings.horizon(), score);
     return score;
+  }
+
+  /**
+   * The median lift of the published pairs among the 20 most frequent items of the {@code day} horizon: independent
+   * items (planted antecedents rank from 20 on), so a calibrated null model gives about 1.
+   */
+  private static String popularPairsLift(PairTable table, boolean adjusted) {
+    var horizon = table.horizon("day").orElseThrow();
+    List<String> items = new ArrayList<>(horizon.itemCounts().keySet());
+    items.sort(Comparator.comparingDouble((String item) -> -horizon.itemCounts().get(item).value()).thenComparing(i -> i));
+    List<Double> lifts = new ArrayList<>();
+    for (int i = 0; i < Math.min(20, items.size()); i++) {
+      for (int j = i + 1; j < Math.min(20, items.size()); j++) {
+        table.pair(items.get(i), items.get(j), "day").ifPresent(p -> lifts.add(adjusted ? p.measures().lift()
+            : p.measures().liftUnadjusted()));
+      }
+    }
+    if (lifts.isEmpty()) {
+      return "NA";
+    }
+    lifts.sort(Double::compare);
+    return String.format(Locale.ROOT, "%.3f", lifts.get(lifts.size() / 2));
+  }
+
+  /** What the table says of a planted pair the offer list left out: its counts, expected count and tests. */
+  private static String whyNot(PairTable table, String key, String horizon) {
+    String[] ab = key.split("\\|", 2);
+    return table.pair(ab[0], ab[1], horizon).map(p -> String.format(Locale.ROOT,
+        ": n_ab %.0f [%.0f, %.0f], E %.1f, dispersion %.2f, lift %.2f, confidence %.2f / %.2f, p %.2e",
+        p.counts().countAB().value(), p.counts().countAB().lower(), p.counts().countAB().upper(),
+        p.measures().expectedCountAB(), p.counts().pairCountDispersion(), p.measures().lift(),
+        p.measures().confidenceAB(), p.measures().confidenceBA(), p.measures().associationPValue()))
+        .orElse(": not tracked");
   }
 
   /** Held-out baskets, one item hidden: hit@10 of the suggestions (both null models) and of the most popular items. */

@@ -34,6 +34,7 @@ import org.pairpulse.ops.pipeline.Pipeline;
 import org.pairpulse.serve.ServeConfig;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
+import org.pairpulse.sketch.stats.SizeClasses;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 
 /**
@@ -94,6 +95,8 @@ public final class RunConfig {
   public static final String EVALUATION_SHARE = "evaluation.share";
   public static final String EVALUATION_K = "evaluation.k";
   public static final String EVALUATION_HORIZON = "evaluation.horizon";
+  /** Basket-size classes of the size-adjusted null model ({@link SizeClasses#parse}). */
+  public static final String SIZE_CLASSES = "engine.sizeClasses";
 
   private static final List<Key> KEYS = keys();
   private static final Map<String, Key> BY_NAME = byName(KEYS);
@@ -287,6 +290,7 @@ public final class RunConfig {
         .maxPairsPerBasket(intValue("engine.maxPairsPerBasket"))
         .trackingHalfLifeMillis(longValue("engine.trackingHalfLifeMillis"))
         .seed(longValue("engine.seed"))
+        .sizeClasses(SizeClasses.parse(values.get(SIZE_CLASSES)))
         .build();
   }
 
@@ -577,6 +581,16 @@ public final class RunConfig {
         "half-life of the weights that rank tracked pairs and items (7 days)"));
     keys.add(longKey("engine.seed", d.seed(), Long.MIN_VALUE, Long.MAX_VALUE,
         "hash seed; every instance of a group must use the same (their states are merged)"));
+    keys.add(new Key(SIZE_CLASSES, "string", d.sizeClasses().toString(), "sizes from 1, e.g. 1,2,3,4-5,6-9,10+",
+        "basket-size classes of the size-adjusted null model (expected pair counts within classes); 1+ is one class:"
+            + " the textbook measures throughout. Every instance of a group must use the same", Part.ENGINE, value -> {
+              try {
+                SizeClasses.parse(value);
+                return null;
+              } catch (IllegalArgumentException e) {
+                return "not size classes (e.g. 1,2,3,4-5,6+)";
+              }
+            }));
     keys.add(longKey("horizon.recent.halfLifeMillis", recent.halfLifeMillis(), 1000, Long.MAX_VALUE,
         "half-life of the recent decay horizon (6 h); drift compares recent against baseline"));
     keys.add(longKey("horizon.day.lengthMillis", day.lengthMillis(), 1000, Long.MAX_VALUE,

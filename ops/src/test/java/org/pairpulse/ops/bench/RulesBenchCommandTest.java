@@ -48,10 +48,13 @@ class RulesBenchCommandTest {
     return command.run(shape, seed, new PrintWriter(Writer.nullWriter()));
   }
 
+  /**
+   * Every shape, the heavy tail included: there about two fifths of the pair weight come from baskets above the pair cap,
+   * sampled and weighted (the offer test reads them with their dispersion; read as baskets, they listed spurious rows).
+   */
   @Test
   void independentItemsGiveNoOfferRowAtAnyBasketSizes() {
-    for (RulesStream.SizeShape shape : new RulesStream.SizeShape[] {RulesStream.SizeShape.SMALL,
-        RulesStream.SizeShape.MIXED}) {
+    for (RulesStream.SizeShape shape : RulesStream.SizeShape.values()) {
       for (long seed : new long[] {1, 2}) {
         RulesBenchCommand.Score score = run(shape, seed, 0);
         assertEquals(0, score.rows, shape + " seed " + seed + ": rows on a stream of independent items");

@@ -23,6 +23,7 @@ import org.pairpulse.ops.pipeline.Pipeline;
 import org.pairpulse.serve.ServeConfig;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
+import org.pairpulse.sketch.stats.SizeClasses;
 
 /** The configuration file of {@code pairpulse run}: effective values, clear errors, masked secrets, its docs. */
 class RunConfigTest {
@@ -82,6 +83,18 @@ class RunConfigTest {
         e.problems().get(0));
     e = assertThrows(RunConfigException.class, () -> load("bootstrap.servers=k:9092\ntopics=t\ndrift.enterRootG=4\n"));
     assertTrue(e.problems().get(0).contains("did you mean 'drift.enterRootG2'?"), e.getMessage());
+  }
+
+  @Test
+  void basketSizeClassesReachTheEngine() throws IOException {
+    assertEquals(SizeClasses.defaults(), example(Map.of()).pipelineSettings().engine().sizeClasses());
+    assertEquals(SizeClasses.of(1, 2, 3, 4, 6, 10),
+        example(Map.of("engine.sizeClasses", "1,2,3,4-5,6-9,10+")).pipelineSettings().engine().sizeClasses());
+    assertEquals(SizeClasses.single(), example(Map.of("engine.sizeClasses", "1+")).engine().sizeClasses(),
+        "one class: the textbook measures");
+    RunConfigException e = assertThrows(RunConfigException.class,
+        () -> load("bootstrap.servers=k:9092\ntopics=t\nengine.sizeClasses=2,3,4+\n"));
+    assertTrue(e.getMessage().contains("engine.sizeClasses=2,3,4+: not size classes"), e.getMessage());
   }
 
   @Test

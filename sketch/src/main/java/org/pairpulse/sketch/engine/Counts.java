@@ -158,6 +158,11 @@ final class Counts {
     return perClass(engine, state, state.classPairSlots);
   }
 
+  /** Q_c per size class as of the watermark: K_c's pair slots, each times its basket's pair-cap step. */
+  static double[] classWeightedSlots(PairEngine engine, HorizonState state) {
+    return perClass(engine, state, state.classWeightedSlots);
+  }
+
   /** Baskets of unknown class (restored from a format-1 snapshot) as of the watermark. */
   static double unclassedBaskets(PairEngine engine, HorizonState state) {
     if (!state.isWindow()) {

@@ -35,7 +35,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *   <tr><td>maxPairsPerBasket</td><td>256</td><td>pairs counted per basket before sampling with inverse-probability weights</td></tr>
  *   <tr><td>updateRule</td><td>LINEAR</td><td>count-min update rule; LINEAR keeps partitions mergeable</td></tr>
  *   <tr><td>seed</td><td>0x5EED</td><td>hash seed; equal seeds are needed to merge</td></tr>
- *   <tr><td>sizeClasses</td><td>1, 2, 3, 4–5, 6+</td><td>basket-size classes of the size-adjusted null model
+ *   <tr><td>sizeClasses</td><td>1, 2, 3, 4–5, 6–9, 10–15, 16–24, 25–39, 40+</td><td>basket-size classes of the size-adjusted null model
  *       ({@link SizeClasses}): N and the tracked items' counts are kept per class; {@link SizeClasses#single()}
  *       turns the adjustment off (textbook measures)</td></tr>
  * </table>

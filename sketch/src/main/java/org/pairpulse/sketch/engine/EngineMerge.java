@@ -74,6 +74,7 @@ final class EngineMerge {
           mine.classBaskets[c] += theirs.classBaskets[c] * otherScale[h];
           mine.classItems[c] += theirs.classItems[c] * otherScale[h];
           mine.classPairSlots[c] += theirs.classPairSlots[c] * otherScale[h];
+          mine.classWeightedSlots[c] += theirs.classWeightedSlots[c] * otherScale[h];
         }
       }
     }

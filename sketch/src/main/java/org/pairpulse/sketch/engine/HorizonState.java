@@ -7,7 +7,8 @@ import org.pairpulse.sketch.horizon.HorizonSpec;
 /**
  * The sketches of one horizon: per pane (a decay has one) an item sketch, a pair sketch and the basket
  * weight N; and per pane and basket-size class c the basket weight N_c, the item weight M_c (distinct
- * items k times basket weight) and the pair-slot weight K_c (k(k − 1) times basket weight), the strata of the size-adjusted null model. Baskets restored from a snapshot
+ * items k times basket weight), the pair-slot weight K_c (k(k − 1) times basket weight) and the same times the
+ * pair cap's step Q_c: the strata of the size-adjusted null model and the variance of its pair counts. Baskets restored from a snapshot
  * that had no classes (format 1) are unclassed: {@code unclassedBaskets}.
  *
  * <h2>Windows</h2>
@@ -45,6 +46,12 @@ final class HorizonState {
   final double[] classItems;
   /** K_c of pane p at {@code p * classCount + c}: the weight of ordered item pairs k(k − 1) in baskets of class c. */
   final double[] classPairSlots;
+  /**
+   * Q_c of pane p at {@code p * classCount + c}: the pair-slot weight k(k − 1) times the pair cap's step s (1 for a
+   * basket under the cap, see {@link PairSampling}) in baskets of class c. Q_c / K_c is the class's pair-count
+   * dispersion (see {@link SizeStrata}).
+   */
+  final double[] classWeightedSlots;
   /** Baskets of pane p whose class is unknown (restored from a format-1 snapshot). */
   final double[] unclassedBaskets;
   /** Window: pane index held by each ring slot (Long.MIN_VALUE: never used). */
@@ -102,6 +109,7 @@ final class HorizonState {
     this.classBaskets = new double[paneCount * classCount];
     this.classItems = new double[paneCount * classCount];
     this.classPairSlots = new double[paneCount * classCount];
+    this.classWeightedSlots = new double[paneCount * classCount];
     this.unclassedBaskets = new double[paneCount];
     this.paneOfSlot = new long[paneCount];
     Arrays.fill(paneOfSlot, Long.MIN_VALUE);
@@ -156,12 +164,13 @@ final class HorizonState {
     Arrays.fill(classBaskets, slot * classCount, (slot + 1) * classCount, 0.0);
     Arrays.fill(classItems, slot * classCount, (slot + 1) * classCount, 0.0);
     Arrays.fill(classPairSlots, slot * classCount, (slot + 1) * classCount, 0.0);
+    Arrays.fill(classWeightedSlots, slot * classCount, (slot + 1) * classCount, 0.0);
     unclassedBaskets[slot] = 0;
     paneOfSlot[slot] = newPane;
     lateStamp[slot] = 0;
   }
 
-  /** Multiplies the decay's N, N_c, M_c by {@code factor} (a rescale; the sketches are scaled by the engine). */
+  /** Multiplies the decay's N, N_c, M_c, K_c, Q_c by {@code factor} (a rescale; the sketches are scaled by the engine). */
   void scaleBasketWeights(double factor) {
     basketWeight[0] *= factor;
     unclassedBaskets[0] *= factor;
@@ -169,6 +178,7 @@ final class HorizonState {
       classBaskets[c] *= factor;
       classItems[c] *= factor;
       classPairSlots[c] *= factor;
+      classWeightedSlots[c] *= factor;
     }
   }
 
@@ -192,7 +202,7 @@ final class HorizonState {
   }
 
   long stateBytes() {
-    long bytes = 8L * basketWeight.length * 3 + 8L * classBaskets.length * 3;
+    long bytes = 8L * basketWeight.length * 3 + 8L * classBaskets.length * 4;
     for (int p = 0; p < paneCount; p++) {
       bytes += itemSketch[p].stateBytes() + pairSketch[p].stateBytes();
     }

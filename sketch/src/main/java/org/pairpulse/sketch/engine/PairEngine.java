@@ -140,6 +140,9 @@ public final class PairEngine {
       }
     }
     basketClass = config.sizeClasses().classOf(distinct);
+    int pairCount = keys.selectPairs(distinct, sampling);
+    double slots = (double) distinct * (distinct - 1);
+    double weightedSlots = slots * keys.pairWeight;
     for (int h = 0; h < horizons.length; h++) {
       int pane = paneOfHorizon[h];
       if (pane >= 0) {
@@ -149,10 +152,10 @@ public final class PairEngine {
         state.basketWeight[pane] += weight;
         state.classBaskets[cell] += weight;
         state.classItems[cell] += weight * distinct;
-        state.classPairSlots[cell] += weight * ((double) distinct * (distinct - 1));
+        state.classPairSlots[cell] += weight * slots;
+        state.classWeightedSlots[cell] += weight * weightedSlots;
       }
     }
-    int pairCount = keys.selectPairs(distinct, sampling);
     keys.hashRows(distinct, pairCount, horizons[0].itemSketch[0], horizons[0].pairSketch[0]);
     addToSketches(distinct, pairCount);
     for (int i = 0; i < distinct; i++) {

@@ -112,8 +112,10 @@ public final class PairTables {
       Estimate countB = slotB >= 0 ? itemBySlot[slotB] : Counts.sketched(engine, state.itemSketch, state, pairs.hashB[slot]);
       PairCounts counts = new PairCounts(baskets, countA, countB, countAB);
       if (strata != null) {
-        counts = counts.withStratifiedExpected(strata.expected(slotA >= 0 ? classesBySlot[slotA] : strata.untracked(countA),
-            slotB >= 0 ? classesBySlot[slotB] : strata.untracked(countB)));
+        SizeStrata.Expectation expectation = strata.expected(
+            slotA >= 0 ? classesBySlot[slotA] : strata.untracked(countA),
+            slotB >= 0 ? classesBySlot[slotB] : strata.untracked(countB));
+        counts = counts.withStratifiedExpected(expectation.expected(), expectation.dispersion());
       }
       PairStats stats = new PairStats(pairs.labelA[slot], pairs.labelB[slot], state.spec.name(), counts,
           PairMeasures.of(counts, options.settings()), pairs.admittedAtMillis[slot]);

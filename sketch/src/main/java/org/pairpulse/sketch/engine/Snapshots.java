@@ -24,7 +24,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
  * offset  bytes  field
  * ------  -----  -----------------------------------------------------------------
  *   0       4    MAGIC          0x50 0x50 0x53 0x4E ("PPSN")
- *   4       1    FORMAT_VERSION 2 (1 is still read, see below)
+ *   4       1    FORMAT_VERSION 3 (1 and 2 are still read, see below)
  *   5       3    reserved       0
  *   8       8    PAYLOAD_BYTES  length L of the payload (big-endian)
  *  16       4    PAYLOAD_CRC    CRC32C of the payload
@@ -40,7 +40,8 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *             pairsSkippedByCap:long
  *   horizons  per horizon {newestPane:long, landmarkMillis:long, per pane {paneOfSlot:long,
  *             basketWeight:double, unclassedBaskets:double, classBaskets:double[classes],
- *             classItems:double[classes], classPairSlots:double[classes], item sketch {total:double, counters:double[width*depth]},
+ *             classItems:double[classes], classPairSlots:double[classes], classWeightedSlots:double[classes],
+ *             item sketch {total:double, counters:double[width*depth]},
  *             pair sketch {same}}}
  *   tables    items then pairs, each {size:int, admissions, evictions, rejections:long, per slot
  *             {key:long, labelA:nullable-utf, labelB:nullable-utf, hashA, hashB, admittedAtMillis:long,
@@ -49,6 +50,11 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *             classDecays:double[decays * classes]}}
  *   (horizons here include the internal tracking decay, written last)
  * </pre>
+ *
+ * <h2>Format 2</h2>
+ * The same without classWeightedSlots (Q_c, the pair slots times the pair cap's step). It is read with Q_c = K_c, as
+ * if no basket had been above the pair cap (Σw² = Σw: the pair counts' dispersion is 1) until the restored panes
+ * leave (windows) or decay (decays); baskets counted after the restore carry their steps.
  *
  * <h2>Format 1</h2>
  * The same without basket-size classes: no sizeClasses in the configuration, no unclassedBaskets,
@@ -63,7 +69,9 @@ import org.pairpulse.sketch.stats.SizeClasses;
  */
 public final class Snapshots {
   static final int MAGIC = 0x5050_534E;
-  static final byte FORMAT_VERSION = 2;
+  static final byte FORMAT_VERSION = 3;
+  /** The format before the pair-cap steps per size class (Q_c), still read. */
+  static final byte FORMAT_VERSION_2 = 2;
   /** The format before basket-size classes, still read. */
   static final byte FORMAT_VERSION_1 = 1;
   static final int OFFSET_VERSION = 4;
@@ -101,6 +109,9 @@ public final class Snapshots {
           for (int c = 0; c < state.classCount; c++) {
             out.writeDouble(state.classPairSlots[p * state.classCount + c]);
           }
+          for (int c = 0; c < state.classCount; c++) {
+            out.writeDouble(state.classWeightedSlots[p * state.classCount + c]);
+          }
           state.itemSketch[p].writeCounters(out);
           state.pairSketch[p].writeCounters(out);
         }
@@ -132,11 +143,12 @@ public final class Snapshots {
       throw new SnapshotFormatException(String.format("not a pairpulse snapshot (magic 0x%08X, expected 0x%08X)", magic, MAGIC));
     }
     byte version = snapshot[OFFSET_VERSION];
-    if (version != FORMAT_VERSION && version != FORMAT_VERSION_1) {
+    if (version != FORMAT_VERSION && version != FORMAT_VERSION_2 && version != FORMAT_VERSION_1) {
       throw new SnapshotFormatException("snapshot format version " + version + " is not supported; this build reads versions "
-          + FORMAT_VERSION_1 + " and " + FORMAT_VERSION);
+          + FORMAT_VERSION_1 + " to " + FORMAT_VERSION);
     }
-    boolean classed = version == FORMAT_VERSION;
+    boolean classed = version != FORMAT_VERSION_1;
+    boolean weightedSlots = version == FORMAT_VERSION;
     long payloadBytes = header.getLong(OFFSET_PAYLOAD_BYTES);
     if (payloadBytes != snapshot.length - HEADER_BYTES) {
       throw new SnapshotFormatException("snapshot truncated or padded: header says " + payloadBytes
@@ -174,6 +186,10 @@ public final class Snapshots {
             for (int c = 0; c < state.classCount; c++) {
               state.classPairSlots[p * state.classCount + c] = in.readDouble();
             }
+            for (int c = 0; c < state.classCount; c++) { // format 2: as if every basket was under the pair cap
+              int cell = p * state.classCount + c;
+              state.classWeightedSlots[cell] = weightedSlots ? in.readDouble() : state.classPairSlots[cell];
+            }
           } else {
             state.unclassedBaskets[p] = state.basketWeight[p];
           }
@@ -199,7 +215,7 @@ public final class Snapshots {
     read(snapshot); // validates fully first
     try {
       return readConfig(new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES)),
-          snapshot[OFFSET_VERSION] == FORMAT_VERSION);
+          snapshot[OFFSET_VERSION] != FORMAT_VERSION_1);
     } catch (IOException e) {
       throw new SnapshotFormatException("snapshot configuration unreadable", e);
     }

@@ -84,7 +84,9 @@ record LiftInterval(double lower, double upper) {
    * the per-class counts). Sketch extremes: min(n_ab.lower, n_a.upper, n_b.upper) / E.upper and
    * min(n_ab.upper, n_a.lower, n_b.lower) / E.lower (+∞ when E.lower is 0). Sampling: the delta-method variance
    * of the class comment with the adjusted lift in place of the pooled one, an approximation that is exact with
-   * one class (the stratified E moves with its margins as n_a·n_b/N does). With n_ab = 0: [0, (n_ab.upper +
+   * one class (the stratified E moves with its margins as n_a·n_b/N does), plus (φ − 1)/n_ab for a weighted pair
+   * count (φ its dispersion, {@link PairCounts#pairCountDispersion()}: the pair cap's sampling adds (φ − 1)·n_ab to
+   * the variance of n_ab, independently of the margins, which are never sampled). With n_ab = 0: [0, (n_ab.upper +
    * −ln((1 − level)/2)) / E.lower].
    */
   static LiftInterval adjusted(PairCounts counts, ClampedCounts point, double pointLift, MeasureSettings settings) {
@@ -99,7 +101,8 @@ record LiftInterval(double lower, double upper) {
     double sketchLower = expected.upper() > 0
         ? Math.min(counts.countAB().lower(), Math.min(m.upperA, m.upperB)) / expected.upper() : 0.0;
     double sketchUpper = ratioUpTo(Math.min(counts.countAB().upper(), Math.min(m.lowerA, m.lowerB)), expected.lower());
-    double samplingFactor = Math.exp(settings.zScore() * Math.sqrt(logLiftVariance(point, pointLift)));
+    double variance = logLiftVariance(point, pointLift) + (counts.pairCountDispersion() - 1.0) / point.countAB();
+    double samplingFactor = Math.exp(settings.zScore() * Math.sqrt(variance));
     return new LiftInterval(Math.min(sketchLower / samplingFactor, pointLift),
         Math.max(sketchUpper * samplingFactor, pointLift));
   }

@@ -25,18 +25,30 @@ import java.util.Objects;
  * classes: then E is the textbook n_a·n_b/N and the adjusted measures equal the textbook ones.
  *
  * @param countAB n_ab, the (weighted) number of baskets containing both a and b
+ * <h2>Weighted pair counts</h2>
+ * Above the pair cap a basket's pairs are sampled and weigh the sampling step, so n_ab is not a count of
+ * independent baskets: {@code pairCountDispersion} φ (at least 1) is its variance-to-mean ratio under the null
+ * model, and n_ab weighs as n_ab / φ baskets of evidence (Kish's effective count). The size-adjusted tests, the
+ * interval and the shrunk lift read it; the textbook measures do not (they read every count as baskets).
+ *
  * @param stratifiedExpectedAB E under independence within basket-size classes, with bounds; null for
  *     plain independence (one class)
+ * @param pairCountDispersion φ ≥ 1, the variance-to-mean ratio of n_ab under the null model from the pair cap's
+ *     sampling weights; 1 when no basket was above the cap (or the counts carry no size classes)
  */
 public record PairCounts(double baskets, Estimate countA, Estimate countB, Estimate countAB,
-    Estimate stratifiedExpectedAB) {
+    Estimate stratifiedExpectedAB, double pairCountDispersion) {
 
   /**
-   * @throws IllegalArgumentException if {@code baskets} is NaN, infinite or negative
+   * @throws IllegalArgumentException if {@code baskets} is NaN, infinite or negative, or the dispersion is not a
+   *     finite number of at least 1
    * @throws NullPointerException if a count's estimate is null
    */
   public PairCounts {
     Estimate.requireCount("baskets", baskets);
+    if (!(pairCountDispersion >= 1.0) || Double.isInfinite(pairCountDispersion)) {
+      throw new IllegalArgumentException("pairCountDispersion must be finite and >= 1, got " + pairCountDispersion);
+    }
     Objects.requireNonNull(countA, "countA");
     Objects.requireNonNull(countB, "countB");
     Objects.requireNonNull(countAB, "countAB");
@@ -44,12 +56,17 @@ public record PairCounts(double baskets, Estimate countA, Estimate countB, Estim
 
   /** Counts without size classes: the null model is plain independence. */
   public PairCounts(double baskets, Estimate countA, Estimate countB, Estimate countAB) {
-    this(baskets, countA, countB, countAB, null);
+    this(baskets, countA, countB, countAB, null, 1.0);
   }
 
-  /** These counts with E taken within basket-size classes (see the class comment). */
+  /** These counts with E taken within basket-size classes (see the class comment), every pair count of weight 1. */
   public PairCounts withStratifiedExpected(Estimate expected) {
-    return new PairCounts(baskets, countA, countB, countAB, Objects.requireNonNull(expected, "expected"));
+    return withStratifiedExpected(expected, 1.0);
+  }
+
+  /** These counts with E taken within basket-size classes and the pair count's dispersion φ (see the class comment). */
+  public PairCounts withStratifiedExpected(Estimate expected, double dispersion) {
+    return new PairCounts(baskets, countA, countB, countAB, Objects.requireNonNull(expected, "expected"), dispersion);
   }
 
   /** Whether E comes from basket-size classes (else it is the textbook n_a·n_b/N). */
@@ -79,10 +96,11 @@ public record PairCounts(double baskets, Estimate countA, Estimate countB, Estim
     return new PairCounts(baskets, Estimate.exact(countA), Estimate.exact(countB), Estimate.exact(countAB));
   }
 
-  /** These counts, every value and bound multiplied by {@code factor}. */
+  /** These counts, every value and bound multiplied by {@code factor} (the dispersion, a ratio, stays). */
   public PairCounts scaledBy(double factor) {
     Estimate.requireCount("factor", factor);
     return new PairCounts(baskets * factor, countA.scaledBy(factor), countB.scaledBy(factor),
-        countAB.scaledBy(factor), stratifiedExpectedAB == null ? null : stratifiedExpectedAB.scaledBy(factor));
+        countAB.scaledBy(factor), stratifiedExpectedAB == null ? null : stratifiedExpectedAB.scaledBy(factor),
+        pairCountDispersion);
   }
 }

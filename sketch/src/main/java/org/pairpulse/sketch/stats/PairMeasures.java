@@ -34,10 +34,15 @@ import java.util.Objects;
  *   lift           = n_ab / E                      (an observed-over-expected ratio)
  *   leverage       = (n_ab − E) / N
  *   convictionAB   = (1 − E/n_a) / (1 − confidenceAB)   (E/n_a: the confidence the null model expects)
- *   shrunkLift     = (n_ab + k) / (E + k)          [5] (DuMouchel's expected counts are stratified too)
- *   gSquared       = 2·(n_ab·ln(n_ab/E) − (n_ab − E)), the G-test of n_ab ~ Poisson(E), E given the margins
+ *   shrunkLift     = (n_ab/φ + k) / (E/φ + k)      [5] (DuMouchel's expected counts are stratified too)
+ *   gSquared       = 2·(n_ab·ln(n_ab/E) − (n_ab − E)) / φ, the G-test of n_ab ~ Poisson(E), E given the margins
  *   lift interval  = {@link LiftInterval#adjusted}; repelling = its upper end below 1
  * </pre>
+ * φ ≥ 1 is the pair count's dispersion ({@link PairCounts#pairCountDispersion()}): above the pair cap a basket's
+ * pairs are sampled and weigh the step, so n_ab varies φ times as much as a count of baskets. The tests, the
+ * interval and the shrinker read n_ab/φ and E/φ, the evidence in baskets (the quasi-Poisson scaling of the
+ * deviance, McCullagh and Nelder, Generalized Linear Models, 2nd ed., 1989, section 6.2, from memory); φ = 1 without
+ * capped baskets.
  * These are {@link #lift()}, {@link #liftLower()}, {@link #shrunkLift()}, {@link #leverage()},
  * {@link #convictionAB()}, {@link #gSquared()} and their companions: what ranking, filtering and alerts read.
  * The textbook values stay available as {@code …Unadjusted()} ({@link #liftUnadjusted()} and so on; the
@@ -45,8 +50,9 @@ import java.util.Objects;
  * Support, confidence, Kulczynski, the imbalance ratio and χ² do not read a null model.
  *
  * <p>{@link #associationPValue()} is the one-sided test the offer lists screen pairs with:
- * P(X ≥ n_ab.lower) for X ~ Poisson(λ·E.upper), at the least favourable sketch bounds, with a gamma factor λ
- * of mean 1 and coefficient of variation {@link #NULL_MODEL_TOLERANCE} for the null model's own error.
+ * P(X ≥ n_ab.lower/φ) for X ~ Poisson(λ·E.upper/φ), at the least favourable sketch bounds and in effective
+ * baskets, with a gamma factor λ of mean 1 and coefficient of variation {@link #NULL_MODEL_TOLERANCE} for the null
+ * model's own error (so the variance is φ·E + τ²·E² in count units).
  *
  * <p>The shrunk lift is the posterior mean of the rate ratio λ when n_ab ~ Poisson(λ·E) and λ has
  * a Gamma(k, k) prior (mean 1, worth k baskets): the gamma–Poisson shrinker of [5]. It lies
@@ -154,8 +160,10 @@ public final class PairMeasures {
     double upperB = Math.min(counts.countB().upper(), baskets);
     // the tail (an incomplete beta function) is computed when asked: only the offer screen reads it, for one
     // horizon, while a refresh builds the measures of every pair in every horizon
-    pValueCount = Math.min(counts.countAB().lower(), Math.min(upperA, upperB));
-    pValueMean = expected.upper();
+    // in effective baskets: a weighted pair count varies φ times as much as a count of baskets
+    double dispersion = counts.isStratified() ? counts.pairCountDispersion() : 1.0;
+    pValueCount = Math.min(counts.countAB().lower(), Math.min(upperA, upperB)) / dispersion;
+    pValueMean = expected.upper() / dispersion;
   }
 
   /** The size-adjusted measures: E from basket-size classes in place of n_a·n_b/N (see the class comment). */
@@ -166,9 +174,11 @@ public final class PairMeasures {
     double lift = point.countA() == 0 || point.countB() == 0 ? Double.NaN : observed / expected;
     LiftInterval interval = LiftInterval.adjusted(counts, point, lift, settings);
     double prior = settings.shrinkPriorBaskets();
-    double gSquared = poissonGSquared(observed, expected);
+    double dispersion = counts.pairCountDispersion();
+    double gSquared = poissonGSquared(observed, expected) / dispersion;
     double root = Math.sqrt(gSquared);
-    return new NullModelMeasures(lift, interval.lower(), interval.upper(), (observed + prior) / (expected + prior),
+    double shrunk = (observed / dispersion + prior) / (expected / dispersion + prior);
+    return new NullModelMeasures(lift, interval.lower(), interval.upper(), shrunk,
         (observed - expected) / baskets, conviction(observed / point.countA(), expected / point.countA()),
         conviction(observed / point.countB(), expected / point.countB()), gSquared,
         observed < expected ? -root : root, TwoByTwoTable.chiSquareOneDfPValue(gSquared));
@@ -280,7 +290,7 @@ public final class PairMeasures {
     return adjusted.liftUpper();
   }
 
-  /** Size-adjusted shrunk lift (n_ab + k) / (E + k): lift pulled toward 1 when evidence is thin. */
+  /** Size-adjusted shrunk lift (n_ab/φ + k) / (E/φ + k): lift pulled toward 1 when evidence is thin. */
   public double shrunkLift() {
     return adjusted.shrunkLift();
   }
@@ -326,8 +336,8 @@ public final class PairMeasures {
   }
 
   /**
-   * One-sided p-value of the size-adjusted association at the sketch's least favourable bounds:
-   * P(X ≥ n_ab.lower) for X ~ Poisson(λ·E.upper), λ ~ Gamma with mean 1 and coefficient of variation
+   * One-sided p-value of the size-adjusted association at the sketch's least favourable bounds, in effective baskets
+   * (φ the pair count's dispersion): P(X ≥ n_ab.lower/φ) for X ~ Poisson(λ·E.upper/φ), λ ~ Gamma with mean 1 and coefficient of variation
    * {@link #NULL_MODEL_TOLERANCE} (a negative binomial). Small when the pair occurs together more often than the
    * null model allows even at the bounds and its own tolerance; the offer lists pass it through a multiplicity
    * step.

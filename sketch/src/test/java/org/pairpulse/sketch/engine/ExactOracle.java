@@ -120,4 +120,47 @@ final class ExactOracle {
       return sum;
     };
   }
+
+  /**
+   * The pair count's dispersion φ = Σ_c d_c·E_c / Σ_c E_c, d_c = Σ w·k(k − 1)·s / Σ w·k(k − 1) over each class's
+   * baskets, s = ⌈k(k − 1)/2 / cap⌉ when a basket's pairs exceed the cap {@code maxPairsPerBasket} (else 1), E_c the
+   * class terms of {@link #stratifiedExpected}: recomputed from every basket, returns a function of the pair.
+   */
+  java.util.function.ToDoubleBiFunction<String, String> pairCountDispersion(HorizonSpec h,
+      org.pairpulse.sketch.stats.SizeClasses classes, int maxPairsPerBasket) {
+    int count = classes.count();
+    double[] n = new double[count];
+    double[] slots = new double[count];
+    double[] pairSlots = new double[count];
+    double[] steppedSlots = new double[count];
+    Map<String, double[]> byItem = new HashMap<>();
+    for (Basket basket : baskets) {
+      double w = weight(h, basket.eventMillis);
+      int k = basket.items.size();
+      long pairs = (long) k * (k - 1) / 2;
+      long step = pairs <= maxPairsPerBasket ? 1 : (pairs + maxPairsPerBasket - 1) / maxPairsPerBasket;
+      int c = classes.classOf(k);
+      n[c] += w;
+      slots[c] += w * k;
+      pairSlots[c] += w * k * (k - 1.0);
+      steppedSlots[c] += w * k * (k - 1.0) * step;
+      for (String item : basket.items) {
+        byItem.computeIfAbsent(item, key -> new double[count])[c] += w;
+      }
+    }
+    return (a, b) -> {
+      double[] na = byItem.getOrDefault(a, new double[count]);
+      double[] nb = byItem.getOrDefault(b, new double[count]);
+      double expected = 0;
+      double stepped = 0;
+      for (int c = 0; c < count; c++) {
+        if (n[c] > 0 && pairSlots[c] > 0 && !classes.pairless(c)) {
+          double term = n[c] * pairSlots[c] / (slots[c] * slots[c]) * na[c] * nb[c] / n[c];
+          expected += term;
+          stepped += term * steppedSlots[c] / pairSlots[c];
+        }
+      }
+      return expected > 0 ? Math.max(1.0, stepped / expected) : 1.0;
+    };
+  }
 }

@@ -18,6 +18,7 @@ import org.junit.jupiter.api.Test;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.snapshot.SnapshotFormatException;
 import org.pairpulse.sketch.stats.Estimate;
+import org.pairpulse.sketch.stats.SizeClasses;
 import org.pairpulse.sketch.table.PairStats;
 
 /** Snapshot round trip, merge of disjoint streams, corruption, version mismatch, a stored fixture. */
@@ -70,8 +71,8 @@ class SnapshotTest {
     assertMessage(new byte[0], "truncated");
 
     byte[] newer = good.clone();
-    newer[Snapshots.OFFSET_VERSION] = 3;
-    assertMessage(newer, "version 3 is not supported");
+    newer[Snapshots.OFFSET_VERSION] = Snapshots.FORMAT_VERSION + 1;
+    assertMessage(newer, "version " + (Snapshots.FORMAT_VERSION + 1) + " is not supported");
 
     byte[] foreign = good.clone();
     foreign[0] = 'X';
@@ -88,7 +89,7 @@ class SnapshotTest {
     return EngineConfig.builder()
         .horizons(List.of(HorizonSpec.decay("recent", Duration.ofHours(1)), HorizonSpec.window("day", Duration.ofHours(2), 2)))
         .trackingHorizon("recent").itemError(0.1, 0.2).pairError(0.1, 0.2).decayPairEpsilon(0.1)
-        .trackedPairCapacity(8).trackedItemCapacity(8).build();
+        .trackedPairCapacity(8).trackedItemCapacity(8).sizeClasses(SizeClasses.of(1, 2, 3, 4, 6)).build();
   }
 
   static PairEngine fixtureEngine() {
@@ -102,22 +103,32 @@ class SnapshotTest {
   }
 
   /**
-   * Format compatibility: the version-2 snapshot stored in the repository must still read, with the same answers and
-   * the same bytes; the version-1 one (before basket-size classes) must still read, with the same counts, under the
+   * Format compatibility: the version-3 snapshot stored in the repository must still read, with the same answers and
+   * the same bytes; the version-2 one (before the pair-cap steps per size class) must still read, with the same counts
+   * and Q_c = K_c (no basket of the fixture is above the pair cap, so that is also the truth); the version-1 one (before basket-size classes) must still read, with the same counts, under the
    * default size classes, its baskets unclassed (so its horizons publish textbook measures).
    */
   @Test
   void storedFixturesStillRead() throws IOException {
-    byte[] stored = fixture("fixture-v2.ppsn");
+    byte[] stored = fixture("fixture-v3.ppsn");
     PairEngine fromFile = Snapshots.read(stored);
     PairEngine fresh = fixtureEngine();
     assertEquals(fresh.basketCount("day"), fromFile.basketCount("day"));
     assertEquals(fresh.pairCount("tea", "scone", "day"), fromFile.pairCount("tea", "scone", "day"));
     assertEquals(fresh.pairCount("tea", "scone", "recent"), fromFile.pairCount("tea", "scone", "recent"));
-    assertArrayEquals(stored, Snapshots.write(fresh), "format v2 changed: bump FORMAT_VERSION and keep a reader for v2");
+    assertArrayEquals(stored, Snapshots.write(fresh), "format v3 changed: bump FORMAT_VERSION and keep a reader for v3");
+
+    PairEngine fromVersionTwo = Snapshots.read(fixture("fixture-v2.ppsn"));
+    assertEquals(fixtureConfig(), fromVersionTwo.config());
+    assertEquals(fresh.pairCount("tea", "scone", "day"), fromVersionTwo.pairCount("tea", "scone", "day"));
+    for (HorizonState state : fromVersionTwo.horizons) {
+      assertArrayEquals(state.classPairSlots, state.classWeightedSlots, "format 2 reads with Q_c = K_c");
+    }
+    assertArrayEquals(stored, Snapshots.write(fromVersionTwo), "a version-2 state writes as today's");
 
     PairEngine fromVersionOne = Snapshots.read(fixture("fixture-v1.ppsn"));
-    assertEquals(fixtureConfig(), fromVersionOne.config());
+    assertEquals(fixtureConfig().toBuilder().sizeClasses(SizeClasses.defaults()).build(), fromVersionOne.config(),
+        "format 1 reads under the default classes");
     assertEquals(fresh.basketCount("day"), fromVersionOne.basketCount("day"));
     assertEquals(fresh.pairCount("tea", "scone", "day"), fromVersionOne.pairCount("tea", "scone", "day"));
     assertEquals(fresh.itemCount("tea", "recent"), fromVersionOne.itemCount("tea", "recent"));

@@ -4,6 +4,8 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.time.Duration;
+import java.util.ArrayList;
+import java.util.List;
 import org.junit.jupiter.api.Test;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Estimate;
@@ -104,6 +106,25 @@ class StratifiedExpectationTest {
       double allowed = h.paneCount() * Math.exp(-4) * 2 + 0.01;
       assertTrue(checked > 50, h.name());
       assertTrue(outside <= allowed * checked, h.name() + ": " + outside + " of " + checked + " outside their bounds");
+    }
+    // the bounds' O(classes) search against trying every pair of classes, for tracked items (part of the count of
+    // unknown class) and untracked ones (all of it), every horizon
+    for (HorizonState state : engine.horizons) {
+      SizeStrata strata = SizeStrata.of(engine, state);
+      List<SizeStrata.ItemClasses> items = new ArrayList<>();
+      for (int slot = 0; slot < engine.items.size(); slot++) {
+        Estimate count = Counts.tracked(engine, engine.items, slot, state);
+        items.add(strata.item(Counts.knownByClass(engine, state, slot), count));
+        items.add(strata.untracked(count));
+      }
+      for (SizeStrata.ItemClasses a : items) {
+        for (SizeStrata.ItemClasses b : items) {
+          Estimate fast = strata.expected(a, b).expected();
+          double[] slow = strata.boundsByEnumeration(a, b);
+          assertEquals(Math.max(0, Math.min(slow[0], fast.value())), fast.lower(), 1e-9 * (1 + fast.upper()));
+          assertEquals(Math.max(slow[1], fast.value()), fast.upper(), 1e-9 * (1 + fast.upper()));
+        }
+      }
     }
   }
 }

@@ -105,6 +105,35 @@ class SizeAdjustedMeasuresTest {
     assertTrue(below.signedRootGSquared() < 0);
   }
 
+  /**
+   * A weighted pair count of dispersion φ weighs as n_ab/φ baskets: G² and the shrunk lift are those of n_ab/φ against
+   * E/φ, the p-value that of n_ab/φ against E/φ (the null model's own tolerance stays relative), the interval's
+   * variance gains (φ − 1)/n_ab; lift, leverage and conviction do not move, nor do the textbook measures.
+   */
+  @Test
+  void aDispersedPairCountWeighsAsFewerBaskets() {
+    double dispersion = 4;
+    PairMeasures plain = PairMeasures.of(PairCounts.exact(1_000, 100, 200, 40).withStratifiedExpected(Estimate.exact(25)));
+    PairMeasures dispersed = PairMeasures.of(PairCounts.exact(1_000, 100, 200, 40)
+        .withStratifiedExpected(Estimate.exact(25), dispersion));
+    assertEquals(plain.lift(), dispersed.lift(), 0.0);
+    assertEquals(plain.leverage(), dispersed.leverage(), 0.0);
+    assertEquals(plain.convictionAB(), dispersed.convictionAB(), 0.0);
+    assertEquals(plain.gSquared() / dispersion, dispersed.gSquared(), 1e-12);
+    assertEquals(2 * (10 * Math.log(40.0 / 25) - 3.75), dispersed.gSquared(), 1e-12, "G² of 10 against 6.25");
+    assertEquals((10 + 10) / (6.25 + 10), dispersed.shrunkLift(), 1e-12);
+    assertEquals(PairMeasures.gammaPoissonUpperTail(10, 6.25, PairMeasures.NULL_MODEL_TOLERANCE),
+        dispersed.associationPValue(), 1e-15);
+    assertTrue(dispersed.associationPValue() > 10 * plain.associationPValue(), "less evidence: a larger p-value");
+    double halfWidth = 1.959964 * Math.sqrt(1.0 / 40 - 1.0 / 100 - 1.0 / 200 + (2 * 1.6 - 1) / 1000 + 3.0 / 40);
+    assertEquals(1.6 * Math.exp(-halfWidth), dispersed.liftLower(), 1e-5);
+    assertEquals(1.6 * Math.exp(halfWidth), dispersed.liftUpper(), 1e-5);
+    assertEquals(plain.liftLowerUnadjusted(), dispersed.liftLowerUnadjusted(), 0.0);
+    assertEquals(plain.gSquaredUnadjusted(), dispersed.gSquaredUnadjusted(), 0.0);
+    assertThrows(IllegalArgumentException.class,
+        () -> PairCounts.exact(1_000, 100, 200, 40).withStratifiedExpected(Estimate.exact(25), 0.5));
+  }
+
   @Test
   void sketchBoundsOfTheExpectedCountWidenTheInterval() {
     PairCounts exact = PairCounts.exact(1_000, 100, 200, 40).withStratifiedExpected(Estimate.exact(25));
@@ -153,14 +182,19 @@ class SizeAdjustedMeasuresTest {
   @Test
   void sizeClassesParseLabelAndClassify() {
     SizeClasses defaults = SizeClasses.defaults();
-    assertEquals("1,2,3,4-5,6+", defaults.toString());
-    assertEquals(defaults, SizeClasses.parse("1,2,3,4-5,6+"));
-    assertEquals(defaults, SizeClasses.parse("1, 2, 3, 4, 6"));
-    int[] expectedClass = {-1, 0, 1, 2, 3, 3, 4, 4, 4};
+    assertEquals("1,2,3,4-5,6-9,10-15,16-24,25-39,40+", defaults.toString());
+    assertEquals(defaults, SizeClasses.parse("1,2,3,4-5,6-9,10-15,16-24,25-39,40+"));
+    assertEquals(defaults, SizeClasses.parse("1, 2, 3, 4, 6, 10, 16, 25, 40"));
+    int[] expectedClass = {-1, 0, 1, 2, 3, 3, 4, 4, 4, 4, 5};
     for (int size = 1; size < expectedClass.length; size++) {
       assertEquals(expectedClass[size], defaults.classOf(size), "size " + size);
     }
-    assertEquals(4, defaults.classOf(1_000));
+    assertEquals(7, defaults.classOf(39));
+    assertEquals(8, defaults.classOf(40));
+    assertEquals(8, defaults.classOf(1_000));
+    SizeClasses coarse = SizeClasses.parse("1,2,3,4-5,6+");
+    assertEquals(SizeClasses.of(1, 2, 3, 4, 6), coarse);
+    assertEquals(4, coarse.classOf(1_000));
     assertTrue(defaults.pairless(0));
     assertFalse(defaults.pairless(1));
     assertFalse(SizeClasses.single().pairless(0));
