@@ -15,7 +15,7 @@ import picocli.CommandLine.Spec;
 @Command(name = "bench", mixinStandardHelpOptions = true,
     description = "Runs a benchmark and prints its progress and a final RESULT line.",
     subcommands = {SketchBenchCommand.class, IngestBench.class, ServeBench.class, ShiftBenchCommand.class,
-        DriftBenchCommand.class, RulesBenchCommand.class},
+        DriftBenchCommand.class, RulesBenchCommand.class, org.pairpulse.ops.group.GroupBenchCommand.class},
     commandListHeading = "%nBenchmarks:%n")
 final class BenchCommand implements Callable<Integer> {
   @Spec

@@ -325,8 +325,10 @@ public final class ServeServer implements AutoCloseable {
     Map<String, DriftMonitor.AlertState> states = state.map(AlertStates::decode).orElse(Map.of());
     pendingAlertStates.clear();
     for (SegmentState segment : segments.values()) {
+      // a segment without published state: no alert of it was ever published, so no track carries over, but the
+      // stream's start as this instance saw it stays (the decays' ages)
       segment.drift().restore(states.getOrDefault(segment.name(),
-          new DriftMonitor.AlertState(Long.MIN_VALUE, List.of())));
+          new DriftMonitor.AlertState(segment.drift().alertState().firstWatermarkMillis(), List.of())));
     }
     states.forEach((name, s) -> {
       if (!segments.containsKey(name)) {
@@ -381,6 +383,11 @@ public final class ServeServer implements AutoCloseable {
   /** Waits until alert events so far were handed to every sink. */
   public void drainAlerts() throws InterruptedException {
     dispatcher.drain();
+  }
+
+  /** True while this instance raises the alerts (always outside group mode). */
+  public boolean alertLeader() {
+    return group.alertLeader();
   }
 
   /** The bound port (after {@link #start()}). */

@@ -167,6 +167,8 @@ public final class Ingestor implements AutoCloseable {
   private volatile boolean running;
   private volatile Throwable failure;
   private volatile Set<TopicPartition> assignment = Set.of();
+  /** Told of every basket a front lets through, before it is counted (poll thread); null: none. */
+  private volatile org.pairpulse.ingest.front.BasketSink tap;
   /** The coverage of the newest published table (group view only). */
   private volatile GroupCoverage coverage;
   /** Durations of the newest refreshes (merge and tables), in ms, oldest first; at most 1,024. */
@@ -221,6 +223,16 @@ public final class Ingestor implements AutoCloseable {
     if (t != null) {
       throw new IllegalStateException("ingest failed to start: " + t.getMessage(), t);
     }
+    return this;
+  }
+
+  /**
+   * Hands every basket the partitions' fronts let through to {@code sink} too, on the poll thread, before the engine
+   * counts it (the group's live evaluation reads the ingest path this way). Call before {@link #start()}; the sink
+   * must be quick (it holds up the poll loop).
+   */
+  public Ingestor basketTap(org.pairpulse.ingest.front.BasketSink sink) {
+    this.tap = sink;
     return this;
   }
 
@@ -504,6 +516,7 @@ public final class Ingestor implements AutoCloseable {
       }
       List<ConsumerRecord<byte[], byte[]>> list = records.records(tp);
       BasketBatch batch = new BasketBatch(list.size(), segmentSettings.enabled());
+      org.pairpulse.ingest.front.BasketSink into = tap == null ? batch : tee(batch, tap);
       for (ConsumerRecord<byte[], byte[]> record : list) {
         BasketEvent event;
         try {
@@ -512,7 +525,7 @@ public final class Ingestor implements AutoCloseable {
           deadLetters.send(record, e.reason(), e.detail());
           continue;
         }
-        switch (slot.front.accept(event, batch)) {
+        switch (slot.front.accept(event, into)) {
           case ACCEPTED:
             break;
           case DUPLICATE:
@@ -537,6 +550,14 @@ public final class Ingestor implements AutoCloseable {
       basketsSinceCheckpoint += batch.size();
       lanes.apply(tp, batch);
     }
+  }
+
+  /** {@code batch} first, then {@code also}, with the basket's attributes for the batch. */
+  private static org.pairpulse.ingest.front.BasketSink tee(BasketBatch batch, org.pairpulse.ingest.front.BasketSink also) {
+    return org.pairpulse.ingest.front.BasketSink.withAttributes((id, time, items, attributes) -> {
+      batch.basket(id, time, items, attributes);
+      also.basket(id, time, items);
+    });
   }
 
   private void tick(long now) {
