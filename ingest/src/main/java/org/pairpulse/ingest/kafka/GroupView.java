@@ -71,6 +71,7 @@ public final class GroupView implements AutoCloseable {
   private final Consumer<byte[], byte[]> reader;
   private final Admin admin;
   private final LongSupplier wallClock;
+  private final java.util.function.Supplier<Set<TopicPartition>> owned;
   private final Thread thread;
   private final Map<TopicPartition, Latest> latest = new ConcurrentHashMap<>();
   private final Map<TopicPartition, Long> logEnds = new ConcurrentHashMap<>();
@@ -103,9 +104,12 @@ public final class GroupView implements AutoCloseable {
    * @param reader a {@code read_committed} consumer without a group (closed with the view)
    * @param admin an admin client (not closed by the view)
    * @param staleAfterMillis how long a remote partition's checkpoint may lag its records before it counts as stale
+   * @param owned the partitions counted here now: a new checkpoint of another partition is decoded at once, on this
+   *     view's thread (an owned one only if it stops being owned)
    */
   GroupView(String stateTopic, String group, List<String> topics, EngineConfig engineConfig, long staleAfterMillis,
-      Consumer<byte[], byte[]> reader, Admin admin, LongSupplier wallClock) {
+      Consumer<byte[], byte[]> reader, Admin admin, LongSupplier wallClock,
+      java.util.function.Supplier<Set<TopicPartition>> owned) {
     this.stateTopic = stateTopic;
     this.group = group;
     this.topics = List.copyOf(topics);
@@ -114,6 +118,7 @@ public final class GroupView implements AutoCloseable {
     this.reader = reader;
     this.admin = admin;
     this.wallClock = wallClock;
+    this.owned = owned;
     this.thread = new Thread(this::run, "pairpulse-group-view");
     this.thread.setDaemon(true);
   }
@@ -263,7 +268,16 @@ public final class GroupView implements AutoCloseable {
       LOG.warn("checkpoint {} of {} on the state topic is unreadable ({}); skipped", id, tp, e.toString());
       return;
     }
-    latest.put(tp, new Latest(checkpoint));
+    Latest entry = new Latest(checkpoint);
+    if (!owned.get().contains(tp)) {
+      try {
+        entry.decoded(); // here rather than on the refresh's thread
+      } catch (RuntimeException e) {
+        LOG.warn("checkpoint {} of {} on the state topic cannot be decoded ({}); skipped", id, tp, e.toString());
+        return;
+      }
+    }
+    latest.put(tp, entry);
     publicationBytes += chunks.totalBytes();
     publicationsRead++;
   }

@@ -448,7 +448,7 @@ public final class Ingestor implements AutoCloseable {
       viewReader.put(ConsumerConfig.CLIENT_ID_CONFIG, "pairpulse-" + instanceId + "-view");
       groupView = new GroupView(config.getString(IngestConfig.STATE_TOPIC), config.groupId(), config.topics(),
           engineConfig, stale > 0 ? stale : 3 * checkpointIntervalMs, new KafkaConsumer<>(viewReader), viewAdmin,
-          clock::millis).start();
+          clock::millis, this::assignment).start();
     }
     consumer = new KafkaConsumer<>(consumerProps());
     consumer.subscribe(config.topics(), new Rebalance());

@@ -85,7 +85,7 @@ public final class GroupBenchCommand implements Callable<Integer> {
         + " every %d ms%n", baskets, steps, PARTITIONS, publishMillis, refreshMillis);
     out.flush();
     try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder().property("group.min.session.timeout.ms", "1000")
-        .logDir(dir.resolve("broker")).build().start();
+        .build().start();
         KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(Map.of(
             ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(), ProducerConfig.LINGER_MS_CONFIG, 5),
             new ByteArraySerializer(), new ByteArraySerializer())) {
