@@ -305,7 +305,7 @@ public final class GroupView implements AutoCloseable {
   public SortedMap<TopicPartition, PartitionEngines> remote(Set<TopicPartition> owned) {
     SortedMap<TopicPartition, PartitionEngines> out = new TreeMap<>(EngineWorker.PARTITION_ORDER);
     latest.forEach((tp, entry) -> {
-      if (!owned.contains(tp)) {
+      if (!owned.contains(tp) && topics.contains(tp.topic())) { // not a partition of a topic read before, not now
         PartitionEngines engines = entry.decoded();
         if (engines.all().config().equals(engineConfig)) {
           out.put(tp, engines);
