@@ -95,6 +95,19 @@
     $('table-meta').textContent = s.ready
       ? 'table v' + t.version + ' · refreshed ' + age(t.ageMillis) + ' · data as of ' + when(t.watermarkMillis)
       : 'waiting for the first pair table…';
+    var g = s.group;
+    var groupMeta = $('group-meta');
+    if (g) {
+      groupMeta.classList.remove('hidden');
+      groupMeta.classList.toggle('partial', g.partial);
+      groupMeta.textContent = (g.partial ? 'partial: ' : 'group: ') + g.merged + ' of ' + g.partitions + ' partitions' +
+        (g.oldestContributionAgeMillis > 0 ? ' · oldest ' + age(g.oldestContributionAgeMillis) : '') +
+        (g.alertLeader ? ' · alert leader' : '');
+      groupMeta.title = 'live ' + g.live + ', from other instances ' + g.remote + ', empty ' + g.empty +
+        (g.missing.length ? ', missing ' + g.missing.join(' ') : '') + (g.stale.length ? ', stale ' + g.stale.join(' ') : '');
+    } else {
+      groupMeta.classList.add('hidden');
+    }
     var ing = s.ingest;
     $('ingest-rate').textContent = count(ing.basketsPerSecond) + ' baskets/s';
     var ingestState = el('span', 'state ' + ing.state, ing.state);

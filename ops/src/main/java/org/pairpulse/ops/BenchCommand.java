@@ -16,7 +16,8 @@ import picocli.CommandLine.Spec;
 @Command(name = "bench", mixinStandardHelpOptions = true,
     description = "Runs a benchmark and prints its progress and a final RESULT line.",
     subcommands = {SketchBenchCommand.class, IngestBench.class, ServeBench.class, ShiftBenchCommand.class,
-        DriftBenchCommand.class, RulesBenchCommand.class, ReplayBenchCommand.class},
+        DriftBenchCommand.class, RulesBenchCommand.class, ReplayBenchCommand.class,
+        org.pairpulse.ops.group.GroupBenchCommand.class},
     commandListHeading = "%nBenchmarks:%n")
 final class BenchCommand implements Callable<Integer> {
   @Spec

@@ -11,6 +11,7 @@ import java.util.LinkedHashSet;
 import java.util.List;
 import java.util.Map;
 import java.util.Objects;
+import java.util.Optional;
 import java.util.Set;
 import java.util.concurrent.ConcurrentSkipListMap;
 import java.util.concurrent.Executors;
@@ -19,6 +20,8 @@ import java.util.concurrent.TimeUnit;
 import java.util.function.Supplier;
 import java.util.regex.Pattern;
 import org.pairpulse.serve.alerts.AlertDispatcher;
+import org.pairpulse.serve.alerts.AlertLeadership;
+import org.pairpulse.serve.alerts.AlertStates;
 import org.pairpulse.serve.alerts.AlertHistory;
 import org.pairpulse.serve.alerts.AlertSink;
 import org.pairpulse.serve.alerts.KafkaAlertSink;
@@ -115,6 +118,13 @@ public final class ServeServer implements AutoCloseable {
   private final ApiServer api;
   private final ScheduledExecutorService watcher;
   private final Suggester suggester;
+  private final GroupStatus group;
+  /** Group mode: who publishes the group's alerts (null: this instance publishes its own). */
+  private final AlertLeadership leadership;
+  /** Watcher only: whether this instance led at the last table (its machines hold the group's alert state). */
+  private boolean leadingNow;
+  /** Watcher only: alert states taken over for segments not served yet. */
+  private final Map<String, DriftMonitor.AlertState> pendingAlertStates = new java.util.HashMap<>();
   private int port = -1;
 
   private ServeServer(Builder b) {
@@ -146,9 +156,12 @@ public final class ServeServer implements AutoCloseable {
           registry));
     }
     this.dispatcher = new AlertDispatcher(history, sinks, registry);
+    this.group = b.group;
+    this.leadership = b.leadership;
+    registerGroupMeters();
     this.suggester = new Suggester(config.intValue(ServeConfig.MAX_NEIGHBOURS));
     this.api = new ApiServer(new ApiServer.Deps(config, segments, floor, driftSettings, suggester, meters, registry,
-        ingest, sketch, b.evaluation, history, b.wallClock));
+        ingest, sketch, b.evaluation, history, b.wallClock, b.group));
     this.watcher = Executors.newSingleThreadScheduledExecutor(r -> {
       Thread t = new Thread(r, "pairpulse-serve-watch");
       t.setDaemon(true);
@@ -168,8 +181,12 @@ public final class ServeServer implements AutoCloseable {
     TrendHistory trend = new TrendHistory(config.intValue(ServeConfig.TREND_POINTS),
         config.intValue(ServeConfig.TREND_PAIRS), config.intValue(ServeConfig.TREND_ITEMS),
         config.intValue(ServeConfig.TREND_PINNED));
-    SegmentState state = Segments.create(name, source, new DriftMonitor(driftSettings, name), trend,
-        FlooredTable.of(PairTable.empty(), floor));
+    DriftMonitor drift = new DriftMonitor(driftSettings, name);
+    DriftMonitor.AlertState taken = pendingAlertStates.remove(name);
+    if (taken != null) {
+      drift.restore(taken);
+    }
+    SegmentState state = Segments.create(name, source, drift, trend, FlooredTable.of(PairTable.empty(), floor));
     Gauge.builder("pairpulse.pair.table.age", state, s -> ageSeconds(s, wallClock)).baseUnit("seconds")
         .tag("segment", name).description("Time since the served pair table was published").register(registry);
     Gauge.builder("pairpulse.pair.table.version", state, s -> s.view().version()).tag("segment", name)
@@ -254,6 +271,8 @@ public final class ServeServer implements AutoCloseable {
    */
   public synchronized void catchUp() {
     discover();
+    boolean leading = leadership == null || leadOrFollow();
+    List<AlertEvent> round = new ArrayList<>();
     for (SegmentState segment : segments.values()) {
       PairTable table = segment.source().current();
       if (table.version() == Segments.processedVersion(segment)) {
@@ -266,11 +285,90 @@ public final class ServeServer implements AutoCloseable {
         long now = alertClock != null ? alertClock.millis() : table.watermarkMillis();
         List<AlertEvent> events = segment.drift().observe(view, now);
         segment.trend().record(view, drifting(segment.drift().report()));
-        dispatcher.dispatch(events);
+        round.addAll(events);
       }
       Segments.processed(segment, table.version());
     }
+    if (leadership == null) {
+      dispatcher.dispatch(round);
+    } else if (leading && !round.isEmpty()) {
+      if (leadership.publish(round, AlertStates.encode(alertStates()))) {
+        dispatcher.dispatch(round); // history, webhook and extra sinks; the alerts topic had them in the publication
+      } else {
+        LOG.warn("{} alert events not published: another instance leads the group's alerts now", round.size());
+        leadingNow = false;
+      }
+    }
     meters.discover();
+  }
+
+  /**
+   * Group mode: whether this instance publishes this round's alerts. On becoming the leader its alert machines take
+   * the state the previous leader published last (so that no alert repeats or goes missing); a follower's machines
+   * run on its own tables (the dashboard's shifting pairs), their events unpublished.
+   */
+  private boolean leadOrFollow() {
+    if (!leadership.leading()) {
+      leadingNow = false;
+      return false;
+    }
+    if (leadingNow) {
+      return true;
+    }
+    Optional<byte[]> state;
+    try {
+      state = leadership.takeOver();
+    } catch (RuntimeException e) {
+      LOG.warn("cannot take over the group's alerts now ({}); trying again at the next table", e.toString());
+      return false;
+    }
+    Map<String, DriftMonitor.AlertState> states = state.map(AlertStates::decode).orElse(Map.of());
+    pendingAlertStates.clear();
+    for (SegmentState segment : segments.values()) {
+      // a segment without published state: no alert of it was ever published, so no track carries over, but the
+      // stream's start as this instance saw it stays (the decays' ages)
+      segment.drift().restore(states.getOrDefault(segment.name(),
+          new DriftMonitor.AlertState(segment.drift().alertState().firstWatermarkMillis(), List.of())));
+    }
+    states.forEach((name, s) -> {
+      if (!segments.containsKey(name)) {
+        pendingAlertStates.put(name, s);
+      }
+    });
+    LOG.info("leading the group's alerts from now on ({} segments' alert state taken over)", states.size());
+    leadingNow = true;
+    return true;
+  }
+
+  /** Every served segment's alert state, by name. */
+  private Map<String, DriftMonitor.AlertState> alertStates() {
+    Map<String, DriftMonitor.AlertState> out = new java.util.TreeMap<>(pendingAlertStates);
+    segments.forEach((name, segment) -> out.put(name, segment.drift().alertState()));
+    return out;
+  }
+
+  /** The group's coverage meters (group mode only). */
+  private void registerGroupMeters() {
+    if (group.coverage().isEmpty() && leadership == null) {
+      return;
+    }
+    for (String state : List.of("live", "remote", "empty", "missing", "stale")) {
+      Gauge.builder("pairpulse.group.partitions", group, g -> g.coverage().map(c -> switch (state) {
+        case "live" -> c.live();
+        case "remote" -> c.remote();
+        case "empty" -> c.empty();
+        case "missing" -> c.missing().size();
+        default -> c.stale().size();
+      }).orElse(0).doubleValue()).tag("state", state)
+          .description("Input partitions of the group by how the served table holds them").register(registry);
+    }
+    Gauge.builder("pairpulse.group.contribution.age", group,
+        g -> g.coverage().map(c -> c.oldestContributionAgeMillis() / 1000.0).orElse(0.0)).baseUnit("seconds")
+        .description("Age of the oldest merged partition state that lags its records").register(registry);
+    Gauge.builder("pairpulse.group.partial", group, g -> g.coverage().map(c -> c.partial() ? 1.0 : 0.0).orElse(0.0))
+        .description("1 when a partition's state is missing from the served table or stale").register(registry);
+    Gauge.builder("pairpulse.group.alert.leader", group, g -> g.alertLeader() ? 1.0 : 0.0)
+        .description("1 on the instance that raises the group's alerts").register(registry);
   }
 
   /** Pairs the trend records because they drift: the 20 strongest of each kind. */
@@ -285,6 +383,11 @@ public final class ServeServer implements AutoCloseable {
   /** Waits until alert events so far were handed to every sink. */
   public void drainAlerts() throws InterruptedException {
     dispatcher.drain();
+  }
+
+  /** True while this instance raises the alerts (always outside group mode). */
+  public boolean alertLeader() {
+    return group.alertLeader();
   }
 
   /** The bound port (after {@link #start()}). */
@@ -332,6 +435,9 @@ public final class ServeServer implements AutoCloseable {
   @Override
   public void close() {
     watcher.shutdownNow();
+    if (leadership != null) {
+      leadership.close();
+    }
     api.close();
     dispatcher.close();
   }
@@ -349,6 +455,8 @@ public final class ServeServer implements AutoCloseable {
     private EventClock wallClock = EventClock.system();
     private EventClock alertClock;
     private final List<AlertSink> sinks = new ArrayList<>();
+    private GroupStatus group = GroupStatus.none();
+    private AlertLeadership leadership;
 
     private Builder() {}
 
@@ -413,6 +521,22 @@ public final class ServeServer implements AutoCloseable {
     /** The clock of alert dwell and cooldown; default event time (the observed table's watermark). */
     public Builder alertClock(EventClock value) {
       this.alertClock = value;
+      return this;
+    }
+
+    /** The group's coverage and alert leadership as the status, metrics and dashboard show them (group mode). */
+    public Builder group(GroupStatus value) {
+      this.group = Objects.requireNonNull(value);
+      return this;
+    }
+
+    /**
+     * Group mode: only the leader publishes alert events, with its alert state, through {@code value} (which
+     * carries them to the alerts topic); the sinks get them after the publication. Null: every event goes to the
+     * sinks (one instance).
+     */
+    public Builder alertLeadership(AlertLeadership value) {
+      this.leadership = value;
       return this;
     }
 

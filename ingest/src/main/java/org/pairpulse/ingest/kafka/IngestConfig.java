@@ -49,6 +49,8 @@ public final class IngestConfig extends AbstractConfig {
   public static final String ENGINE_QUEUE_BATCHES = "engine.queue.batches";
   public static final String ENGINE_THREADS = "engine.threads";
   public static final String REFRESH_INTERVAL_MS = "refresh.interval.ms";
+  public static final String GROUP_VIEW = "group.view";
+  public static final String GROUP_VIEW_STALE_MS = "group.view.stale.ms";
   public static final String ALLOWED_LATENESS_MS = "allowed.lateness.ms";
   public static final String DEDUPE_HORIZON_MS = "dedupe.horizon.ms";
   public static final String DEDUPE_MAX_IDS = "dedupe.max.ids";
@@ -124,7 +126,13 @@ public final class IngestConfig extends AbstractConfig {
           "Engine threads (lanes); partition p is counted by lane p mod engine.threads, each lane with its own queue "
               + "of engine.queue.batches. Ignored (one lane) when engine.thread=false.")
       .define(REFRESH_INTERVAL_MS, Type.LONG, 2_000L, Range.atLeast(0), Importance.MEDIUM,
-          "Publish a pair table of this instance's partitions this often; 0: never.")
+          "Publish a pair table this often (the group view's in group mode, else this instance's partitions'); 0: never.")
+      .define(GROUP_VIEW, Type.BOOLEAN, true, Importance.MEDIUM,
+          "Group mode only: publish the whole group's pair table, this instance's partitions merged with the others' "
+              + "newest checkpoints read from the state topic; false: this instance's partitions only.")
+      .define(GROUP_VIEW_STALE_MS, Type.LONG, 0L, Range.atLeast(0), Importance.LOW,
+          "A remote partition whose records go beyond a checkpoint older than this marks the group view partial; "
+              + "0: three times checkpoint.interval.ms.")
       .define(ALLOWED_LATENESS_MS, Type.LONG, HOUR, Range.atLeast(0), Importance.HIGH,
           "Events older than their partition's newest event time minus this are dead letters (reason late).")
       .define(DEDUPE_HORIZON_MS, Type.LONG, HOUR, Range.atLeast(0), Importance.MEDIUM,

@@ -147,6 +147,9 @@ public final class Ingestor implements AutoCloseable {
   private DeadLetters deadLetters;
   private StateTopicStore stateStore;
   private LocalDirectoryStore localStore;
+  /** Group mode with {@code group.view}: the other partitions' newest checkpoints (null otherwise). */
+  private GroupView groupView;
+  private Admin viewAdmin;
   private final Map<TopicPartition, Slot> slots = new HashMap<>();
   private long basketsSinceCheckpoint;
   private long lastCheckpointMillis;
@@ -164,6 +167,12 @@ public final class Ingestor implements AutoCloseable {
   private volatile boolean running;
   private volatile Throwable failure;
   private volatile Set<TopicPartition> assignment = Set.of();
+  /** Told of every basket a front lets through, before it is counted (poll thread); null: none. */
+  private volatile org.pairpulse.ingest.front.BasketSink tap;
+  /** The coverage of the newest published table (group view only). */
+  private volatile GroupCoverage coverage;
+  /** Durations of the newest refreshes (merge and tables), in ms, oldest first; at most 1,024. */
+  private final java.util.Deque<Double> refreshMillis = new java.util.concurrent.ConcurrentLinkedDeque<>();
   /** Test hook: so many coming transaction commits fail as if a rebalance had made the group generation stale. */
   private final java.util.concurrent.atomic.AtomicInteger commitsToFail = new java.util.concurrent.atomic.AtomicInteger();
 
@@ -217,6 +226,16 @@ public final class Ingestor implements AutoCloseable {
     return this;
   }
 
+  /**
+   * Hands every basket the partitions' fronts let through to {@code sink} too, on the poll thread, before the engine
+   * counts it (the group's live evaluation reads the ingest path this way). Call before {@link #start()}; the sink
+   * must be quick (it holds up the poll loop).
+   */
+  public Ingestor basketTap(org.pairpulse.ingest.front.BasketSink sink) {
+    this.tap = sink;
+    return this;
+  }
+
   /** Closes the ingestor cleanly (checkpoint, commit, close) when the JVM is asked to stop (SIGTERM, Ctrl-C). */
   public Ingestor installShutdownHook() {
     Runtime.getRuntime().addShutdownHook(new Thread(this::close, "pairpulse-ingest-shutdown"));
@@ -243,6 +262,24 @@ public final class Ingestor implements AutoCloseable {
 
   public SegmentSettings segmentSettings() {
     return segmentSettings;
+  }
+
+  /**
+   * Which partitions the newest published table holds, in group mode with {@code group.view} (see
+   * {@link GroupView}); empty otherwise (the table holds this instance's partitions) and before the first refresh.
+   */
+  public Optional<GroupCoverage> coverage() {
+    return Optional.ofNullable(coverage);
+  }
+
+  /** True when the published tables are the group view (group mode with {@code group.view}). */
+  public boolean groupViewEnabled() {
+    return store == IngestConfig.Store.KAFKA && config.getBoolean(IngestConfig.GROUP_VIEW);
+  }
+
+  /** How long the newest refreshes took (merge of every partition and the tables), in ms, oldest first. */
+  public List<Double> recentRefreshMillis() {
+    return List.copyOf(refreshMillis);
   }
 
   public IngestMetrics metrics() {
@@ -404,6 +441,15 @@ public final class Ingestor implements AutoCloseable {
     } else if (store == IngestConfig.Store.LOCAL) {
       localStore = new LocalDirectoryStore(Path.of(config.getString(IngestConfig.CHECKPOINT_DIR)));
     }
+    if (groupViewEnabled()) {
+      long stale = config.getLong(IngestConfig.GROUP_VIEW_STALE_MS);
+      viewAdmin = Admin.create(adminProps());
+      Map<String, Object> viewReader = stateReaderProps();
+      viewReader.put(ConsumerConfig.CLIENT_ID_CONFIG, "pairpulse-" + instanceId + "-view");
+      groupView = new GroupView(config.getString(IngestConfig.STATE_TOPIC), config.groupId(), config.topics(),
+          engineConfig, stale > 0 ? stale : 3 * checkpointIntervalMs, new KafkaConsumer<>(viewReader), viewAdmin,
+          clock::millis, this::assignment).start();
+    }
     consumer = new KafkaConsumer<>(consumerProps());
     consumer.subscribe(config.topics(), new Rebalance());
     long now = clock.millis();
@@ -470,6 +516,7 @@ public final class Ingestor implements AutoCloseable {
       }
       List<ConsumerRecord<byte[], byte[]>> list = records.records(tp);
       BasketBatch batch = new BasketBatch(list.size(), segmentSettings.enabled());
+      org.pairpulse.ingest.front.BasketSink into = tap == null ? batch : tee(batch, tap);
       for (ConsumerRecord<byte[], byte[]> record : list) {
         BasketEvent event;
         try {
@@ -478,7 +525,7 @@ public final class Ingestor implements AutoCloseable {
           deadLetters.send(record, e.reason(), e.detail());
           continue;
         }
-        switch (slot.front.accept(event, batch)) {
+        switch (slot.front.accept(event, into)) {
           case ACCEPTED:
             break;
           case DUPLICATE:
@@ -505,6 +552,14 @@ public final class Ingestor implements AutoCloseable {
     }
   }
 
+  /** {@code batch} first, then {@code also}, with the basket's attributes for the batch. */
+  private static org.pairpulse.ingest.front.BasketSink tee(BasketBatch batch, org.pairpulse.ingest.front.BasketSink also) {
+    return org.pairpulse.ingest.front.BasketSink.withAttributes((id, time, items, attributes) -> {
+      batch.basket(id, time, items, attributes);
+      also.basket(id, time, items);
+    });
+  }
+
   private void tick(long now) {
     lastTickMillis = now;
     metrics.tick();
@@ -516,8 +571,25 @@ public final class Ingestor implements AutoCloseable {
   private void refresh(long now) {
     lastRefreshMillis = now;
     long startNanos = System.nanoTime();
-    pendingRefresh = lanes.refresh(++tableVersion, now).thenAccept(tables -> {
-      metrics.refreshed(System.nanoTime() - startNanos); // before the tables are visible: a reader sees both
+    CompletableFuture<Map<String, PairTable>> refreshed;
+    GroupCoverage covered;
+    if (groupView != null) {
+      Set<TopicPartition> owned = Set.copyOf(slots.keySet());
+      java.util.SortedMap<TopicPartition, org.pairpulse.ingest.worker.PartitionEngines> remote = groupView.remote(owned);
+      covered = groupView.coverage(owned, now);
+      refreshed = lanes.refresh(++tableVersion, now, remote);
+    } else {
+      covered = null;
+      refreshed = lanes.refresh(++tableVersion, now);
+    }
+    pendingRefresh = refreshed.thenAccept(tables -> {
+      long tookNanos = System.nanoTime() - startNanos;
+      metrics.refreshed(tookNanos); // before the tables are visible: a reader sees both
+      refreshMillis.addLast(tookNanos / 1e6);
+      while (refreshMillis.size() > 1024) {
+        refreshMillis.pollFirst();
+      }
+      coverage = covered;
       publish(tables);
     });
   }
@@ -836,6 +908,12 @@ public final class Ingestor implements AutoCloseable {
     }
     if (stateReader != null) {
       stateReader.close(CloseOptions.timeout(Duration.ofSeconds(5)));
+    }
+    if (groupView != null) {
+      groupView.close();
+    }
+    if (viewAdmin != null) {
+      viewAdmin.close(Duration.ofSeconds(5));
     }
     if (stateAdmin != null) {
       stateAdmin.close(Duration.ofSeconds(5));

@@ -158,6 +158,27 @@ public final class EngineLanes implements AutoCloseable {
     });
   }
 
+  /**
+   * The pair tables of the group view: every partition counted here and the {@code remote} ones, merged in partition
+   * order (see {@link EngineWorker#refresh(long, long, SortedMap)}). With several lanes, each lane hands copies of
+   * its partitions' engines to the last lane, which merges them all in partition order: the refresh then holds one
+   * more copy of this instance's state.
+   */
+  public CompletableFuture<Map<String, PairTable>> refresh(long version, long publishedAtMillis,
+      SortedMap<TopicPartition, PartitionEngines> remote) {
+    if (lanes.size() == 1) {
+      return lanes.get(0).refresh(version, publishedAtMillis, remote);
+    }
+    return LaneJoin.run(lanes, lane -> lane.withOwn(new java.util.TreeMap<>(EngineWorker.PARTITION_ORDER), true),
+        parts -> {
+          SortedMap<TopicPartition, PartitionEngines> all = new java.util.TreeMap<>(EngineWorker.PARTITION_ORDER);
+          all.putAll(remote);
+          parts.forEach(all::putAll);
+          return EngineMerges.tables(EngineMerges.mergeInOrder(config, segmentSettings.segmentEngine(config),
+              all.values()), version, publishedAtMillis);
+        });
+  }
+
   /** Runs {@code reader} on a copy of one partition's engine, on its lane (null if the partition has none). */
   public <T> CompletableFuture<T> read(TopicPartition partition, Function<PairEngine, T> reader) {
     return lane(partition).read(partition, reader);

@@ -46,6 +46,21 @@ final class EngineMerges {
   }
 
   /**
+   * The merge of whole partitions in the given order (the group view: partitions counted here and partitions read
+   * from other instances' checkpoints, in partition order, which is the order a single instance owning every
+   * partition merges them in, so that both publish the same table).
+   */
+  static Merged mergeInOrder(EngineConfig config, EngineConfig segmentConfig, Iterable<PartitionEngines> partitions) {
+    PairEngine all = new PairEngine(config);
+    java.util.List<Map<String, PairEngine>> segments = new java.util.ArrayList<>();
+    for (PartitionEngines partition : partitions) {
+      all.merge(partition.all());
+      segments.add(partition.segments());
+    }
+    return new Merged(all, mergeSegments(segmentConfig, segments));
+  }
+
+  /**
    * The pair tables of a refresh: segment {@value SegmentSettings#ALL} first, then every segment in name order. A
    * segment's merge is advanced to the watermark of {@value SegmentSettings#ALL} (it is modified), so that its
    * windows end where {@value SegmentSettings#ALL}'s do even when the segment's newest basket is older.

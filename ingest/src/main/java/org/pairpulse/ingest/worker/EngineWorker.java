@@ -262,6 +262,36 @@ public final class EngineWorker implements AutoCloseable {
     return call(() -> EngineMerges.tables(mergedNow(), version, publishedAtMillis));
   }
 
+  /**
+   * A refresh of the group view: this worker's partitions and {@code remote} ones (other instances' partitions;
+   * a partition held here wins over its remote copy) merged in partition order, then as {@link #refresh}.
+   */
+  public CompletableFuture<Map<String, PairTable>> refresh(long version, long publishedAtMillis,
+      SortedMap<TopicPartition, PartitionEngines> remote) {
+    return call(() -> EngineMerges.tables(EngineMerges.mergeInOrder(config, segmentSettings.segmentEngine(config),
+        withOwn(remote, false).values()), version, publishedAtMillis));
+  }
+
+  /**
+   * {@code remote} (may be empty) with this worker's partitions added in partition order, own partitions winning;
+   * with {@code copies}, the own engines are copies (another thread may read them). Worker thread only.
+   */
+  SortedMap<TopicPartition, PartitionEngines> withOwn(SortedMap<TopicPartition, PartitionEngines> remote,
+      boolean copies) {
+    SortedMap<TopicPartition, PartitionEngines> all = new TreeMap<>(PARTITION_ORDER);
+    all.putAll(remote);
+    engines.forEach((tp, own) -> {
+      SortedMap<String, PairEngine> segments = new TreeMap<>();
+      own.segments().forEach((name, engine) -> segments.put(name, copies ? engine.copy() : engine));
+      all.put(tp, new PartitionEngines(copies ? own.all().copy() : own.all(), segments));
+    });
+    return all;
+  }
+
+  /** Partitions by topic, then number: the order every merge uses. */
+  public static final java.util.Comparator<TopicPartition> PARTITION_ORDER = java.util.Comparator
+      .comparing(TopicPartition::topic).thenComparingInt(TopicPartition::partition);
+
   /** New engines holding the merge of every partition's segment engines, per segment in name order. */
   public CompletableFuture<SortedMap<String, PairEngine>> mergedSegmentCopies() {
     return call(this::mergeSegmentsNow);

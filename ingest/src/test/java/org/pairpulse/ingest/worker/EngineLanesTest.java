@@ -26,6 +26,7 @@ import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.Snapshots;
 import org.pairpulse.sketch.stats.Estimate;
+import org.pairpulse.sketch.table.PairStats;
 import org.pairpulse.sketch.table.PairTable;
 import org.pairpulse.sketch.time.EventClock;
 
@@ -101,6 +102,61 @@ class EngineLanesTest {
     double expectedBytes = single.get(IngestMetrics.PREFIX + "state.bytes").gauge().value();
     assertEquals(expectedBytes, lanes.get(IngestMetrics.PREFIX + "state.bytes").gauge().value(), expectedBytes * 0.01,
         "state bytes: the sum over the lanes");
+  }
+
+  /**
+   * The group view's refresh: lanes that hold partitions 1, 3 and 5 (restored from the single worker's snapshots) and
+   * are given 0, 2 and 4 as remote engines (decoded from its snapshots, as another instance's checkpoints are) publish
+   * the single worker's tables: the same partitions merged in the same order. The tracked-pair capacity is below the
+   * catalog's pairs here, so the merges evict, and the order of merging decides which pairs stay.
+   */
+  @ParameterizedTest(name = "lanes={0}")
+  @ValueSource(ints = {1, 3})
+  void aRefreshWithRemotePartitionsPublishesWhatOneWorkerOfAllDoes(int laneCount) throws Exception {
+    EngineConfig small = EngineConfig.builder().horizons(CONFIG.horizons()).trackedPairCapacity(96)
+        .trackedItemCapacity(24).build();
+    List<TopicPartition> partitions = new ArrayList<>();
+    for (int p = 0; p < PARTITIONS; p++) {
+      partitions.add(new TopicPartition(TOPIC, p));
+    }
+    try (EngineLanes feeder = new EngineLanes(small, SEGMENTS, new IngestMetrics(new SimpleMeterRegistry(),
+            EventClock.system()), true, 1, 4);
+        EngineWorker single = new EngineWorker(small, SEGMENTS, new IngestMetrics(new SimpleMeterRegistry(),
+            EventClock.system()), true, 4);
+        EngineLanes lanes = new EngineLanes(small, SEGMENTS, new IngestMetrics(new SimpleMeterRegistry(),
+            EventClock.system()), true, laneCount, 4)) {
+      feed(feeder, single, 43);
+      Map<TopicPartition, EngineWorker.PartitionSnapshot> snapshots = single.snapshot(partitions).get(60, TimeUnit.SECONDS);
+      java.util.SortedMap<TopicPartition, PartitionEngines> remote = new java.util.TreeMap<>(EngineWorker.PARTITION_ORDER);
+      for (TopicPartition tp : partitions) {
+        EngineWorker.PartitionSnapshot snapshot = snapshots.get(tp);
+        java.util.SortedMap<String, PairEngine> segments = new java.util.TreeMap<>();
+        snapshot.segments().forEach((name, bytes) -> segments.put(name, Snapshots.read(bytes)));
+        if (tp.partition() % 2 == 0) {
+          remote.put(tp, new PartitionEngines(Snapshots.read(snapshot.all()), segments));
+        } else {
+          lanes.restore(tp, Snapshots.read(snapshot.all()), segments).get(60, TimeUnit.SECONDS);
+        }
+      }
+      Map<String, PairTable> expected = single.refresh(7, T0).get(60, TimeUnit.SECONDS);
+      Map<String, PairTable> actual = lanes.refresh(7, T0, remote).get(60, TimeUnit.SECONDS);
+      assertEquals(List.copyOf(expected.keySet()), List.copyOf(actual.keySet()), "tables of a refresh, in order");
+      expected.forEach((name, table) -> {
+        PairTable other = actual.get(name);
+        assertEquals(table.watermarkMillis(), other.watermarkMillis(), "watermark of table " + name);
+        for (String horizon : table.horizonNames()) {
+          List<PairStats> want = table.pairs(horizon);
+          List<PairStats> got = other.pairs(horizon);
+          assertEquals(want.size(), got.size(), "pairs of " + name + " in " + horizon);
+          for (int i = 0; i < want.size(); i++) {
+            assertEquals(want.get(i).itemA() + "|" + want.get(i).itemB(), got.get(i).itemA() + "|" + got.get(i).itemB(),
+                "pair " + i + " of " + name + " in " + horizon);
+            assertEquals(want.get(i).counts().countAB().value(), got.get(i).counts().countAB().value(),
+                Math.abs(want.get(i).counts().countAB().value()) * DECAY_TOLERANCE, "n_ab of pair " + i + " of " + name);
+          }
+        }
+      });
+    }
   }
 
   /** The merged views and a refresh of the lanes against the single worker's. */

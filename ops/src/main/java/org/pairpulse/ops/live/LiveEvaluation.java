@@ -56,9 +56,10 @@ import org.slf4j.LoggerFactory;
  * dead-letter topic with their reason).
  *
  * <h2>Scale-out</h2>
- * Every instance that runs it evaluates the whole topic against its own served table. In group mode, where an
- * instance serves the state of its own partitions, run it on one instance only ({@code evaluation.share=0}
- * elsewhere).
+ * In group mode ({@link #onIngestPath}) there is no consumer of its own: ingest hands it the baskets of the
+ * instance's partitions as its fronts let them through, before the engine counts them, and it tests them only while
+ * the instance leads the group's alerts, against the group view it serves. One evaluator per group, then, on a
+ * sample of the group's traffic (the leader's partitions; records are spread over partitions by basket id).
  *
  * <p>The {@linkplain #summary() summary} the dashboard shows adds every method's scores and their hourly course
  * (event time, the newest {@value #KEEP_PERIODS} hours), kept in fixed memory.
@@ -85,7 +86,9 @@ public final class LiveEvaluation implements EvaluationStatus, AutoCloseable {
   private final Counter skippedNoTable;
   private final Counter skippedUndecodable;
   private final Map<TopicPartition, PartitionFront> fronts = new HashMap<>();
-  private final Thread thread;
+  private final Thread thread; // null on the ingest path
+  /** On the ingest path: whether to test now (the instance leads); always true with a consumer of its own. */
+  private final java.util.function.BooleanSupplier active;
   private volatile boolean stopping;
   private volatile Consumer<byte[], byte[]> consumer;
   private volatile Throwable failure;
@@ -129,6 +132,45 @@ public final class LiveEvaluation implements EvaluationStatus, AutoCloseable {
     this.skippedUndecodable = skipped(registry, "undecodable");
     this.thread = new Thread(this::run, "pairpulse-evaluation");
     this.thread.setDaemon(true);
+    this.active = () -> true;
+  }
+
+  /** On the ingest path: no consumer, baskets come through {@link #tap()}. */
+  private LiveEvaluation(EvaluationSettings settings, Supplier<FlooredTable> served, MeterRegistry registry,
+      java.util.function.BooleanSupplier active) {
+    this.consumerProperties = Map.of();
+    this.topics = List.of();
+    this.decoder = null;
+    this.frontSettings = null;
+    this.served = Objects.requireNonNull(served, "served");
+    this.active = Objects.requireNonNull(active, "active");
+    this.scores = new PeriodScores(settings.k(), PERIOD.toMillis(), KEEP_PERIODS);
+    this.evaluator = Evaluator.withoutLog(settings, Suggester.defaults(), scores::add);
+    evaluator.bindTo(registry);
+    this.skippedCounted = skipped(registry, "counted");
+    this.skippedNoTable = skipped(registry, "no_table");
+    this.skippedUndecodable = skipped(registry, "undecodable");
+    this.thread = null;
+  }
+
+  /**
+   * The group's evaluation, fed by ingest ({@link #tap()} given to {@code Ingestor.basketTap}): it tests the baskets
+   * of this instance's partitions while {@code active} says so (the instance leads the group's alerts).
+   *
+   * @param served the table the server publishes now (segment {@code all}, floored as served)
+   */
+  public static LiveEvaluation onIngestPath(EvaluationSettings settings, Supplier<FlooredTable> served,
+      MeterRegistry registry, java.util.function.BooleanSupplier active) {
+    return new LiveEvaluation(settings, served, registry, active);
+  }
+
+  /** Where ingest hands every basket its fronts let through, before counting it (on ingest's poll thread). */
+  public BasketSink tap() {
+    return (basketId, eventMillis, items) -> {
+      if (active.getAsBoolean()) {
+        test(basketId, eventMillis, items);
+      }
+    };
   }
 
   private static Counter skipped(MeterRegistry registry, String reason) {
@@ -139,7 +181,11 @@ public final class LiveEvaluation implements EvaluationStatus, AutoCloseable {
 
   /** Starts reading from the end of every partition of the basket topics (on its own thread). */
   public LiveEvaluation start() {
-    thread.start();
+    if (thread != null) {
+      thread.start();
+    } else {
+      positioned = true;
+    }
     return this;
   }
 
@@ -256,7 +302,9 @@ public final class LiveEvaluation implements EvaluationStatus, AutoCloseable {
       c.wakeup();
     }
     try {
-      thread.join(Duration.ofSeconds(10).toMillis());
+      if (thread != null && thread.isAlive()) {
+        thread.join(Duration.ofSeconds(10).toMillis());
+      }
     } catch (InterruptedException e) {
       Thread.currentThread().interrupt();
     }

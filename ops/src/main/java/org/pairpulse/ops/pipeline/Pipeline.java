@@ -19,10 +19,13 @@ import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.NewTopic;
 import org.apache.kafka.common.errors.TopicExistsException;
 import org.pairpulse.ingest.event.EventDecoder;
+import org.apache.kafka.common.config.TopicConfig;
+import org.pairpulse.ingest.kafka.GroupCoverage;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ingest.kafka.Ingestor;
 import org.pairpulse.ops.evaluation.EvaluationSettings;
 import org.pairpulse.ops.live.LiveEvaluation;
+import org.pairpulse.serve.GroupStatus;
 import org.pairpulse.serve.IngestHealth;
 import org.pairpulse.serve.ServeConfig;
 import org.pairpulse.serve.ServeServer;
@@ -184,11 +187,7 @@ public final class Pipeline implements AutoCloseable {
    * @throws IllegalStateException when the server cannot start (the cause says why)
    */
   public static Pipeline create(Settings settings, EventClock wallClock, List<AlertSink> extraSinks) {
-    Map<String, Object> ingestProps = new java.util.HashMap<>(settings.ingest());
-    if (!settings.segmentAttributes().isEmpty()) {
-      ingestProps.put(IngestConfig.SEGMENT_ATTRIBUTES, String.join(",", settings.segmentAttributes()));
-    }
-    IngestConfig ingestConfig = new IngestConfig(ingestProps);
+    IngestConfig ingestConfig = ingestConfig(settings);
     PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
     new JvmMemoryMetrics().bindTo(registry);
     JvmGcMetrics gc = new JvmGcMetrics();
@@ -212,7 +211,29 @@ public final class Pipeline implements AutoCloseable {
     extraSinks.forEach(builder::alertSink);
     java.util.concurrent.atomic.AtomicReference<ServeServer> served = new java.util.concurrent.atomic.AtomicReference<>();
     LiveEvaluation evaluation = null;
-    if (settings.evaluates()) {
+    GroupAlerts groupAlerts = null;
+    if (ingestor.groupViewEnabled()) {
+      groupAlerts = new GroupAlerts(settings.ingest(), ingestConfig.groupId(), ingestor::assignment,
+          GroupAlerts.designated(ingestConfig.topics()), settings.alertTopic(), alertStateTopic(ingestConfig));
+      GroupAlerts leader = groupAlerts;
+      builder.alertLeadership(groupAlerts).group(new GroupStatus() {
+        @Override
+        public Optional<GroupStatus.Coverage> coverage() {
+          return ingestor.coverage().map(Pipeline::served);
+        }
+
+        @Override
+        public boolean alertLeader() {
+          return leader.leading();
+        }
+      });
+      if (settings.evaluates()) {
+        evaluation = LiveEvaluation.onIngestPath(settings.evaluation(), () -> served.get().view(ServeServer.ALL),
+            registry, groupAlerts::leading);
+        ingestor.basketTap(evaluation.tap());
+        builder.evaluation(evaluation);
+      }
+    } else if (settings.evaluates()) {
       evaluation = new LiveEvaluation(KafkaClientProperties.forClient(settings.ingest(), "consumer"),
           ingestConfig.topics(), new EventDecoder(ingestConfig.eventLimits(wallClock)), ingestConfig.frontSettings(),
           settings.evaluation(), () -> served.get().view(ServeServer.ALL), registry, trial -> { });
@@ -220,7 +241,7 @@ public final class Pipeline implements AutoCloseable {
     }
     ServeServer server = null;
     try {
-      if (!settings.alertTopic().isEmpty()) {
+      if (!settings.alertTopic().isEmpty() && groupAlerts == null) {
         builder.alertSink(new KafkaAlertSink(KafkaClientProperties.forClient(settings.ingest(), "producer"),
             settings.alertTopic(), registry));
       }
@@ -242,7 +263,12 @@ public final class Pipeline implements AutoCloseable {
    */
   public Pipeline startIngest() {
     if (!settings.alertTopic().isEmpty() && settings.createAlertTopic()) {
-      createTopic(settings.ingest(), settings.alertTopic());
+      createTopic(settings.ingest(), settings.alertTopic(), Map.of());
+    }
+    IngestConfig ingestConfig = ingestConfig(settings);
+    if (ingestor.groupViewEnabled() && ingestConfig.getBoolean(IngestConfig.TOPICS_CREATE)) {
+      createTopic(settings.ingest(), alertStateTopic(ingestConfig),
+          Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
     }
     ingestor.start();
     health.started();
@@ -252,19 +278,40 @@ public final class Pipeline implements AutoCloseable {
     return this;
   }
 
-  private static void createTopic(Map<String, Object> ingest, String topic) {
+  /** The compacted topic of the group's alert state: the state topic's name with {@code .alerts}. */
+  static String alertStateTopic(IngestConfig ingest) {
+    return ingest.getString(IngestConfig.STATE_TOPIC) + ".alerts";
+  }
+
+  private static IngestConfig ingestConfig(Settings settings) {
+    Map<String, Object> props = new java.util.HashMap<>(settings.ingest());
+    if (!settings.segmentAttributes().isEmpty()) {
+      props.put(IngestConfig.SEGMENT_ATTRIBUTES, String.join(",", settings.segmentAttributes()));
+    }
+    return new IngestConfig(props);
+  }
+
+  /** Ingest's coverage as serve shows it. */
+  private static GroupStatus.Coverage served(GroupCoverage c) {
+    return new GroupStatus.Coverage(c.partitions(), c.live(), c.remote(), c.empty(),
+        c.missing().stream().map(Object::toString).toList(), c.stale().stream().map(Object::toString).toList(),
+        c.oldestContributionAgeMillis());
+  }
+
+  private static void createTopic(Map<String, Object> ingest, String topic, Map<String, String> configs) {
     try (Admin admin = Admin.create(KafkaClientProperties.forClient(ingest, "admin"))) {
       if (admin.listTopics().names().get(60, TimeUnit.SECONDS).contains(topic)) {
         return;
       }
-      admin.createTopics(List.of(new NewTopic(topic, Optional.of(1), Optional.empty()))).all().get(60, TimeUnit.SECONDS);
-      LOG.info("created alerts topic {}", topic);
+      admin.createTopics(List.of(new NewTopic(topic, Optional.of(1), Optional.empty()).configs(configs)))
+          .all().get(60, TimeUnit.SECONDS);
+      LOG.info("created topic {}", topic);
     } catch (ExecutionException e) {
       if (!(e.getCause() instanceof TopicExistsException)) {
-        LOG.warn("cannot create the alerts topic {} ({}); alerts are sent to it anyway", topic, e.getCause().toString());
+        LOG.warn("cannot create topic {} ({}); alerts are sent to it anyway", topic, e.getCause().toString());
       }
     } catch (TimeoutException e) {
-      LOG.warn("cannot create the alerts topic {} (timed out); alerts are sent to it anyway", topic);
+      LOG.warn("cannot create topic {} (timed out); alerts are sent to it anyway", topic);
     } catch (InterruptedException e) {
       Thread.currentThread().interrupt();
     }

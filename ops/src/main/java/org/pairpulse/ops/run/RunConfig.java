@@ -646,8 +646,8 @@ public final class RunConfig {
             + " merged copy of the state is made)", Part.RUN));
     keys.add(new Key(EVALUATION_SHARE, "double", "0.05", "[0, 1]",
         "share of baskets the live evaluation tests before ingest counts them (one item hidden; hit rate against a"
-            + " table rebuilt once a day and the most popular items, on the dashboard and in /metrics); 0: none. In a"
-            + " group, set it on one instance only", Part.RUN, value -> {
+            + " table rebuilt once a day and the most popular items, on the dashboard and in /metrics); 0: none. In"
+            + " group mode only the alert leader evaluates, from its own ingest", Part.RUN, value -> {
               try {
                 double v = Double.parseDouble(value);
                 return v >= 0 && v <= 1 ? null : "out of range";

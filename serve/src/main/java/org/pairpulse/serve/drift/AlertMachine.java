@@ -195,6 +195,35 @@ public final class AlertMachine {
     return list;
   }
 
+  /**
+   * A track as it travels between the instances of a group (the alert leader's state): everything but the newest
+   * observation, which the next {@link #step} reads again.
+   */
+  public record TrackState(String first, String second, AlertKind kind, State state, long sinceMillis,
+      long raisedAtMillis, long clearingSinceMillis, long cooldownUntilMillis) {}
+
+  /** Every non-idle track, in key order. */
+  public List<TrackState> exportTracks() {
+    List<TrackState> out = new ArrayList<>(tracks.size());
+    tracks.forEach((key, t) -> out.add(new TrackState(key.pair().first(), key.pair().second(), key.kind(), t.state,
+        t.sinceMillis, t.raisedAtMillis, t.clearingSinceMillis, t.cooldownUntilMillis)));
+    return out;
+  }
+
+  /** Replaces every track with {@code states} (their newest observations unknown until the next step). */
+  public void restoreTracks(List<TrackState> states) {
+    tracks.clear();
+    for (TrackState s : states) {
+      Track t = new Track();
+      t.state = s.state();
+      t.sinceMillis = s.sinceMillis();
+      t.raisedAtMillis = s.raisedAtMillis();
+      t.clearingSinceMillis = s.clearingSinceMillis();
+      t.cooldownUntilMillis = s.cooldownUntilMillis();
+      tracks.put(new Key(new PairKey(s.first(), s.second()), s.kind()), t);
+    }
+  }
+
   /** Number of non-idle tracks (the machine's memory). */
   public int size() {
     return tracks.size();

@@ -60,6 +60,27 @@ public final class DriftMonitor {
     return settings;
   }
 
+  /** The alert state of this segment (group mode: the alert leader's travels to its successor). */
+  public synchronized AlertState alertState() {
+    return new AlertState(firstWatermarkMillis, machine.exportTracks());
+  }
+
+  /** Replaces the alert state with one taken from another instance ({@link #alertState()}). */
+  public synchronized void restore(AlertState state) {
+    firstWatermarkMillis = state.firstWatermarkMillis();
+    machine.restoreTracks(state.tracks());
+  }
+
+  /**
+   * @param firstWatermarkMillis the watermark of the first table observed (the stream's start for the decays' ages)
+   * @param tracks the alert machine's non-idle tracks
+   */
+  public record AlertState(long firstWatermarkMillis, List<AlertMachine.TrackState> tracks) {
+    public AlertState {
+      tracks = List.copyOf(tracks);
+    }
+  }
+
   /** The finding of {a, b} in {@code table}, if the pair is published in both horizons. */
   public synchronized Optional<DriftFinding> finding(FlooredTable table, PairKey pair) {
     return Optional.ofNullable(finding(table, pair, factors(table), null));

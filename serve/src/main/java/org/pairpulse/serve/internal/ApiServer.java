@@ -28,6 +28,7 @@ import java.util.Set;
 import java.util.concurrent.TimeUnit;
 import java.util.function.Supplier;
 import org.pairpulse.serve.EvaluationStatus;
+import org.pairpulse.serve.GroupStatus;
 import org.pairpulse.serve.IngestHealth;
 import org.pairpulse.serve.IngestStatus;
 import org.pairpulse.serve.ServeConfig;
@@ -66,7 +67,7 @@ public final class ApiServer implements AutoCloseable {
   public record Deps(ServeConfig config, Map<String, SegmentState> segments, CohortFloor floor,
       DriftSettings drift, Suggester suggester, ServeMeters meters, PrometheusMeterRegistry registry,
       IngestStatus ingest, Supplier<SketchHealth> sketch, EvaluationStatus evaluation, AlertHistory alerts,
-      EventClock wallClock) {}
+      EventClock wallClock, GroupStatus group) {}
 
   private record CacheKey(String route, String segment, long version, Object request) {}
 
@@ -407,6 +408,7 @@ public final class ApiServer implements AutoCloseable {
     body.put("ingest", ingest(c.ingest().health()));
     body.put("sketch", sketch(c.sketch().get()));
     body.put("evaluation", c.evaluation().summary().orElse(null));
+    body.put("group", c.group().coverage().map(g -> group(g, c.group().alertLeader())).orElse(null));
     Map<String, Object> serving = new LinkedHashMap<>();
     serving.put("cohortFloor", c.floor().minBaskets());
     serving.put("evidenceHorizon", view.evidenceHorizon().orElse(null));
@@ -431,6 +433,21 @@ public final class ApiServer implements AutoCloseable {
     body.put("alertsRecorded", c.alerts().size());
     body.put("nowMillis", now);
     json(ctx, body);
+  }
+
+  private static Map<String, Object> group(GroupStatus.Coverage g, boolean alertLeader) {
+    Map<String, Object> out = new LinkedHashMap<>();
+    out.put("partitions", g.partitions());
+    out.put("merged", g.merged());
+    out.put("live", g.live());
+    out.put("remote", g.remote());
+    out.put("empty", g.empty());
+    out.put("missing", g.missing());
+    out.put("stale", g.stale());
+    out.put("partial", g.partial());
+    out.put("oldestContributionAgeMillis", g.oldestContributionAgeMillis());
+    out.put("alertLeader", alertLeader);
+    return out;
   }
 
   private static Map<String, Object> ingest(IngestHealth h) {

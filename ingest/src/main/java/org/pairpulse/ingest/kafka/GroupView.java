@@ -1,0 +1,364 @@
+package org.pairpulse.ingest.kafka;
+
+import java.io.ByteArrayInputStream;
+import java.io.DataInputStream;
+import java.io.IOException;
+import java.nio.ByteBuffer;
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.SortedMap;
+import java.util.TreeMap;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.TimeUnit;
+import java.util.function.LongSupplier;
+import org.apache.kafka.clients.admin.Admin;
+import org.apache.kafka.clients.admin.ListOffsetsOptions;
+import org.apache.kafka.clients.admin.OffsetSpec;
+import org.apache.kafka.clients.admin.TopicDescription;
+import org.apache.kafka.clients.consumer.Consumer;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.OffsetAndMetadata;
+import org.apache.kafka.common.IsolationLevel;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.errors.WakeupException;
+import org.pairpulse.ingest.checkpoint.PartitionCheckpoint;
+import org.pairpulse.ingest.worker.EngineWorker;
+import org.pairpulse.ingest.worker.PartitionEngines;
+import org.pairpulse.sketch.engine.EngineConfig;
+import org.pairpulse.sketch.engine.PairEngine;
+import org.pairpulse.sketch.engine.Snapshots;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * The group view: the newest committed checkpoint of every input partition, read from the state topic as the
+ * group's instances write it, so that an instance can serve the merge of <em>all</em> partitions (its own, counted
+ * live, and the others from their owners' checkpoints).
+ *
+ * <h2>What travels</h2>
+ * Nothing new is written: the checkpoints that group mode writes anyway ({@link StateTopicStore}, one transaction
+ * with the offsets every {@code checkpoint.interval.ms}) are the publication. A smaller serving snapshot (tracked
+ * tables and counts without the sketches) would not merge to the same table: the mergeable-summary rule for the
+ * tracked tables (Agarwal, Cormode, Huang, Phillips, Wei, Yi, "Mergeable summaries", PODS 2012; see
+ * {@code EngineMerge}) charges a key tracked on one side with the other side's count-min estimate, and a pair's
+ * counts before its admission are read from the sketches. So the checkpoint's engine snapshot is what a remote
+ * partition must contribute; what is saved is reading it again: the view tails the state topic (each checkpoint is
+ * read once, when it is committed, from where the group's committed offsets point at start), and decodes a
+ * partition only when it has a new checkpoint and is not counted here.
+ *
+ * <h2>Coverage</h2>
+ * {@link #coverage} says, per refresh, which partitions the served table holds: live (counted here), remote (merged
+ * from a checkpoint), empty (no record and no checkpoint), missing (records but no checkpoint readable here), and
+ * stale (a remote partition whose records go beyond its checkpoint, taken longer than {@code staleAfterMillis} ago).
+ *
+ * <h2>Threading</h2>
+ * One thread of its own owns the state-topic reader and the admin client (log end offsets every second).
+ * {@link #remote} and {@link #coverage} may be called from any thread; a decoded engine is never changed afterwards.
+ */
+public final class GroupView implements AutoCloseable {
+  private static final Logger LOG = LoggerFactory.getLogger(GroupView.class);
+  private static final long LOG_END_EVERY_MILLIS = 1000;
+
+  private final String stateTopic;
+  private final String group;
+  private final List<String> topics;
+  private final EngineConfig engineConfig;
+  private final long staleAfterMillis;
+  private final Consumer<byte[], byte[]> reader;
+  private final Admin admin;
+  private final LongSupplier wallClock;
+  private final java.util.function.Supplier<Set<TopicPartition>> owned;
+  private final Thread thread;
+  private final Map<TopicPartition, Latest> latest = new ConcurrentHashMap<>();
+  private final Map<TopicPartition, Long> logEnds = new ConcurrentHashMap<>();
+  private volatile boolean running = true;
+  private volatile long publicationBytes;
+  private volatile long publicationsRead;
+
+  /** The newest complete checkpoint of one partition; decoded on first need (never changed afterwards). */
+  private static final class Latest {
+    final PartitionCheckpoint checkpoint;
+    private PartitionEngines decoded;
+
+    Latest(PartitionCheckpoint checkpoint) {
+      this.checkpoint = checkpoint;
+    }
+
+    synchronized PartitionEngines decoded() {
+      if (decoded == null) {
+        SortedMap<String, PairEngine> segments = new TreeMap<>();
+        checkpoint.segments().forEach((name, bytes) -> segments.put(name, Snapshots.read(bytes)));
+        decoded = new PartitionEngines(Snapshots.read(checkpoint.engine()), segments);
+      }
+      return decoded;
+    }
+  }
+
+  /**
+   * Starts reading.
+   *
+   * @param reader a {@code read_committed} consumer without a group (closed with the view)
+   * @param admin an admin client (not closed by the view)
+   * @param staleAfterMillis how long a remote partition's checkpoint may lag its records before it counts as stale
+   * @param owned the partitions counted here now: a new checkpoint of another partition is decoded at once, on this
+   *     view's thread (an owned one only if it stops being owned)
+   */
+  GroupView(String stateTopic, String group, List<String> topics, EngineConfig engineConfig, long staleAfterMillis,
+      Consumer<byte[], byte[]> reader, Admin admin, LongSupplier wallClock,
+      java.util.function.Supplier<Set<TopicPartition>> owned) {
+    this.stateTopic = stateTopic;
+    this.group = group;
+    this.topics = List.copyOf(topics);
+    this.engineConfig = engineConfig;
+    this.staleAfterMillis = staleAfterMillis;
+    this.reader = reader;
+    this.admin = admin;
+    this.wallClock = wallClock;
+    this.owned = owned;
+    this.thread = new Thread(this::run, "pairpulse-group-view");
+    this.thread.setDaemon(true);
+  }
+
+  GroupView start() {
+    thread.start();
+    return this;
+  }
+
+  private void run() {
+    try {
+      assignFromCommitted();
+      long lastLogEnds = 0;
+      while (running) {
+        for (ConsumerRecord<byte[], byte[]> r : reader.poll(Duration.ofMillis(200))) {
+          accept(r);
+        }
+        long now = wallClock.getAsLong();
+        if (now - lastLogEnds >= LOG_END_EVERY_MILLIS) {
+          lastLogEnds = now;
+          readLogEnds();
+        }
+      }
+    } catch (WakeupException e) {
+      // closing
+    } catch (RuntimeException e) {
+      if (running) {
+        LOG.error("the group view stopped reading the state topic {}; remote partitions will show as stale", stateTopic, e);
+      }
+    } finally {
+      reader.close(org.apache.kafka.clients.consumer.CloseOptions.timeout(Duration.ofSeconds(5)));
+    }
+  }
+
+  /** Assigns every state partition, each from the oldest checkpoint the group's committed offsets point at. */
+  private void assignFromCommitted() {
+    try {
+      int statePartitions = admin.describeTopics(List.of(stateTopic)).allTopicNames().get(60, TimeUnit.SECONDS)
+          .get(stateTopic).partitions().size();
+      Map<TopicPartition, OffsetAndMetadata> committed = admin.listConsumerGroupOffsets(group)
+          .partitionsToOffsetAndMetadata().get(60, TimeUnit.SECONDS);
+      Map<Integer, Long> from = new HashMap<>();
+      boolean[] unknown = new boolean[statePartitions];
+      for (TopicDescription topic : admin.describeTopics(topics).allTopicNames().get(60, TimeUnit.SECONDS).values()) {
+        topic.partitions().forEach(p -> {
+          TopicPartition tp = new TopicPartition(topic.name(), p.partition());
+          logEnds.putIfAbsent(tp, -1L);
+          OffsetAndMetadata c = committed.get(tp);
+          int sp = tp.partition() % statePartitions;
+          String[] parts = c == null || c.metadata() == null ? new String[0] : c.metadata().split(" ");
+          if (parts.length == 5 && parts[0].equals(StateTopicStore.METADATA_PREFIX)) {
+            from.merge(Integer.parseInt(parts[1]), Long.parseLong(parts[2]), Math::min);
+          } else {
+            unknown[sp] = true;
+          }
+        });
+      }
+      List<TopicPartition> assigned = new ArrayList<>();
+      for (int sp = 0; sp < statePartitions; sp++) {
+        assigned.add(new TopicPartition(stateTopic, sp));
+      }
+      reader.assign(assigned);
+      for (int sp = 0; sp < statePartitions; sp++) {
+        TopicPartition source = new TopicPartition(stateTopic, sp);
+        if (unknown[sp] || !from.containsKey(sp)) {
+          reader.seekToBeginning(List.of(source));
+        } else {
+          reader.seek(source, from.get(sp));
+        }
+      }
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+      throw new IllegalStateException("interrupted while starting the group view", e);
+    } catch (java.util.concurrent.ExecutionException | java.util.concurrent.TimeoutException e) {
+      throw new IllegalStateException("cannot start the group view on " + stateTopic + ": " + e.getMessage(), e);
+    }
+  }
+
+  /** Chunks being put together per input partition (reader thread only). */
+  private final Map<TopicPartition, Chunks> assembling = new HashMap<>();
+
+  private record Chunks(long id, byte[][] parts, long totalBytes) {
+    boolean complete() {
+      for (byte[] part : parts) {
+        if (part == null) {
+          return false;
+        }
+      }
+      return true;
+    }
+  }
+
+  private void accept(ConsumerRecord<byte[], byte[]> r) {
+    if (r.value() == null || r.key() == null || r.value().length < StateTopicStore.CHUNK_HEADER_BYTES) {
+      return;
+    }
+    TopicPartition tp;
+    int index;
+    try (DataInputStream key = new DataInputStream(new ByteArrayInputStream(r.key()))) {
+      if (!key.readUTF().equals(group)) {
+        return;
+      }
+      String topic = key.readUTF();
+      int partition = key.readInt();
+      index = key.readInt();
+      if (key.available() != 0 || topic.isEmpty()) {
+        return;
+      }
+      tp = new TopicPartition(topic, partition);
+    } catch (IOException e) {
+      return; // another key layout (the alert state record): not a checkpoint chunk
+    }
+    ByteBuffer v = ByteBuffer.wrap(r.value());
+    if (v.getInt(0) != StateTopicStore.MAGIC || v.get(4) != StateTopicStore.FORMAT_VERSION) {
+      return;
+    }
+    long id = v.getLong(8);
+    int count = v.getInt(20);
+    long total = v.getLong(24);
+    if (index < 0 || index >= count) {
+      return;
+    }
+    Chunks chunks = assembling.get(tp);
+    if (chunks == null || chunks.id() != id || chunks.parts().length != count) {
+      chunks = new Chunks(id, new byte[count][], total);
+      assembling.put(tp, chunks);
+    }
+    byte[] data = new byte[r.value().length - StateTopicStore.CHUNK_HEADER_BYTES];
+    v.get(StateTopicStore.CHUNK_HEADER_BYTES, data);
+    chunks.parts()[index] = data;
+    if (!chunks.complete()) {
+      return;
+    }
+    assembling.remove(tp);
+    ByteBuffer whole = ByteBuffer.allocate((int) chunks.totalBytes());
+    for (byte[] part : chunks.parts()) {
+      if (part.length > whole.remaining()) {
+        LOG.warn("checkpoint {} of {} on the state topic is larger than it says; skipped", id, tp);
+        return;
+      }
+      whole.put(part);
+    }
+    PartitionCheckpoint checkpoint;
+    try {
+      checkpoint = PartitionCheckpoint.decode(whole.array());
+    } catch (RuntimeException e) {
+      LOG.warn("checkpoint {} of {} on the state topic is unreadable ({}); skipped", id, tp, e.toString());
+      return;
+    }
+    Latest entry = new Latest(checkpoint);
+    if (!owned.get().contains(tp)) {
+      try {
+        entry.decoded(); // here rather than on the refresh's thread
+      } catch (RuntimeException e) {
+        LOG.warn("checkpoint {} of {} on the state topic cannot be decoded ({}); skipped", id, tp, e.toString());
+        return;
+      }
+    }
+    latest.put(tp, entry);
+    publicationBytes += chunks.totalBytes();
+    publicationsRead++;
+  }
+
+  private void readLogEnds() {
+    if (logEnds.isEmpty()) {
+      return;
+    }
+    Map<TopicPartition, OffsetSpec> request = new HashMap<>();
+    logEnds.keySet().forEach(tp -> request.put(tp, OffsetSpec.latest()));
+    try {
+      admin.listOffsets(request, new ListOffsetsOptions(IsolationLevel.READ_COMMITTED)).all().get(10, TimeUnit.SECONDS)
+          .forEach((tp, info) -> logEnds.put(tp, info.offset()));
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+    } catch (java.util.concurrent.ExecutionException | java.util.concurrent.TimeoutException e) {
+      LOG.debug("log end offsets not read now: {}", e.toString());
+    }
+  }
+
+  /**
+   * The engines of every partition that has a checkpoint and is not in {@code owned}, in partition order (decoding
+   * those not decoded yet).
+   */
+  public SortedMap<TopicPartition, PartitionEngines> remote(Set<TopicPartition> owned) {
+    SortedMap<TopicPartition, PartitionEngines> out = new TreeMap<>(EngineWorker.PARTITION_ORDER);
+    latest.forEach((tp, entry) -> {
+      if (!owned.contains(tp) && topics.contains(tp.topic())) { // not a partition of a topic read before, not now
+        PartitionEngines engines = entry.decoded();
+        if (engines.all().config().equals(engineConfig)) {
+          out.put(tp, engines);
+        } else {
+          LOG.warn("checkpoint of {} was written with another engine configuration; not merged", tp);
+        }
+      }
+    });
+    return out;
+  }
+
+  /** Which partitions a table merged from {@code owned} and {@link #remote}{@code (owned)} holds, at {@code nowMillis}. */
+  public GroupCoverage coverage(Set<TopicPartition> owned, long nowMillis) {
+    int live = 0;
+    int remote = 0;
+    int empty = 0;
+    long oldest = 0;
+    List<TopicPartition> missing = new ArrayList<>();
+    List<TopicPartition> stale = new ArrayList<>();
+    Set<TopicPartition> all = new java.util.TreeSet<>(EngineWorker.PARTITION_ORDER);
+    all.addAll(logEnds.keySet());
+    all.addAll(owned);
+    for (TopicPartition tp : all) {
+      long end = logEnds.getOrDefault(tp, -1L);
+      Latest entry = latest.get(tp);
+      if (owned.contains(tp)) {
+        live++;
+      } else if (entry != null) {
+        remote++;
+        if (end > entry.checkpoint.nextOffset()) {
+          long age = Math.max(0, nowMillis - entry.checkpoint.createdAtMillis());
+          oldest = Math.max(oldest, age);
+          if (age > staleAfterMillis) {
+            stale.add(tp);
+          }
+        }
+      } else if (end == 0) {
+        empty++;
+      } else {
+        missing.add(tp);
+      }
+    }
+    return new GroupCoverage(all.size(), live, remote, empty, missing, stale, oldest, publicationBytes, publicationsRead);
+  }
+
+  @Override
+  public void close() {
+    running = false;
+    reader.wakeup();
+    try {
+      thread.join(TimeUnit.SECONDS.toMillis(10));
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+    }
+  }
+}

@@ -1,0 +1,49 @@
+package org.pairpulse.ops.group;
+
+/**
+ * The {@code run --config} files of the group checks: one consumer group in group mode (state topic, group view,
+ * alert leadership) with small capacities and short intervals, so that several instances fit one small machine.
+ */
+public final class GroupConfigs {
+  private GroupConfigs() {}
+
+  /**
+   * @param group the consumer group; its topics are named after it ({@code <group>.state}, {@code <group>.alerts},
+   *     {@code <group>.dead-letters})
+   * @param instance the instance's stable id
+   * @param publishMillis the checkpoint interval (the group view's publication interval)
+   * @param refreshMillis the refresh interval
+   */
+  public static String properties(String bootstrapServers, String topic, String group, String instance,
+      long publishMillis, long refreshMillis) {
+    return String.join("\n",
+        "bootstrap.servers=" + bootstrapServers,
+        "topics=" + topic,
+        "group.id=" + group,
+        "instance.id=" + instance,
+        "checkpoint.store=kafka",
+        "state.topic=" + group + ".state",
+        "dead.letter.topic=" + group + ".dead-letters",
+        "alerts.kafka.topic=" + group + ".alerts",
+        "checkpoint.interval.ms=" + publishMillis,
+        "refresh.interval.ms=" + refreshMillis,
+        "serve.port=0",
+        "serve.cohortFloor=5",
+        "serve.watchMillis=50",
+        "drift.minDwellMillis=0",
+        "evaluation.share=0.2",
+        "engine.pairEpsilon=0.01",
+        "engine.itemEpsilon=0.01",
+        "engine.decayPairEpsilon=0.002",
+        "engine.trackedPairCapacity=1024",
+        "engine.trackedItemCapacity=256",
+        "horizon.baseline.lengthMillis=604800000",
+        "horizon.baseline.panes=7",
+        "run.sketchHealthIntervalMillis=1000",
+        // quick failure detection: a killed instance's partitions move within seconds
+        "kafka.consumer.session.timeout.ms=4000",
+        "kafka.consumer.heartbeat.interval.ms=500",
+        "kafka.producer.transaction.timeout.ms=8000",
+        "");
+  }
+}
