@@ -93,9 +93,10 @@ public final class ServeConfig {
       "quiet time after a resolved alert before the same pair and kind can alert again", v -> (long) v >= 0);
   public static final String DRIFT_REPORTED = define("drift.maxReported", Type.INT, "100", ">= 1",
       "entries per kind in a drift report", v -> (int) v >= 1);
-  public static final String DRIFT_SHORT_HALF_LIFE = define("drift.shortHalfLifeMillis", Type.LONG, "3600000", ">= 0",
-      "half-life of the short scale each pair is also tested at, derived from successive tables; 0: recent decay only",
-      v -> (long) v >= 0);
+  public static final String DRIFT_SHORT_HALF_LIVES = define("drift.shortHalfLivesMillis", Type.STRING,
+      "3600000,7200000", "comma-separated half-lives > 0, distinct; empty: none",
+      "half-lives of the short scales each pair is also tested at, derived from successive tables; empty: the recent"
+          + " decay only", v -> halfLives((String) v) != null);
   public static final String KAFKA_BOOTSTRAP = define("alerts.kafka.bootstrapServers", Type.STRING, "",
       "empty, or host:port[,host:port]", "Kafka cluster for the alerts topic; empty: no topic publishing", v -> true);
   public static final String KAFKA_TOPIC = define("alerts.kafka.topic", Type.STRING, "pairpulse.alerts",
@@ -241,11 +242,31 @@ public final class ServeConfig {
     return token.isEmpty() ? Optional.empty() : Optional.of(token);
   }
 
+  /** The half-lives of a comma-separated list (empty: none), or null when one is not a distinct long > 0. */
+  static List<Long> halfLives(String text) {
+    List<Long> out = new ArrayList<>();
+    for (String part : text.split(",")) {
+      if (part.isBlank()) {
+        continue;
+      }
+      try {
+        long value = Long.parseLong(part.strip());
+        if (value <= 0 || out.contains(value)) {
+          return null;
+        }
+        out.add(value);
+      } catch (NumberFormatException e) {
+        return null;
+      }
+    }
+    return List.copyOf(out);
+  }
+
   /** Drift thresholds from the drift.* keys. */
   public DriftSettings driftSettings() {
     return new DriftSettings("recent", DriftSettings.REFERENCE_HORIZON, doubleValue(DRIFT_ENTER_ROOT_G2), doubleValue(DRIFT_EXIT_ROOT_G2),
         doubleValue(DRIFT_ENTER_RATIO), doubleValue(DRIFT_EXIT_RATIO), doubleValue(DRIFT_BUNDLE_EXIT),
-        longValue(DRIFT_DWELL), longValue(DRIFT_COOLDOWN), intValue(DRIFT_REPORTED), longValue(DRIFT_SHORT_HALF_LIFE));
+        longValue(DRIFT_DWELL), longValue(DRIFT_COOLDOWN), intValue(DRIFT_REPORTED), halfLives(string(DRIFT_SHORT_HALF_LIVES)));
   }
 
   public Duration watchInterval() {

@@ -132,7 +132,11 @@ public final class BacktestJson {
     number(json, "bundleExitConfidence", drift.bundleExitConfidence());
     json.writeNumberField("minDwellMillis", drift.minDwellMillis());
     json.writeNumberField("cooldownMillis", drift.cooldownMillis());
-    json.writeNumberField("shortHalfLifeMillis", drift.shortHalfLifeMillis());
+    json.writeArrayFieldStart("shortHalfLivesMillis");
+    for (long halfLife : drift.shortHalfLivesMillis()) {
+      json.writeNumber(halfLife);
+    }
+    json.writeEndArray();
     json.writeEndObject();
     EvaluationSettings evaluation = settings.evaluation();
     if (evaluation != null) {

@@ -17,15 +17,16 @@ import org.pairpulse.sketch.table.PairStats;
  * {@code recent} against the engine's tracking decay) for every pair published in both (so the cohort floor applies
  * to alerts too), feeds the {@link AlertMachine} and keeps the newest {@link DriftReport}.
  *
- * <h2>Two scales</h2>
- * Each pair is tested twice against the same reference: with the recent decay's counts (half-life 6 h by default),
- * and with a shorter decay the monitor derives from successive tables ({@link ShortScale}, half-life
- * {@link DriftSettings#shortHalfLifeMillis}, 1 h by default), which sees the first hours of a change that the
- * recent decay still averages away (a pair that stops selling in the evening, a pair that starts in a busy hour).
- * Both scales test at the Bonferroni-corrected root {@link DriftStatistics#rootForTests}, so the two together keep
- * the false-alarm bound of one. The gates that read the table (associated beyond basket size now or before, the
- * bundle confidences) read the recent horizon at both scales. An alert enters when either scale enters and stays
- * active while either holds.
+ * <h2>Several scales</h2>
+ * Each pair is tested against the same reference with the recent decay's counts (half-life 6 h by default), and
+ * with shorter decays the monitor derives from successive tables ({@link ShortScale}, half-lives
+ * {@link DriftSettings#shortHalfLivesMillis}, 1 h and 2 h by default), which see the first hours of a change that
+ * the recent decay still averages away (a pair that stops selling in the evening, a pair that starts in a busy
+ * hour): the 1-hour scale answers first when traffic is high, the 2-hour one holds steadier evidence when it is low.
+ * Every scale tests at the Bonferroni-corrected root {@link DriftStatistics#rootForTests} (k scales: p / k each), so
+ * all of them together keep the false-alarm bound of one. The gates that read the table (associated beyond basket
+ * size now or before, the bundle confidences) read the recent horizon at every scale. An alert enters when any
+ * scale enters and stays active while any holds.
  *
  * <p>Cost: one pass over the published pairs per table version (a hash lookup and a few logarithms
  * each), and one over the tracked pairs for the short scale. Thread-safety: {@link #observe} from one thread;
@@ -37,7 +38,7 @@ public final class DriftMonitor {
   private final DriftSettings tested;
   private final String segment;
   private final AlertMachine machine;
-  private final ShortScale shortScale;
+  private final List<ShortScale> shortScales = new ArrayList<>();
   private volatile DriftReport report;
   /** The watermark of the first table observed: the start of the stream as far as the decays' ages go. */
   private long firstWatermarkMillis = Long.MIN_VALUE;
@@ -45,14 +46,15 @@ public final class DriftMonitor {
   public DriftMonitor(DriftSettings settings, String segment) {
     this.settings = Objects.requireNonNull(settings, "settings");
     this.segment = Objects.requireNonNull(segment, "segment");
-    // two scales when the short one is on (one scale less when the table's recent horizon turns out not to be a
-    // longer decay: then the short scale is not tested and the threshold errs high, fewer alerts, never more)
-    this.tested = settings.shortHalfLifeMillis() > 0
-        ? settings.withRootG2(DriftStatistics.rootForTests(settings.enterRootG2(), 2), settings.exitRootG2())
-        : settings;
+    // one scale per short half-life beside the recent decay (a short scale not shorter than the table's recent decay
+    // is not tested, and the threshold then errs high: fewer alerts, never more)
+    int scales = 1 + settings.shortHalfLivesMillis().size();
+    this.tested = settings.withRootG2(DriftStatistics.rootForTests(settings.enterRootG2(), scales),
+        settings.exitRootG2());
     this.machine = new AlertMachine(tested, segment);
-    this.shortScale = settings.shortHalfLifeMillis() > 0 ? new ShortScale(settings.shortHalfLifeMillis(),
-        settings.recentHorizon()) : null;
+    for (long halfLife : settings.shortHalfLivesMillis()) {
+      shortScales.add(new ShortScale(halfLife, settings.recentHorizon()));
+    }
     this.report = DriftReport.empty(segment);
   }
 
@@ -87,8 +89,9 @@ public final class DriftMonitor {
   }
 
   /**
-   * The finding of {a, b} for {@code kind} (null: the recent scale's): the scale that enters {@code kind}, else one
-   * that holds it (does not exit), the recent scale first; null when the pair is not published in both horizons.
+   * The finding of {a, b} for {@code kind} (null: the recent scale's): the first scale that enters {@code kind}, else
+   * the first that holds it (does not exit), else the recent scale's, the recent scale first, then the short scales
+   * from the shortest; null when the pair is not published in both horizons.
    */
   private DriftFinding finding(FlooredTable table, PairKey pair, Factors factors, AlertKind kind) {
     Optional<PairStats> recent = table.pair(pair.first(), pair.second(), settings.recentHorizon());
@@ -99,32 +102,49 @@ public final class DriftMonitor {
     PairCounts counts = referenceCounts(recent.get(), reference.get(), factors);
     DriftFinding atRecent = DriftFinding.of(recent.get(), recent.get().counts(), factors.recentHalfLife(),
         reference.get(), counts, factors.recent(), factors.reference(), tested);
-    DriftFinding atShort = kind == null ? null : shortFinding(recent.get(), reference.get(), counts, factors, false);
-    if (atShort == null || atRecent.enters(kind, tested)) {
+    if (kind == null || atRecent.enters(kind, tested)) {
       return atRecent;
     }
-    if (atShort.enters(kind, tested) || atRecent.exits(kind, tested) && !atShort.exits(kind, tested)) {
-      return atShort;
+    List<DriftFinding> scales = new ArrayList<>();
+    scales.add(atRecent);
+    for (ShortScale scale : shortScales) {
+      DriftFinding atShort = shortFinding(scale, recent.get(), reference.get(), counts, factors, false);
+      if (atShort != null) {
+        scales.add(atShort);
+      }
+    }
+    for (DriftFinding f : scales) {
+      if (f.enters(kind, tested)) {
+        return f;
+      }
+    }
+    for (DriftFinding f : scales) {
+      if (!f.exits(kind, tested)) {
+        return f;
+      }
     }
     return atRecent;
   }
 
-  /** The short scale's finding of a pair, or null (no short scale, pair not seen, or cannot enter when screened). */
-  private DriftFinding shortFinding(PairStats recent, PairStats reference, PairCounts referenceCounts, Factors factors,
-      boolean screen) {
-    if (shortScale == null || !factors.withShort()) {
+  /**
+   * A short scale's finding of a pair, or null (the scale is not shorter than the recent decay, the pair was not
+   * seen, or, when {@code screen}, it cannot enter).
+   */
+  private DriftFinding shortFinding(ShortScale scale, PairStats recent, PairStats reference, PairCounts referenceCounts,
+      Factors factors, boolean screen) {
+    if (!(scale.halfLifeMillis() < factors.recentHalfLife())) {
       return null;
     }
-    PairCounts counts = shortScale.counts(recent);
+    PairCounts counts = scale.counts(recent);
     if (counts == null) {
       return null;
     }
-    double factor = DriftStatistics.effectiveCountFactor(shortScale.halfLifeMillis(),
-        Math.min(factors.age(), shortScale.ageMillis(recent)));
+    double factor = DriftStatistics.effectiveCountFactor(scale.halfLifeMillis(),
+        Math.min(factors.age(), scale.ageMillis(recent)));
     if (screen && !DriftFinding.mayEnter(counts, referenceCounts, factor, factors.reference(), tested)) {
       return null;
     }
-    return DriftFinding.of(recent, counts, shortScale.halfLifeMillis(), reference, referenceCounts, factor,
+    return DriftFinding.of(recent, counts, scale.halfLifeMillis(), reference, referenceCounts, factor,
         factors.reference(), tested);
   }
 
@@ -135,7 +155,7 @@ public final class DriftMonitor {
    * ({@link DriftStatistics#excluding}: when both are decays and the reference is the longer).
    */
   private record Factors(double recent, double reference, boolean excludeRecent, String referenceHorizon,
-      long recentHalfLife, long age, boolean withShort) {}
+      long recentHalfLife, long age) {}
 
   /**
    * The reference horizon of {@code table}: the configured one, or, in a table that does not hold it (one not
@@ -156,7 +176,7 @@ public final class DriftMonitor {
     double reference = exclude ? DriftStatistics.effectiveCountFactor(referenceHalfLife, recentHalfLife, age)
         : DriftStatistics.effectiveCountFactor(referenceHalfLife, age);
     return new Factors(DriftStatistics.effectiveCountFactor(recentHalfLife, age), reference, exclude, referenceHorizon,
-        recentHalfLife, age, settings.scales(recentHalfLife) > 1);
+        recentHalfLife, age);
   }
 
   /** The reference period's counts of a pair, with the recent decay taken out where {@code factors} say so. */
@@ -177,8 +197,8 @@ public final class DriftMonitor {
     if (firstWatermarkMillis == Long.MIN_VALUE && table.table().watermarkMillis() != Long.MIN_VALUE) {
       firstWatermarkMillis = table.table().watermarkMillis();
     }
-    if (shortScale != null) {
-      shortScale.advance(table.table());
+    for (ShortScale scale : shortScales) {
+      scale.advance(table.table());
     }
     int compared = 0;
     Factors factors = factors(table);
@@ -193,9 +213,11 @@ public final class DriftMonitor {
         addIfEntering(entering, DriftFinding.of(recent, recent.counts(), factors.recentHalfLife(), reference.get(),
             counts, factors.recent(), factors.reference(), tested));
       }
-      DriftFinding atShort = shortFinding(recent, reference.get(), counts, factors, true);
-      if (atShort != null) {
-        addIfEntering(entering, atShort);
+      for (ShortScale scale : shortScales) {
+        DriftFinding atShort = shortFinding(scale, recent, reference.get(), counts, factors, true);
+        if (atShort != null) {
+          addIfEntering(entering, atShort);
+        }
       }
     }
     List<AlertEvent> events = machine.step(nowMillis, table.version(), entering,

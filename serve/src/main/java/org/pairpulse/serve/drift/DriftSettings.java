@@ -1,6 +1,7 @@
 package org.pairpulse.serve.drift;
 
 import java.time.Duration;
+import java.util.List;
 
 /**
  * Thresholds of drift detection and of the alert state machine. What the tests and routes mean is in
@@ -38,11 +39,13 @@ import java.time.Duration;
  *   <tr><td>cooldownMillis</td><td>6 h</td><td>after an alert is resolved, the same pair and kind cannot alert again
  *       for this long</td></tr>
  *   <tr><td>maxReported</td><td>100</td><td>entries per kind kept in a drift report</td></tr>
+ *   <tr><td>shortHalfLivesMillis</td><td>1 h, 2 h</td><td>the short scales each pair is also tested at (decays the
+ *       monitor derives from successive tables, {@link ShortScale}); empty: the recent decay only</td></tr>
  * </table>
  */
 public record DriftSettings(String recentHorizon, String referenceHorizon, double enterRootG2, double exitRootG2,
     double enterRatio, double exitRatio, double bundleExitConfidence, long minDwellMillis,
-    long cooldownMillis, int maxReported, long shortHalfLifeMillis) {
+    long cooldownMillis, int maxReported, List<Long> shortHalfLivesMillis) {
 
   public DriftSettings {
     if (recentHorizon == null || referenceHorizon == null || recentHorizon.equals(referenceHorizon)) {
@@ -64,9 +67,10 @@ public record DriftSettings(String recentHorizon, String referenceHorizon, doubl
     if (maxReported < 1) {
       throw new IllegalArgumentException("maxReported must be >= 1, got " + maxReported);
     }
-    if (shortHalfLifeMillis < 0) {
-      throw new IllegalArgumentException("shortHalfLifeMillis must be >= 0 (0: no short scale), got "
-          + shortHalfLifeMillis);
+    shortHalfLivesMillis = List.copyOf(shortHalfLivesMillis);
+    if (shortHalfLivesMillis.stream().anyMatch(h -> h <= 0)
+        || shortHalfLivesMillis.stream().distinct().count() != shortHalfLivesMillis.size()) {
+      throw new IllegalArgumentException("short scales' half-lives must be distinct and > 0, got " + shortHalfLivesMillis);
     }
   }
 
@@ -76,34 +80,30 @@ public record DriftSettings(String recentHorizon, String referenceHorizon, doubl
   /** The defaults of the table above. */
   public static DriftSettings defaults() {
     return new DriftSettings("recent", REFERENCE_HORIZON, 5.0, 3.0, 1.5, 1.2, 0.90, Duration.ofMinutes(15).toMillis(),
-        Duration.ofHours(6).toMillis(), 100, Duration.ofHours(1).toMillis());
+        Duration.ofHours(6).toMillis(), 100, DEFAULT_SHORT_HALF_LIVES);
   }
 
   public DriftSettings withDwellAndCooldown(long dwellMillis, long coolMillis) {
     return new DriftSettings(recentHorizon, referenceHorizon, enterRootG2, exitRootG2, enterRatio, exitRatio,
-        bundleExitConfidence, dwellMillis, coolMillis, maxReported, shortHalfLifeMillis);
+        bundleExitConfidence, dwellMillis, coolMillis, maxReported, shortHalfLivesMillis);
   }
 
-  public DriftSettings withShortHalfLife(long millis) {
+  public DriftSettings withShortHalfLives(List<Long> millis) {
     return new DriftSettings(recentHorizon, referenceHorizon, enterRootG2, exitRootG2, enterRatio, exitRatio,
         bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported, millis);
   }
 
-  /**
-   * The scales each pair is tested at: the recent decay, and the short scale unless it is off (0) or not shorter than
-   * {@code recentHalfLifeMillis}.
-   */
-  public int scales(long recentHalfLifeMillis) {
-    return shortHalfLifeMillis > 0 && shortHalfLifeMillis < recentHalfLifeMillis ? 2 : 1;
-  }
+  /** The default short scales: decays of half-life 1 h and 2 h. */
+  public static final List<Long> DEFAULT_SHORT_HALF_LIVES = List.of(Duration.ofHours(1).toMillis(),
+      Duration.ofHours(2).toMillis());
 
   public DriftSettings withRootG2(double enter, double exit) {
     return new DriftSettings(recentHorizon, referenceHorizon, enter, exit, enterRatio, exitRatio,
-        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported, shortHalfLifeMillis);
+        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported, shortHalfLivesMillis);
   }
 
   public DriftSettings withRatio(double enter, double exit) {
     return new DriftSettings(recentHorizon, referenceHorizon, enterRootG2, exitRootG2, enter, exit,
-        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported, shortHalfLifeMillis);
+        bundleExitConfidence, minDwellMillis, cooldownMillis, maxReported, shortHalfLivesMillis);
   }
 }
