@@ -7,7 +7,7 @@ import org.pairpulse.sketch.cms.CountMinSketch;
 
 /**
  * Merges the state of an engine built over a disjoint stream (another partition) into this one.
- * Basket-size classes merge like the counts they split: N_c, M_c add pane by pane; a tracked item's exactly
+ * Basket-size classes merge like the counts they split: N_c, M_c, K_c and Q_c add pane by pane; a tracked item's exactly
  * counted class parts add where both sides counted exactly, and what a side read from its sketches has no class.
  *
  * <ul>
