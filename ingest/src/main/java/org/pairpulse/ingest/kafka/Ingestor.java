@@ -576,7 +576,7 @@ public final class Ingestor implements AutoCloseable {
     if (groupView != null) {
       Set<TopicPartition> owned = Set.copyOf(slots.keySet());
       java.util.SortedMap<TopicPartition, org.pairpulse.ingest.worker.PartitionEngines> remote = groupView.remote(owned);
-      covered = groupView.coverage(owned, now);
+      covered = groupView.coverage(owned, Map.copyOf(positions), now);
       refreshed = lanes.refresh(++tableVersion, now, remote);
     } else {
       covered = null;
