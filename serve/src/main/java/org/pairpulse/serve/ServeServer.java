@@ -272,6 +272,8 @@ public final class ServeServer implements AutoCloseable {
   public synchronized void catchUp() {
     discover();
     boolean leading = leadership == null || leadOrFollow();
+    // a partial group view is not the group's table: drift and alerts wait for a whole one (the view is served)
+    boolean whole = group.coverage().map(c -> !c.partial()).orElse(true);
     List<AlertEvent> round = new ArrayList<>();
     for (SegmentState segment : segments.values()) {
       PairTable table = segment.source().current();
@@ -281,7 +283,7 @@ public final class ServeServer implements AutoCloseable {
       FlooredTable view = FlooredTable.of(table, floor);
       suggester.prepare(view); // the index is built here, not by the first request of the version
       Segments.view(segment, view);
-      if (table.version() > 0) {
+      if (table.version() > 0 && whole) {
         long now = alertClock != null ? alertClock.millis() : table.watermarkMillis();
         List<AlertEvent> events = segment.drift().observe(view, now);
         segment.trend().record(view, drifting(segment.drift().report()));

@@ -11,7 +11,8 @@ import org.apache.kafka.common.TopicPartition;
  * @param remote partitions merged from another instance's newest committed checkpoint
  * @param empty partitions with no record and no checkpoint (nothing to merge; covered)
  * @param missing partitions with records but no checkpoint readable here: their baskets are not in the table
- * @param stale remote partitions whose checkpoint lags their records by more than the staleness bound
+ * @param stale partitions whose contribution does not reach the records they held a staleness bound ago: a remote
+ *     checkpoint not renewed, or an owned partition still catching up after a restore
  * @param oldestContributionAgeMillis the largest age of a merged contribution: for a remote partition with records
  *     beyond its checkpoint, the time since that checkpoint was taken; 0 when every contribution is up to date
  * @param publicationBytes the encoded bytes of the checkpoints read from the state topic so far

@@ -53,7 +53,8 @@ import org.slf4j.LoggerFactory;
  * <h2>Coverage</h2>
  * {@link #coverage} says, per refresh, which partitions the served table holds: live (counted here), remote (merged
  * from a checkpoint), empty (no record and no checkpoint), missing (records but no checkpoint readable here), and
- * stale (a remote partition whose records go beyond its checkpoint, taken longer than {@code staleAfterMillis} ago).
+ * stale (a contribution that does not reach the records its partition held {@code staleAfterMillis} ago: a remote
+ * checkpoint not renewed, or an owned partition still catching up after a restore).
  *
  * <h2>Threading</h2>
  * One thread of its own owns the state-topic reader and the admin client (log end offsets every second).
@@ -290,12 +291,51 @@ public final class GroupView implements AutoCloseable {
     logEnds.keySet().forEach(tp -> request.put(tp, OffsetSpec.latest()));
     try {
       admin.listOffsets(request, new ListOffsetsOptions(IsolationLevel.READ_COMMITTED)).all().get(10, TimeUnit.SECONDS)
-          .forEach((tp, info) -> logEnds.put(tp, info.offset()));
+          .forEach((tp, info) -> {
+            logEnds.put(tp, info.offset());
+            remember(tp, wallClock.getAsLong(), info.offset());
+          });
     } catch (InterruptedException e) {
       Thread.currentThread().interrupt();
     } catch (java.util.concurrent.ExecutionException | java.util.concurrent.TimeoutException e) {
       LOG.debug("log end offsets not read now: {}", e.toString());
     }
+  }
+
+  /** Log end readings per partition, oldest first: [wall-clock ms, offset]; one at least the staleness bound old. */
+  private final Map<TopicPartition, java.util.Deque<long[]>> endHistory = new ConcurrentHashMap<>();
+
+  private void remember(TopicPartition tp, long atMillis, long offset) {
+    java.util.Deque<long[]> history = endHistory.computeIfAbsent(tp, k -> new java.util.concurrent.ConcurrentLinkedDeque<>());
+    history.addLast(new long[] {atMillis, offset});
+    // the oldest reading is not needed once the next one is at least the staleness bound old
+    while (history.size() > 1 && secondOf(history)[0] <= atMillis - staleAfterMillis) {
+      history.pollFirst();
+    }
+  }
+
+  private static long[] secondOf(java.util.Deque<long[]> history) {
+    java.util.Iterator<long[]> it = history.iterator();
+    it.next();
+    return it.hasNext() ? it.next() : null;
+  }
+
+  /**
+   * The log end offset that {@code tp} had {@code staleAfterMillis} ago (the newest reading at least that old; the
+   * oldest reading while none is that old), or −1 when none was read.
+   */
+  private long requiredOffset(TopicPartition tp, long nowMillis) {
+    java.util.Deque<long[]> history = endHistory.get(tp);
+    if (history == null || history.isEmpty()) {
+      return -1;
+    }
+    long[] chosen = history.peekFirst();
+    for (long[] reading : history) {
+      if (reading[0] <= nowMillis - staleAfterMillis) {
+        chosen = reading;
+      }
+    }
+    return chosen[1];
   }
 
   /**
@@ -317,8 +357,15 @@ public final class GroupView implements AutoCloseable {
     return out;
   }
 
-  /** Which partitions a table merged from {@code owned} and {@link #remote}{@code (owned)} holds, at {@code nowMillis}. */
-  public GroupCoverage coverage(Set<TopicPartition> owned, long nowMillis) {
+  /**
+   * Which partitions a table merged from {@code owned} and {@link #remote}{@code (owned)} holds, at {@code nowMillis}.
+   * A contribution is stale when it does not reach the records its partition held {@code staleAfterMillis} ago: a
+   * remote checkpoint its owner has not renewed, or an owned partition still catching up (restored from an older
+   * checkpoint after a rebalance or a restart).
+   *
+   * @param positions the next offset this instance reads in each owned partition
+   */
+  public GroupCoverage coverage(Set<TopicPartition> owned, Map<TopicPartition, Long> positions, long nowMillis) {
     int live = 0;
     int remote = 0;
     int empty = 0;
@@ -330,17 +377,20 @@ public final class GroupView implements AutoCloseable {
     all.addAll(owned);
     for (TopicPartition tp : all) {
       long end = logEnds.getOrDefault(tp, -1L);
+      long required = requiredOffset(tp, nowMillis);
       Latest entry = latest.get(tp);
       if (owned.contains(tp)) {
         live++;
+        if (positions.getOrDefault(tp, -1L) < required) {
+          stale.add(tp);
+        }
       } else if (entry != null) {
         remote++;
         if (end > entry.checkpoint.nextOffset()) {
-          long age = Math.max(0, nowMillis - entry.checkpoint.createdAtMillis());
-          oldest = Math.max(oldest, age);
-          if (age > staleAfterMillis) {
-            stale.add(tp);
-          }
+          oldest = Math.max(oldest, Math.max(0, nowMillis - entry.checkpoint.createdAtMillis()));
+        }
+        if (entry.checkpoint.nextOffset() < required) {
+          stale.add(tp);
         }
       } else if (end == 0) {
         empty++;

@@ -131,8 +131,9 @@ public final class IngestConfig extends AbstractConfig {
           "Group mode only: publish the whole group's pair table, this instance's partitions merged with the others' "
               + "newest checkpoints read from the state topic; false: this instance's partitions only.")
       .define(GROUP_VIEW_STALE_MS, Type.LONG, 0L, Range.atLeast(0), Importance.LOW,
-          "A remote partition whose records go beyond a checkpoint older than this marks the group view partial; "
-              + "0: three times checkpoint.interval.ms.")
+          "A partition whose merged state does not reach the records it held this long ago (a remote checkpoint not "
+              + "renewed, an owned partition catching up) marks the group view partial; 0: three times "
+              + "checkpoint.interval.ms.")
       .define(ALLOWED_LATENESS_MS, Type.LONG, HOUR, Range.atLeast(0), Importance.HIGH,
           "Events older than their partition's newest event time minus this are dead letters (reason late).")
       .define(DEDUPE_HORIZON_MS, Type.LONG, HOUR, Range.atLeast(0), Importance.MEDIUM,

@@ -563,6 +563,23 @@ public final class Ingestor implements AutoCloseable {
   private void tick(long now) {
     lastTickMillis = now;
     metrics.tick();
+    // past transaction markers (and aborted records) after a partition's last record: the consumer has moved on, so
+    // the state covers up to its position (else a quiet partition of a transactional producer would look behind)
+    slots.forEach((tp, slot) -> {
+      if (slot.nextOffset < 0) {
+        return;
+      }
+      try {
+        long position = consumer.position(tp, Duration.ZERO);
+        if (position > slot.nextOffset) {
+          slot.nextOffset = position;
+          slot.dirty = true;
+          positions.put(tp, position);
+        }
+      } catch (KafkaException | IllegalStateException e) {
+        // position not known right now: the next tick tries again
+      }
+    });
     for (TopicPartition tp : slots.keySet()) {
       consumer.currentLag(tp).ifPresent(lag -> metrics.lag(tp.topic(), tp.partition(), lag));
     }
@@ -576,7 +593,7 @@ public final class Ingestor implements AutoCloseable {
     if (groupView != null) {
       Set<TopicPartition> owned = Set.copyOf(slots.keySet());
       java.util.SortedMap<TopicPartition, org.pairpulse.ingest.worker.PartitionEngines> remote = groupView.remote(owned);
-      covered = groupView.coverage(owned, now);
+      covered = groupView.coverage(owned, Map.copyOf(positions), now);
       refreshed = lanes.refresh(++tableVersion, now, remote);
     } else {
       covered = null;

@@ -55,6 +55,8 @@ final class GroupAlerts implements AlertLeadership {
   private final String stateTopic;
   private final byte[] stateKey;
   private Producer<byte[], byte[]> producer; // watcher thread only
+  private final io.micrometer.core.instrument.Counter delivered;
+  private final io.micrometer.core.instrument.Counter failed;
 
   /**
    * @param clientProps ingest's settings (for the client pass-through)
@@ -62,9 +64,11 @@ final class GroupAlerts implements AlertLeadership {
    * @param designated the partition whose owner leads
    * @param alertTopic the alerts topic; empty: events go to no topic (the state is published all the same)
    * @param stateTopic the compacted alert-state topic (one partition)
+   * @param registry where the deliveries to the alerts topic are counted ({@code pairpulse_alert_deliveries_total}
+   *     with {@code sink="kafka"}, as the one-instance topic sink counts them)
    */
   GroupAlerts(Map<String, Object> clientProps, String group, Supplier<java.util.Set<TopicPartition>> owned,
-      TopicPartition designated, String alertTopic, String stateTopic) {
+      TopicPartition designated, String alertTopic, String stateTopic, io.micrometer.core.instrument.MeterRegistry registry) {
     Map<String, Object> p = KafkaClientProperties.forClient(clientProps, "producer");
     p.put(ProducerConfig.CLIENT_ID_CONFIG, "pairpulse-alerts");
     p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, "pairpulse-" + group + "-alerts");
@@ -84,6 +88,15 @@ final class GroupAlerts implements AlertLeadership {
     this.alertTopic = alertTopic;
     this.stateTopic = stateTopic;
     this.stateKey = group.getBytes(StandardCharsets.UTF_8);
+    this.delivered = deliveries(registry, "delivered");
+    this.failed = deliveries(registry, "failed");
+  }
+
+  private static io.micrometer.core.instrument.Counter deliveries(io.micrometer.core.instrument.MeterRegistry registry,
+      String outcome) {
+    return io.micrometer.core.instrument.Counter.builder("pairpulse.alert.deliveries")
+        .description("Alert events handed to a sink, by outcome").tag("sink", "kafka").tag("outcome", outcome)
+        .register(registry);
   }
 
   /** The designated partition: partition 0 of the first topic by name. */
@@ -151,12 +164,16 @@ final class GroupAlerts implements AlertLeadership {
       }
       producer.send(new ProducerRecord<>(stateTopic, 0, stateKey, state));
       producer.commitTransaction();
+      if (!alertTopic.isEmpty()) {
+        delivered.increment(events.size());
+      }
       return true;
     } catch (ProducerFencedException e) {
       LOG.info("another instance took over the group's alerts ({})", e.getMessage());
       closeProducer();
       return false;
     } catch (KafkaException e) {
+      failed.increment(events.size());
       LOG.warn("alert publication of {} events failed ({}); the next leader round raises them again", events.size(),
           e.toString());
       closeProducer(); // aborts the open transaction; takeOver starts again from the committed state

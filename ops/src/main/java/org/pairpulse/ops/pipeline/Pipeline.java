@@ -214,7 +214,8 @@ public final class Pipeline implements AutoCloseable {
     GroupAlerts groupAlerts = null;
     if (ingestor.groupViewEnabled()) {
       groupAlerts = new GroupAlerts(settings.ingest(), ingestConfig.groupId(), ingestor::assignment,
-          GroupAlerts.designated(ingestConfig.topics()), settings.alertTopic(), alertStateTopic(ingestConfig));
+          GroupAlerts.designated(ingestConfig.topics()), settings.alertTopic(), alertStateTopic(ingestConfig),
+          registry);
       GroupAlerts leader = groupAlerts;
       builder.alertLeadership(groupAlerts).group(new GroupStatus() {
         @Override
