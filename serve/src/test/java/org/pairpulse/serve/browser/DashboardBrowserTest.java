@@ -211,17 +211,27 @@ class DashboardBrowserTest {
     input.clear();
     input.sendKeys("handset-heron-3, plan-family-4");
     driver.findElement(By.id("basket-go")).click();
-    List<WebElement> shown = new WebDriverWait(driver, Duration.ofSeconds(10)).until(d -> {
-      List<WebElement> s = d.findElements(By.cssSelector("#basket-result .suggestion"));
-      return s.isEmpty() ? null : s;
-    });
+    // read the rendered rows as values inside the wait: the panel may render again between a find and a read
+    record Shown(String item, String text) {}
+    List<Shown> shown = new WebDriverWait(driver, Duration.ofSeconds(10))
+        .ignoring(org.openqa.selenium.StaleElementReferenceException.class).until(d -> {
+          List<WebElement> rows = d.findElements(By.cssSelector("#basket-result .suggestion"));
+          if (rows.isEmpty()) {
+            return null;
+          }
+          List<Shown> read = new java.util.ArrayList<>();
+          for (WebElement row : rows) {
+            read.add(new Shown(row.getDomAttribute("data-item"), row.getText()));
+          }
+          return read;
+        });
     assertEquals(expected.size(), shown.size());
-    assertEquals(expected.get(0).get("item").asText(), shown.get(0).getDomAttribute("data-item"));
-    assertTrue(shown.get(0).getText().contains("with plan-family-4") || shown.get(0).getText().contains("with handset-heron-3"),
-        shown.get(0).getText());
-    List<String> items = shown.stream().map(e -> e.getDomAttribute("data-item")).toList();
+    assertEquals(expected.get(0).get("item").asText(), shown.get(0).item());
+    assertTrue(shown.get(0).text().contains("with plan-family-4") || shown.get(0).text().contains("with handset-heron-3"),
+        shown.get(0).text());
+    List<String> items = shown.stream().map(Shown::item).toList();
     assertTrue(items.contains("pack-kids") && items.contains("case-heron-3"), "the two planted partners: " + items);
-    assertTrue(shown.get(0).getText().contains("lift"), "the evidence shows the lift and its interval");
+    assertTrue(shown.get(0).text().contains("lift"), "the evidence shows the lift and its interval");
   }
 
   @Test
