@@ -131,11 +131,12 @@ final class ShortScale {
    * pair was not seen at the newest table.
    */
   PairCounts counts(PairStats stats) {
-    Cells c = cells.get(PairKey.of(stats.itemA(), stats.itemB()));
+    PairKey key = PairKey.of(stats.itemA(), stats.itemB());
+    Cells c = cells.get(key);
     if (c == null) {
       return null;
     }
-    boolean aFirst = stats.itemA().equals(PairKey.of(stats.itemA(), stats.itemB()).first());
+    boolean aFirst = stats.itemA().equals(key.first());
     double a = Math.min(c.countA, c.baskets);
     double b = Math.min(c.countB, c.baskets);
     double ab = Math.min(c.countAB, Math.min(a, b));
