@@ -39,7 +39,8 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *       {@code engine.pairEpsilon}, {@code engine.pairDelta}, {@code engine.itemEpsilon}, {@code engine.itemDelta},
  *       {@code engine.decayPairEpsilon}, {@code engine.maxPairsPerBasket}, {@code engine.trackingHalfLifeMillis},
  *       {@code engine.seed}, {@code engine.sizeClasses} (basket-size classes of the size-adjusted measures, e.g.
- *       {@code 1,2,3,4-5,6+}; {@code 1+} for the textbook measures), and the run configuration's horizon keys {@code horizon.recent.halfLifeMillis},
+ *       {@code 1,2,3,4-5,6+}; {@code 1+} for the textbook measures), {@code engine.pairRanking} ({@code fractional} or
+ *       {@code count}), and the run configuration's horizon keys {@code horizon.recent.halfLifeMillis},
  *       {@code horizon.day.lengthMillis}, {@code horizon.day.panes}, {@code horizon.baseline.lengthMillis},
  *       {@code horizon.baseline.panes} (applied to the engine's horizons of those names, as {@link RunConfig} does);</li>
  *   <li>backtest keys: {@code backtest.refreshEveryMillis}, {@code backtest.summaryEveryMillis},
@@ -56,7 +57,8 @@ import org.pairpulse.sketch.stats.SizeClasses;
 public final class SettingsFile {
   private static final List<String> ENGINE_KEYS = List.of("engine.trackedPairCapacity", "engine.trackedItemCapacity",
       "engine.pairEpsilon", "engine.pairDelta", "engine.itemEpsilon", "engine.itemDelta", "engine.decayPairEpsilon",
-      "engine.maxPairsPerBasket", "engine.trackingHalfLifeMillis", "engine.seed", "engine.sizeClasses");
+      "engine.maxPairsPerBasket", "engine.trackingHalfLifeMillis", "engine.seed", "engine.sizeClasses",
+      "engine.pairRanking");
   private static final List<String> BACKTEST_KEYS = List.of("backtest.refreshEveryMillis", "backtest.summaryEveryMillis",
       "backtest.summaryTop", "evaluation.share", "evaluation.seed", "evaluation.k", "evaluation.horizon",
       "evaluation.measure", "evaluation.minConfidence", "evaluation.maxConfidence", "evaluation.includeBundles",
@@ -177,6 +179,9 @@ public final class SettingsFile {
     engine.maxPairsPerBasket(intOf(values, "engine.maxPairsPerBasket", current.maxPairsPerBasket()));
     engine.trackingHalfLifeMillis(longOf(values, "engine.trackingHalfLifeMillis", current.trackingHalfLifeMillis()));
     engine.seed(longOf(values, "engine.seed", current.seed()));
+    if (values.containsKey("engine.pairRanking")) {
+      engine.pairRanking(org.pairpulse.sketch.engine.PairRanking.parse(values.get("engine.pairRanking")));
+    }
     if (values.containsKey("engine.sizeClasses")) {
       engine.sizeClasses(SizeClasses.parse(values.get("engine.sizeClasses")));
     }

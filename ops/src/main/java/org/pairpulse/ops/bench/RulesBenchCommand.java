@@ -88,9 +88,26 @@ public final class RulesBenchCommand implements Callable<Integer> {
       + " (default: ${DEFAULT-VALUE}).")
   long seed = 15;
 
-  @Option(names = "--shapes", split = ",", paramLabel = "SHAPE", description = "Basket-size shapes (default: all):"
-      + " ${COMPLETION-CANDIDATES}.")
+  @Option(names = "--shapes", split = ",", paramLabel = "SHAPE", converter = ShapeConverter.class,
+      description = "Basket-size shapes (default: all): small, mixed, heavy-tail.")
   List<RulesStream.SizeShape> shapes = List.of(RulesStream.SizeShape.values());
+
+  @Option(names = "--pair-ranking", paramLabel = "RANKING", description = "How pairs rank for tracking: fractional or"
+      + " count (default: the engine's default).")
+  String pairRanking;
+
+  /** Reads a shape by the name the bench prints (heavy-tail), in any case. */
+  static final class ShapeConverter implements picocli.CommandLine.ITypeConverter<RulesStream.SizeShape> {
+    @Override
+    public RulesStream.SizeShape convert(String value) {
+      for (RulesStream.SizeShape shape : RulesStream.SizeShape.values()) {
+        if (shape.wireName().equalsIgnoreCase(value.trim()) || shape.name().equalsIgnoreCase(value.trim())) {
+          return shape;
+        }
+      }
+      throw new picocli.CommandLine.TypeConversionException("not a shape: '" + value + "' (small, mixed, heavy-tail)");
+    }
+  }
 
   @Option(names = "--size-classes", paramLabel = "CLASSES", description = "Basket-size classes of the engine, e.g."
       + " 1,2,3,4-5,6+ (default: the engine's default).")
@@ -126,6 +143,13 @@ public final class RulesBenchCommand implements Callable<Integer> {
 
   @Override
   public Integer call() {
+    if (pairRanking != null) {
+      try {
+        org.pairpulse.sketch.engine.PairRanking.parse(pairRanking);
+      } catch (IllegalArgumentException e) {
+        throw new ParameterException(spec.commandLine(), e.getMessage());
+      }
+    }
     if (baskets < 1_000 || items < 200 || planted < 0 || testBaskets < 0) {
       throw new ParameterException(spec.commandLine(), "need --baskets >= 1000, --items >= 200, --planted >= 0,"
           + " --test-baskets >= 0");
@@ -176,6 +200,9 @@ public final class RulesBenchCommand implements Callable<Integer> {
     }
     if (trackedPairs != null) {
       builder.trackedPairCapacity(trackedPairs);
+    }
+    if (pairRanking != null) {
+      builder.pairRanking(org.pairpulse.sketch.engine.PairRanking.parse(pairRanking));
     }
     EngineConfig config = builder.build();
     Map<String, PairEngine> engines = new LinkedHashMap<>();

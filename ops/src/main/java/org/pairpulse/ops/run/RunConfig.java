@@ -32,6 +32,7 @@ import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.ops.evaluation.EvaluationSettings;
 import org.pairpulse.ops.pipeline.Pipeline;
 import org.pairpulse.serve.ServeConfig;
+import org.pairpulse.sketch.engine.PairRanking;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.stats.SizeClasses;
@@ -97,6 +98,8 @@ public final class RunConfig {
   public static final String EVALUATION_HORIZON = "evaluation.horizon";
   /** Basket-size classes of the size-adjusted null model ({@link SizeClasses#parse}). */
   public static final String SIZE_CLASSES = "engine.sizeClasses";
+  /** How pair occurrences rank for tracking ({@link PairRanking#parse}). */
+  public static final String PAIR_RANKING = "engine.pairRanking";
 
   private static final List<Key> KEYS = keys();
   private static final Map<String, Key> BY_NAME = byName(KEYS);
@@ -291,6 +294,7 @@ public final class RunConfig {
         .trackingHalfLifeMillis(longValue("engine.trackingHalfLifeMillis"))
         .seed(longValue("engine.seed"))
         .sizeClasses(SizeClasses.parse(values.get(SIZE_CLASSES)))
+        .pairRanking(PairRanking.parse(values.get(PAIR_RANKING)))
         .build();
   }
 
@@ -589,6 +593,17 @@ public final class RunConfig {
                 return null;
               } catch (IllegalArgumentException e) {
                 return "not size classes (e.g. 1,2,3,4-5,6+)";
+              }
+            }));
+    keys.add(new Key(PAIR_RANKING, "string", d.pairRanking().wireName(), "fractional, count",
+        "how a pair occurrence weighs in the rank that decides which pairs are tracked: fractional (1/(k − 1) in a basket"
+            + " of k items, so large baskets do not crowd the table) or count (by frequency). Counts are the same either"
+            + " way. Every instance of a group must use the same", Part.ENGINE, value -> {
+              try {
+                PairRanking.parse(value);
+                return null;
+              } catch (IllegalArgumentException e) {
+                return "not fractional or count";
               }
             }));
     keys.add(longKey("horizon.recent.halfLifeMillis", recent.halfLifeMillis(), 1000, Long.MAX_VALUE,

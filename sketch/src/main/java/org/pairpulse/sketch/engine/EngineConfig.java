@@ -38,6 +38,9 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *   <tr><td>sizeClasses</td><td>1, 2, 3, 4–5, 6–9, 10–15, 16–24, 25–39, 40+</td><td>basket-size classes of the size-adjusted null model
  *       ({@link SizeClasses}): N and the tracked items' counts are kept per class; {@link SizeClasses#single()}
  *       turns the adjustment off (textbook measures)</td></tr>
+ *   <tr><td>pairRanking</td><td>FRACTIONAL</td><td>how a pair occurrence weighs in the rank that decides which pairs are
+ *       tracked ({@link PairRanking}): 1/(k − 1) in a basket of k items, so that large baskets do not crowd the table;
+ *       COUNT ranks by frequency</td></tr>
  * </table>
  */
 public record EngineConfig(
@@ -54,7 +57,8 @@ public record EngineConfig(
     int maxPairsPerBasket,
     UpdateRule updateRule,
     long seed,
-    SizeClasses sizeClasses) {
+    SizeClasses sizeClasses,
+    PairRanking pairRanking) {
 
   /** Name of the internal decay that ranks tracked keys (not published, reserved). */
   public static final String TRACKING_HORIZON_NAME = org.pairpulse.sketch.table.PairTable.TRACKING_HORIZON;
@@ -66,6 +70,7 @@ public record EngineConfig(
     Objects.requireNonNull(horizons, "horizons");
     Objects.requireNonNull(updateRule, "updateRule");
     Objects.requireNonNull(sizeClasses, "sizeClasses");
+    Objects.requireNonNull(pairRanking, "pairRanking");
     horizons = List.copyOf(horizons);
     if (horizons.isEmpty()) {
       throw new IllegalArgumentException("at least one horizon is needed");
@@ -103,12 +108,13 @@ public record EngineConfig(
     }
   }
 
-  /** A configuration with the default size classes. */
+  /** A configuration with the default size classes and pair ranking. */
   public EngineConfig(List<HorizonSpec> horizons, String burstHorizon, long trackingHalfLifeMillis, double itemEpsilon,
       double itemDelta, double pairEpsilon, double pairDelta, double decayPairEpsilon, int trackedPairCapacity,
       int trackedItemCapacity, int maxPairsPerBasket, UpdateRule updateRule, long seed) {
     this(horizons, burstHorizon, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta, decayPairEpsilon,
-        trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed, SizeClasses.defaults());
+        trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed, SizeClasses.defaults(),
+        PairRanking.FRACTIONAL);
   }
 
   private static void requireRange(String name, int value, int min, int max) {
@@ -130,7 +136,8 @@ public record EngineConfig(
     return new Builder().horizons(horizons).burstHorizon(burstHorizon).trackingHalfLifeMillis(trackingHalfLifeMillis)
         .itemError(itemEpsilon, itemDelta).pairError(pairEpsilon, pairDelta).decayPairEpsilon(decayPairEpsilon)
         .trackedPairCapacity(trackedPairCapacity).trackedItemCapacity(trackedItemCapacity)
-        .maxPairsPerBasket(maxPairsPerBasket).updateRule(updateRule).seed(seed).sizeClasses(sizeClasses);
+        .maxPairsPerBasket(maxPairsPerBasket).updateRule(updateRule).seed(seed).sizeClasses(sizeClasses)
+        .pairRanking(pairRanking);
   }
 
   /** The internal decay horizon that ranks tracked keys. */
@@ -154,6 +161,7 @@ public record EngineConfig(
     private UpdateRule updateRule = UpdateRule.LINEAR;
     private long seed = 0x5EEDL;
     private SizeClasses sizeClasses = SizeClasses.defaults();
+    private PairRanking pairRanking = PairRanking.FRACTIONAL;
 
     public Builder horizons(List<HorizonSpec> value) {
       this.horizons = new ArrayList<>(value);
@@ -222,9 +230,15 @@ public record EngineConfig(
       return this;
     }
 
+    public Builder pairRanking(PairRanking value) {
+      this.pairRanking = value;
+      return this;
+    }
+
     public EngineConfig build() {
       return new EngineConfig(horizons, burstHorizon, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta,
-          decayPairEpsilon, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed, sizeClasses);
+          decayPairEpsilon, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket, updateRule, seed, sizeClasses,
+          pairRanking);
     }
   }
 }

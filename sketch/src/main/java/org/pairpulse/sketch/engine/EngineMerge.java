@@ -17,9 +17,10 @@ import org.pairpulse.sketch.cms.CountMinSketch;
  *       Phillips, Wei, Yi, "Mergeable summaries", PODS 2012): every key of either table is kept with the
  *       sum of both sides' counts, where a side that does not track the key contributes its own upper
  *       bound for it (nothing if that side was never full, which means it never saw the key; else its
- *       count-min estimates, capped by its smallest tracked count in the tracking cell, with that bound
- *       recorded as inherited error); then the largest {@code capacity} tracking counts stay. Every key
- *       heavier than (W₁ + W₂) / capacity stays tracked.</li>
+ *       count-min estimates, recorded as inherited error; its rank estimate, capped by its smallest tracked rank, and
+ *       for items the tracking count likewise, since an item's rank is its tracking count); then the largest
+ *       {@code capacity} ranks stay. Every key whose rank weight exceeds (W₁ + W₂) / capacity stays tracked
+ *       (W: the rank weights, see {@link PairRanking}).</li>
  * </ul>
  */
 final class EngineMerge {
@@ -68,6 +69,9 @@ final class EngineMerge {
         }
         addScaled(mine.itemSketch[p], theirs.itemSketch[p], otherScale[h]);
         addScaled(mine.pairSketch[p], theirs.pairSketch[p], otherScale[h]);
+        if (h == into.trackingHorizon) {
+          addScaled(into.pairRankSketch, other.pairRankSketch, otherScale[h]);
+        }
         mine.basketWeight[p] += theirs.basketWeight[p] * otherScale[h];
         mine.unclassedBaskets[p] += theirs.unclassedBaskets[p] * otherScale[h];
         for (int c = p * mine.classCount; c < (p + 1) * mine.classCount; c++) {
@@ -116,6 +120,8 @@ final class EngineMerge {
     double[] panes;
     /** Decay counts (forward units of the merged landmark). */
     double[] decays;
+    /** The Space-Saving rank (forward units of the tracking decay's merged landmark). */
+    double rank;
     long[] admissionPane;
     double[] admissionError;
     /** Per horizon: estimate − debiased estimate of the sketch-based part of the admission pane / decay. */
@@ -153,8 +159,7 @@ final class EngineMerge {
       }
       entries.add(entry);
     }
-    int tracking = mine.trackingDecay;
-    entries.sort(Comparator.comparingDouble((Entry e) -> e.decays[tracking]).reversed());
+    entries.sort(Comparator.comparingDouble((Entry e) -> e.rank).reversed());
     int keep = Math.min(entries.size(), mine.capacity);
     long evicted = entries.size() - keep;
     for (int s = 0; s < keep; s++) {
@@ -193,6 +198,7 @@ final class EngineMerge {
       for (int d = 0; d < mine.decayCount; d++) {
         mine.decays[mine.decayIndex(s, d)] = e.decays[d];
       }
+      mine.rank[s] = e.rank;
       System.arraycopy(e.admissionPane, 0, mine.admissionPane, s * mine.windowCount, mine.windowCount);
       System.arraycopy(e.admissionError, 0, mine.admissionError, s * mine.decayCount, mine.decayCount);
       System.arraycopy(e.bias, 0, mine.admissionBias, s * mine.horizonCount, mine.horizonCount);
@@ -249,6 +255,9 @@ final class EngineMerge {
       } else {
         double factor = scale == null ? 1.0 : scale[state.index];
         e.decays[state.kindOrdinal] = table.decays[table.decayIndex(s, state.kindOrdinal)] * factor;
+        if (state.kindOrdinal == table.trackingDecay) {
+          e.rank = table.rank[s] * factor;
+        }
         e.admissionError[state.kindOrdinal] = table.admissionError[s * table.decayCount + state.kindOrdinal] * factor;
         e.bias[state.index] = table.admissionBias[s * table.horizonCount + state.index] * factor;
         for (int k = 0; k < classes; k++) {
@@ -269,6 +278,7 @@ final class EngineMerge {
     for (int d = 0; d < e.decays.length; d++) {
       e.decays[d] += add.decays[d];
     }
+    e.rank += add.rank;
     for (int d = 0; d < e.admissionError.length; d++) {
       e.admissionError[d] += add.admissionError[d];
     }
@@ -297,7 +307,7 @@ final class EngineMerge {
    */
   private static void addUntracked(Entry e, TrackedTable side, PairEngine into, PairEngine sideEngine, boolean pair,
       double[] scale) {
-    double sideMin = side.minCount();
+    double sideMin = side.minRank();
     for (HorizonState state : into.horizons) {
       HorizonState source = sideEngine.horizons[state.index];
       CountMinSketch[] sketches = pair ? source.pairSketch : source.itemSketch;
@@ -321,7 +331,11 @@ final class EngineMerge {
         double factor = scale == null ? 1.0 : scale[state.index];
         double estimate = sketches[0].estimate(e.key);
         if (state.kindOrdinal == side.trackingDecay) {
-          estimate = Math.min(estimate, sideMin);
+          double rank = pair ? Math.min(sideEngine.pairRankSketch.estimate(e.key), sideMin) : Math.min(estimate, sideMin);
+          e.rank += rank * factor;
+          if (!pair) {
+            estimate = rank; // an item's rank is its tracking count
+          }
         }
         e.decays[state.kindOrdinal] += estimate * factor;
         e.admissionError[state.kindOrdinal] += estimate * factor;

@@ -51,6 +51,12 @@ public final class PairEngine {
   final TrackedTable items;
   final TrackedTable pairs;
   private final PairSampling sampling;
+  /**
+   * The pairs' rank weights in the tracking decay ({@link PairRanking}): a count-min sketch interleaved with the decays'
+   * pair sketches (one more column beside theirs, so a pair's update touches the same cache lines), rescaled with the
+   * tracking decay. Its estimates decide which untracked pair may enter the tracked table.
+   */
+  final CountMinSketch pairRankSketch;
   /** What a refresh keeps for the next one (see {@link RefreshMemory}). */
   final RefreshMemory refreshMemory;
 
@@ -82,8 +88,10 @@ public final class PairEngine {
     int decayCount = (int) specs.stream().filter(spec -> !spec.isWindow()).count();
     CountMinSketch[] decayItems = CountMinSketch.interleaved(decayCount, CountMinSketch.widthFor(config.itemEpsilon()),
         CountMinSketch.depthFor(config.itemDelta()), config.updateRule(), config.seed());
-    CountMinSketch[] decayPairs = CountMinSketch.interleaved(decayCount, CountMinSketch.widthFor(config.decayPairEpsilon()),
-        CountMinSketch.depthFor(config.pairDelta()), config.updateRule(), HorizonState.pairSeed(config));
+    CountMinSketch[] decayPairs = CountMinSketch.interleaved(decayCount + 1,
+        CountMinSketch.widthFor(config.decayPairEpsilon()), CountMinSketch.depthFor(config.pairDelta()), config.updateRule(),
+        HorizonState.pairSeed(config));
+    this.pairRankSketch = decayPairs[decayCount];
     for (int h = 0; h < specs.size(); h++) {
       HorizonSpec spec = specs.get(h);
       int ordinal = spec.isWindow() ? windows++ : decays++;
@@ -111,7 +119,7 @@ public final class PairEngine {
     this.weightOfHorizon = new double[horizons.length];
     this.eventPaneOfHorizon = new long[horizons.length];
     this.lateOfHorizon = new boolean[horizons.length];
-    this.keys = new BasketKeys(horizons[0].itemSketch[0].depth(), horizons[0].pairSketch[0].depth(), decayCount);
+    this.keys = new BasketKeys(horizons[0].itemSketch[0].depth(), horizons[0].pairSketch[0].depth(), decayCount + 1);
   }
 
   public EngineConfig config() {
@@ -141,6 +149,7 @@ public final class PairEngine {
     }
     basketClass = config.sizeClasses().classOf(distinct);
     int pairCount = keys.selectPairs(distinct, sampling);
+    double pairRank = keys.pairWeight * config.pairRanking().factor(distinct);
     double slots = (double) distinct * (distinct - 1);
     double weightedSlots = slots * keys.pairWeight;
     for (int h = 0; h < horizons.length; h++) {
@@ -157,14 +166,14 @@ public final class PairEngine {
       }
     }
     keys.hashRows(distinct, pairCount, horizons[0].itemSketch[0], horizons[0].pairSketch[0]);
-    addToSketches(distinct, pairCount);
+    addToSketches(distinct, pairCount, pairRank);
     for (int i = 0; i < distinct; i++) {
       long key = keys.itemHashes[i];
-      keys.itemSlots[i] = track(items, false, key, i, -1, i, keys.itemRows, i * keys.itemDepth, 1.0, eventMillis);
+      keys.itemSlots[i] = track(items, false, key, i, -1, i, keys.itemRows, i * keys.itemDepth, 1.0, 1.0, eventMillis);
     }
     for (int k = 0; k < pairCount; k++) {
       track(pairs, true, keys.pairKeys[k], keys.pairFirst[k], keys.pairSecond[k], k, keys.pairRows, k * keys.pairDepth,
-          keys.pairWeight, eventMillis);
+          keys.pairWeight, pairRank, eventMillis);
     }
     pairUpdates += pairCount;
   }
@@ -174,9 +183,9 @@ public final class PairEngine {
   /**
    * Adds the basket's items and pairs to every horizon's current sketches, sketch by sketch: the
    * counter updates of one sketch do not depend on each other, so the processor overlaps their cache
-   * misses.
+   * misses. The tracking decay's pass also adds each pair's rank weight {@code pairRank} to {@link #pairRankSketch}.
    */
-  private void addToSketches(int distinct, int pairCount) {
+  private void addToSketches(int distinct, int pairCount, double pairRank) {
     for (int h = 0; h < horizons.length; h++) {
       int pane = paneOfHorizon[h];
       if (pane < 0) {
@@ -203,6 +212,13 @@ public final class PairEngine {
         for (int k = 0; k < pairCount; k++) {
           pairEstimates[k] = pairSketch.addHashed(keys.pairRows, k * keys.pairDepth, pairAdd);
         }
+        if (h == trackingHorizon) {
+          double[] rankEstimates = keys.pairDecayEstimates[pairs.decayCount];
+          double rankAdd = pairRank * weight;
+          for (int k = 0; k < pairCount; k++) {
+            rankEstimates[k] = pairRankSketch.addHashed(keys.pairRows, k * keys.pairDepth, rankAdd);
+          }
+        }
       }
     }
   }
@@ -211,10 +227,11 @@ public final class PairEngine {
   /**
    * Counts one key (an item, {@code second < 0}, or the pair of basket items {@code first} and
    * {@code second}) in the tracked table, after the sketches have it; {@code scratch} is its index among
-   * the basket's items or pairs. Returns its slot, or −1 when it is not tracked.
+   * the basket's items or pairs. {@code multiplier} is its count weight, {@code rankMultiplier} its rank weight
+   * ({@link PairRanking}; equal for items). Returns its slot, or −1 when it is not tracked.
    */
   private int track(TrackedTable table, boolean pair, long key, int first, int second, int scratch, long[] rows,
-      int rowOffset, double multiplier, long eventMillis) {
+      int rowOffset, double multiplier, double rankMultiplier, long eventMillis) {
     int slot = table.find(key);
     if (slot >= 0) {
       for (int h = 0; h < horizons.length; h++) {
@@ -225,6 +242,9 @@ public final class PairEngine {
         HorizonState state = horizons[h];
         if (!state.isWindow()) {
           table.decays[table.decayIndex(slot, state.kindOrdinal)] += multiplier * weightOfHorizon[h];
+          if (h == trackingHorizon) {
+            table.rank[slot] += rankMultiplier * weightOfHorizon[h];
+          }
           if (table.classCount > 0) {
             table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, basketClass)] += weightOfHorizon[h];
           }
@@ -238,7 +258,7 @@ public final class PairEngine {
       return slot;
     }
     double[][] decayEstimates = pair ? keys.pairDecayEstimates : keys.itemDecayEstimates;
-    double add = multiplier * weightOfHorizon[trackingHorizon];
+    double add = rankMultiplier * weightOfHorizon[trackingHorizon];
     if (!table.isFull()) {
       // never full so far: nothing was ever evicted or refused, so this key was never seen: exact start
       slot = admit(table, pair, key, first, second, eventMillis);
@@ -255,6 +275,9 @@ public final class PairEngine {
           }
         } else {
           table.decays[table.decayIndex(slot, state.kindOrdinal)] = multiplier * weightOfHorizon[h];
+          if (h == trackingHorizon) {
+            table.rank[slot] = rankMultiplier * weightOfHorizon[h];
+          }
           if (table.classCount > 0) {
             table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, basketClass)] = weightOfHorizon[h];
           }
@@ -264,15 +287,20 @@ public final class PairEngine {
       return slot;
     }
     double estimate = decayEstimates[horizons[trackingHorizon].kindOrdinal][scratch];
+    double rankEstimate = pair ? decayEstimates[pairs.decayCount][scratch] : estimate;
     // the lazy heap's root key is a lower bound of the minimum: most rejections need no heap work
-    double min = estimate > table.minCountLowerBound() ? table.minCount() : table.minCountLowerBound();
-    if (!(estimate > min) && !burstHeavy(table, pair, decayEstimates[horizons[burstHorizon].kindOrdinal][scratch])) {
+    double min = rankEstimate > table.minRankLowerBound() ? table.minRank() : table.minRankLowerBound();
+    if (!(rankEstimate > min) && !burstHeavy(table, pair, decayEstimates[horizons[burstHorizon].kindOrdinal][scratch])) {
       table.rejections++;
       return -1;
     }
-    double start = Math.min(estimate, min + add);
+    double rankStart = Math.min(rankEstimate, min + add);
     slot = admit(table, pair, key, first, second, eventMillis);
-    initialiseFromSketches(table, slot, pair, rows, rowOffset, decayEstimates, scratch, start, estimate);
+    // an item's rank is its tracking count, which Space-Saving bounds by min + add; a pair's count is not bounded by a
+    // rank, so its tracking count starts from its estimate like the other decays
+    initialiseFromSketches(table, slot, pair, rows, rowOffset, decayEstimates, scratch, pair ? estimate : rankStart,
+        estimate);
+    table.rank[slot] = rankStart;
     table.placed(slot);
     return slot;
   }
@@ -414,6 +442,9 @@ public final class PairEngine {
     }
     state.itemSketch[0].scale(factor);
     state.pairSketch[0].scale(factor);
+    if (state.index == trackingHorizon) {
+      pairRankSketch.scale(factor);
+    }
     state.scaleBasketWeights(factor);
     items.scaleDecay(state.kindOrdinal, state.index, factor);
     pairs.scaleDecay(state.kindOrdinal, state.index, factor);
@@ -520,16 +551,16 @@ public final class PairEngine {
 
   /** Heap bytes of the state: sketches and tracked tables. Fixed by the configuration (labels aside). */
   public long stateBytes() {
-    long bytes = items.stateBytes(null) + pairs.stateBytes(items);
+    long bytes = items.stateBytes(null) + pairs.stateBytes(items) + pairRankSketch.stateBytes();
     for (HorizonState state : horizons) {
       bytes += state.stateBytes();
     }
     return bytes;
   }
 
-  /** The total weight W of the pair sketches in the tracking horizon (forward units), for tests. */
+  /** The total rank weight W of the pairs in the tracking decay (forward units; {@link PairRanking}), for tests. */
   double trackingPairWeight() {
-    return horizons[trackingHorizon].pairSketch[0].totalWeight();
+    return pairRankSketch.totalWeight();
   }
 
   // ---------------------------------------------------------------- refresh, copy, merge

@@ -24,7 +24,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
  * offset  bytes  field
  * ------  -----  -----------------------------------------------------------------
  *   0       4    MAGIC          0x50 0x50 0x53 0x4E ("PPSN")
- *   4       1    FORMAT_VERSION 3 (1 and 2 are still read, see below)
+ *   4       1    FORMAT_VERSION 4 (1 to 3 are still read, see below)
  *   5       3    reserved       0
  *   8       8    PAYLOAD_BYTES  length L of the payload (big-endian)
  *  16       4    PAYLOAD_CRC    CRC32C of the payload
@@ -35,7 +35,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *   config    horizonCount:int, per horizon {name:utf, kind:byte, lengthMillis:long, paneCount:int,
  *             halfLifeMillis:long}, burstHorizon:utf, trackingHalfLifeMillis:long, itemEpsilon, itemDelta, pairEpsilon,
  *             pairDelta, decayPairEpsilon:double, trackedPairCapacity, trackedItemCapacity, maxPairsPerBasket:int,
- *             updateRule:byte, seed:long, sizeClasses {count:int, lowerBound:int[count]}
+ *             updateRule:byte, seed:long, sizeClasses {count:int, lowerBound:int[count]}, pairRanking:byte
  *   counters  watermarkMillis, baskets, pairUpdates, expiredWindowUpdates, cappedBaskets,
  *             pairsSkippedByCap:long
  *   horizons  per horizon {newestPane:long, landmarkMillis:long, per pane {paneOfSlot:long,
@@ -43,13 +43,21 @@ import org.pairpulse.sketch.stats.SizeClasses;
  *             classItems:double[classes], classPairSlots:double[classes], classWeightedSlots:double[classes],
  *             item sketch {total:double, counters:double[width*depth]},
  *             pair sketch {same}}}
+ *   pair rank sketch {total:double, counters:double[width*depth]} (see {@link PairRanking})
  *   tables    items then pairs, each {size:int, admissions, evictions, rejections:long, per slot
  *             {key:long, labelA:nullable-utf, labelB:nullable-utf, hashA, hashB, admittedAtMillis:long,
  *             panes:int[window panes], decays:double[decays], admissionPane:long[windows], admissionError:double[decays],
  *             admissionBias:double[horizons], items only: classPanes:int[window panes * classes],
- *             classDecays:double[decays * classes]}}
+ *             classDecays:double[decays * classes], rank:double}}
  *   (horizons here include the internal tracking decay, written last)
  * </pre>
+ *
+ * <h2>Format 3</h2>
+ * The same without the pair ranking, the pair rank sketch and the slots' ranks (pairs were ranked by their counts). It
+ * reads into an engine with the default ranking ({@link PairRanking#FRACTIONAL}): the rank sketch starts as a copy of
+ * the tracking decay's pair sketch and each slot's rank as its tracking count. A count is at least the fractional rank
+ * weight, so these are upper bounds, which is all Space-Saving needs; the restored ranks are high for a while, and
+ * fade with the tracking decay.
  *
  * <h2>Format 2</h2>
  * The same without classWeightedSlots (Q_c, the pair slots times the pair cap's step). It is read with Q_c = K_c, as
@@ -69,7 +77,9 @@ import org.pairpulse.sketch.stats.SizeClasses;
  */
 public final class Snapshots {
   static final int MAGIC = 0x5050_534E;
-  static final byte FORMAT_VERSION = 3;
+  static final byte FORMAT_VERSION = 4;
+  /** The format before the pair ranking (pairs ranked by count), still read. */
+  static final byte FORMAT_VERSION_3 = 3;
   /** The format before the pair-cap steps per size class (Q_c), still read. */
   static final byte FORMAT_VERSION_2 = 2;
   /** The format before basket-size classes, still read. */
@@ -116,6 +126,7 @@ public final class Snapshots {
           state.pairSketch[p].writeCounters(out);
         }
       }
+      engine.pairRankSketch.writeCounters(out);
       writeTable(out, engine.items);
       writeTable(out, engine.pairs);
       out.flush();
@@ -143,12 +154,13 @@ public final class Snapshots {
       throw new SnapshotFormatException(String.format("not a pairpulse snapshot (magic 0x%08X, expected 0x%08X)", magic, MAGIC));
     }
     byte version = snapshot[OFFSET_VERSION];
-    if (version != FORMAT_VERSION && version != FORMAT_VERSION_2 && version != FORMAT_VERSION_1) {
+    if (version < FORMAT_VERSION_1 || version > FORMAT_VERSION) {
       throw new SnapshotFormatException("snapshot format version " + version + " is not supported; this build reads versions "
           + FORMAT_VERSION_1 + " to " + FORMAT_VERSION);
     }
     boolean classed = version != FORMAT_VERSION_1;
-    boolean weightedSlots = version == FORMAT_VERSION;
+    boolean weightedSlots = version >= FORMAT_VERSION_3;
+    boolean ranked = version >= FORMAT_VERSION;
     long payloadBytes = header.getLong(OFFSET_PAYLOAD_BYTES);
     if (payloadBytes != snapshot.length - HEADER_BYTES) {
       throw new SnapshotFormatException("snapshot truncated or padded: header says " + payloadBytes
@@ -163,7 +175,7 @@ public final class Snapshots {
     }
     try {
       DataInputStream in = new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES));
-      PairEngine engine = new PairEngine(readConfig(in, classed));
+      PairEngine engine = new PairEngine(readConfig(in, version));
       engine.watermarkMillis = in.readLong();
       engine.baskets = in.readLong();
       engine.pairUpdates = in.readLong();
@@ -197,8 +209,13 @@ public final class Snapshots {
           state.pairSketch[p].readCounters(in);
         }
       }
-      readTable(in, engine.items, classed);
-      readTable(in, engine.pairs, classed);
+      if (ranked) {
+        engine.pairRankSketch.readCounters(in);
+      } else { // format 3 and before: counts were the ranks (upper bounds of the fractional ones)
+        engine.pairRankSketch.merge(engine.horizons[engine.trackingHorizon].pairSketch[0]);
+      }
+      readTable(in, engine.items, classed, ranked);
+      readTable(in, engine.pairs, classed, ranked);
       if (in.available() != 0) {
         throw new SnapshotFormatException("snapshot has " + in.available() + " unread bytes after the state");
       }
@@ -215,7 +232,7 @@ public final class Snapshots {
     read(snapshot); // validates fully first
     try {
       return readConfig(new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES)),
-          snapshot[OFFSET_VERSION] != FORMAT_VERSION_1);
+          snapshot[OFFSET_VERSION]);
     } catch (IOException e) {
       throw new SnapshotFormatException("snapshot configuration unreadable", e);
     }
@@ -247,9 +264,11 @@ public final class Snapshots {
     for (int c = 0; c < classes.count(); c++) {
       out.writeInt(classes.lowerBound(c));
     }
+    out.writeByte(config.pairRanking().ordinal());
   }
 
-  private static EngineConfig readConfig(DataInputStream in, boolean classed) throws IOException {
+  private static EngineConfig readConfig(DataInputStream in, byte version) throws IOException {
+    boolean classed = version != FORMAT_VERSION_1;
     int count = in.readInt();
     if (count < 1 || count > 64) {
       throw new SnapshotFormatException("snapshot names " + count + " horizons");
@@ -290,8 +309,16 @@ public final class Snapshots {
       }
       classes = SizeClasses.of(bounds);
     }
+    PairRanking ranking = PairRanking.FRACTIONAL; // format 3 and before: read into the default (see the class comment)
+    if (version >= FORMAT_VERSION) {
+      int ordinal = in.readByte();
+      if (ordinal < 0 || ordinal >= PairRanking.values().length) {
+        throw new SnapshotFormatException("snapshot has unknown pair ranking " + ordinal);
+      }
+      ranking = PairRanking.values()[ordinal];
+    }
     return new EngineConfig(horizons, burst, trackingHalfLifeMillis, itemEpsilon, itemDelta, pairEpsilon, pairDelta,
-        decayPairEpsilon, pairCapacity, itemCapacity, maxPairs, UpdateRule.values()[rule], seed, classes);
+        decayPairEpsilon, pairCapacity, itemCapacity, maxPairs, UpdateRule.values()[rule], seed, classes, ranking);
   }
 
   private static void writeTable(DataOutputStream out, TrackedTable table) throws IOException {
@@ -331,10 +358,12 @@ public final class Snapshots {
           out.writeDouble(table.classDecays[table.classDecayIndex(s, d, k)]);
         }
       }
+      out.writeDouble(table.rank[s]);
     }
   }
 
-  private static void readTable(DataInputStream in, TrackedTable table, boolean classed) throws IOException {
+  private static void readTable(DataInputStream in, TrackedTable table, boolean classed, boolean ranked)
+      throws IOException {
     int size = in.readInt();
     if (size < 0 || size > table.capacity) {
       throw new SnapshotFormatException("snapshot table holds " + size + " keys, capacity is " + table.capacity);
@@ -374,6 +403,7 @@ public final class Snapshots {
           table.classDecays[table.classDecayIndex(s, d, k)] = in.readDouble();
         }
       }
+      table.rank[s] = ranked ? in.readDouble() : table.decays[table.decayIndex(s, table.trackingDecay)];
     }
     table.rebuild(size);
   }

@@ -5,7 +5,7 @@ import java.util.Arrays;
 
 /**
  * A bounded table of tracked keys (items or pairs) with counts per window pane and per decay, ranked
- * by a Space-Saving min-heap on one decay (the internal tracking decay).
+ * by a Space-Saving min-heap on a rank weight decayed like the internal tracking decay.
  *
  * <h2>Layout</h2>
  * <pre>
@@ -28,26 +28,28 @@ import java.util.Arrays;
  *                                       class k (since admission; the admission pane's start, an estimate, has
  *                                       no class). Beside each other per slot and pane, pane-major like panes
  *   classDecays[classDecayIndex(s, d, k)] items only: the same for decay d (forward units)
+ *   rank[s]     the key's Space-Saving rank weight in the tracking decay (forward units): for items its tracking
+ *               count; for pairs each occurrence weighs as {@link PairRanking} says (see the engine)
  *   heap[i]     slot at heap position i of a 4-ary min-heap; heapPos[s] = i
- *   heapKey[i]  the tracking count of heap[i] when it was last placed: at most its current tracking
- *               count (counts only grow between rescales, which scale both alike). Kept beside the heap
+ *   heapKey[i]  the rank of heap[i] when it was last placed: at most its current rank
+ *               (ranks only grow between rescales, which scale both alike). Kept beside the heap
  *               positions so that a node's four children are compared within one cache line
  * </pre>
  *
  * <h2>Space-Saving with an admission test</h2>
  * The heap and the eviction rule are those of Space-Saving (Metwally, Agrawal, El Abbadi 2005), with
- * weighted increments. A key that is not tracked enters only if its count-min estimate exceeds the
- * smallest tracked count {@code m}, and then starts at {@code min(estimate, m + w)}. That start is an
- * upper bound of its true weight (an untracked key weighed at most {@code m} before this update, and the
- * estimate never undercounts), and the sum of tracked counts never exceeds the stream's total weight
- * {@code W}, so {@code m ≤ W / capacity} and every key heavier than {@code W / capacity} is tracked:
+ * weighted increments; the weights are rank weights ({@link #rank}). A key that is not tracked enters only if the
+ * count-min estimate of its rank weight exceeds the smallest tracked rank {@code m}, and then starts at
+ * {@code min(estimate, m + w)}. That start is an upper bound of its true rank weight (an untracked key weighed at most
+ * {@code m} before this update, and the estimate never undercounts), and the sum of tracked ranks never exceeds the
+ * stream's total rank weight {@code W}, so {@code m ≤ W / capacity} and every key heavier than {@code W / capacity} is tracked:
  * the Space-Saving guarantee. The test only skips keys that could not have displaced the minimum, so it
  * saves the heap work without weakening the guarantee.
  *
  * <h2>A lazy heap</h2>
- * Counts only grow, so a slot's heap key may lag behind its count without breaking the one property the
- * heap must give, the minimum: {@link #minCount()} refreshes the root's key and sifts it down until the
- * root's key equals its count; then it is at most every key, and every key at most its count. An
+ * Ranks only grow, so a slot's heap key may lag behind its rank without breaking the one property the
+ * heap must give, the minimum: {@link #minRank()} refreshes the root's key and sifts it down until the
+ * root's key equals its rank; then it is at most every key, and every key at most its rank. An
  * increment therefore costs nothing here; the heap work is paid only when the minimum is asked for.
  *
  * <p>The engine fills cells at admission; this class keeps the structure consistent. Not thread-safe.
@@ -76,7 +78,9 @@ final class TrackedTable {
   final int classCount;
   final int[] classPanes;
   final double[] classDecays;
-  /** Copy of each slot's tracking cell, kept dense so the heap's comparisons stay in cache. */
+  /** Per slot: the Space-Saving rank weight (forward units of the tracking decay). */
+  final double[] rank;
+  /** Copy of each slot's rank, kept dense so the heap's comparisons stay in cache. */
   private final double[] heapKey;
 
   private final int[] heap;
@@ -118,6 +122,7 @@ final class TrackedTable {
     Arrays.fill(admissionPane, Long.MIN_VALUE); // "counted exactly from its first occurrence" until set
     this.admissionError = new double[capacity * Math.max(decayCount, 1)];
     this.heapKey = new double[capacity];
+    this.rank = new double[capacity];
     this.heap = new int[capacity];
     this.heapPos = new int[capacity];
     this.index = new LongIntHashMap(capacity, 0.5); // low load: evictions remove keys often, and removal shifts clusters
@@ -168,26 +173,26 @@ final class TrackedTable {
     Arrays.fill(classDecays, from, from + decayCount * classCount, 0.0);
   }
 
-  /** The tracking count of {@code slot}. */
-  double count(int slot) {
-    return decays[decayIndex(slot, trackingDecay)];
+  /** The rank weight of {@code slot}. */
+  double rank(int slot) {
+    return rank[slot];
   }
 
   /**
-   * A lower bound of the smallest tracking count, without any heap work: the root's heap key (0 when
+   * A lower bound of the smallest rank, without any heap work: the root's heap key (0 when
    * empty). A key whose estimate does not exceed it cannot exceed the minimum either.
    */
-  double minCountLowerBound() {
+  double minRankLowerBound() {
     return size == 0 ? 0 : heapKey[0];
   }
 
-  /** The smallest tracking count (0 when empty); brings the lazy heap's root up to date first. */
-  double minCount() {
+  /** The smallest rank (0 when empty); brings the lazy heap's root up to date first. */
+  double minRank() {
     if (size == 0) {
       return 0;
     }
     while (true) {
-      double actual = count(heap[0]);
+      double actual = rank(heap[0]);
       if (actual == heapKey[0]) {
         return actual;
       }
@@ -217,7 +222,7 @@ final class TrackedTable {
         everUsed = slot + 1;
       }
     } else {
-      minCount(); // the root must be the true minimum
+      minRank(); // the root must be the true minimum
       slot = heap[0];
       index.remove(keys[slot]);
       evictions++;
@@ -243,6 +248,7 @@ final class TrackedTable {
     for (int d = 0; d < decayCount; d++) {
       decays[decayIndex(slot, d)] = 0.0;
     }
+    rank[slot] = 0.0;
     if (windowCount > 0) {
       Arrays.fill(admissionPane, slot * windowCount, slot * windowCount + windowCount, Long.MIN_VALUE);
     }
@@ -258,10 +264,10 @@ final class TrackedTable {
     }
   }
 
-  /** Restores heap order after {@code slot}'s tracking count was set at admission. */
+  /** Restores heap order after {@code slot}'s rank was set at admission. */
   void placed(int slot) {
     int pos = heapPos[slot];
-    heapKey[pos] = count(slot);
+    heapKey[pos] = rank(slot);
     siftUp(pos);
     siftDown(heapPos[slot]);
   }
@@ -280,7 +286,7 @@ final class TrackedTable {
     panes[index] = (int) Math.min((long) panes[index] + (long) weight, Integer.MAX_VALUE);
   }
 
-  /** Multiplies decay {@code decay}'s counts, admission errors and biases by {@code factor} (a rescale). */
+  /** Multiplies decay {@code decay}'s counts, admission errors and biases (and the ranks, for the tracking decay) by {@code factor} (a rescale). */
   void scaleDecay(int decay, int horizon, double factor) {
     for (int s = 0; s < size; s++) {
       decays[decayIndex(s, decay)] *= factor;
@@ -293,6 +299,7 @@ final class TrackedTable {
     if (decay == trackingDecay) {
       for (int i = 0; i < size; i++) {
         heapKey[i] *= factor;
+        rank[i] *= factor;
       }
     }
   }
@@ -305,7 +312,7 @@ final class TrackedTable {
     for (int s = 0; s < size; s++) {
       heap[s] = s;
       heapPos[s] = s;
-      heapKey[s] = count(s);
+      heapKey[s] = rank(s);
       index.put(keys[s], s);
     }
     for (int i = (size - 2) / 4; i >= 0; i--) {
@@ -401,7 +408,7 @@ final class TrackedTable {
    */
   boolean heapValid() {
     for (int i = 0; i < size; i++) {
-      if ((i > 0 && heapKey[(i - 1) >>> 2] > heapKey[i]) || heapKey[i] > count(heap[i])) {
+      if ((i > 0 && heapKey[(i - 1) >>> 2] > heapKey[i]) || heapKey[i] > rank(heap[i])) {
         return false;
       }
     }

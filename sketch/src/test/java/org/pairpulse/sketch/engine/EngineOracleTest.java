@@ -100,16 +100,23 @@ class EngineOracleTest {
     assertTrue(share <= allowedFailureShare, what + ": lower bound above the truth for " + share + " of keys");
   }
 
-  @Test
-  void spaceSavingGuaranteeEveryPairAboveWOverCapacityIsTracked() {
+  /**
+   * Space-Saving's guarantee (Metwally, Agrawal, El Abbadi 2005, Theorem on weighted increments) on the rank weights:
+   * under the default fractional ranking every pair whose rank weight (1/(k − 1) per occurrence in a basket of k items,
+   * recomputed by the oracle) exceeds W_rank / capacity is tracked; under the count ranking, every pair whose count
+   * exceeds W / capacity.
+   */
+  @org.junit.jupiter.params.ParameterizedTest
+  @org.junit.jupiter.params.provider.EnumSource(PairRanking.class)
+  void spaceSavingGuaranteeEveryPairAboveWOverCapacityIsTracked(PairRanking ranking) {
     int capacity = 128;
     EngineConfig config = EngineConfig.builder().trackedPairCapacity(capacity).trackedItemCapacity(64)
-        .pairError(0.005, 0.02).build();
+        .pairError(0.005, 0.02).pairRanking(ranking).build();
     PairEngine engine = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
     feed(engine, oracle, new Streams(11, 1_000, 1.1), 30_000, 6, 20);
     HorizonSpec tracking = config.trackingSpec(); // the internal decay that ranks tracked keys
-    Map<String, Double> pairWeights = oracle.pairCounts(tracking);
+    Map<String, Double> pairWeights = ranking == PairRanking.COUNT ? oracle.pairCounts(tracking) : oracle.pairRanks(tracking);
     double total = pairWeights.values().stream().mapToDouble(Double::doubleValue).sum();
     double threshold = total / capacity;
     int heavy = 0;

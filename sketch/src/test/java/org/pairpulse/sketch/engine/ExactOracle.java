@@ -80,6 +80,26 @@ final class ExactOracle {
     return counts;
   }
 
+  /**
+   * Pair rank weights keyed "a|b" under the fractional ranking: each item of a basket of k distinct items spreads one
+   * unit over its k − 1 partners, so a pair occurrence weighs 1/(k − 1) (Newman 2001's collaboration weight), times the
+   * basket's weight in {@code h}. For baskets under the pair cap.
+   */
+  Map<String, Double> pairRanks(HorizonSpec h) {
+    Map<String, Double> ranks = new HashMap<>();
+    for (Basket b : baskets) {
+      double w = weight(h, b.eventMillis);
+      List<String> items = b.items;
+      double share = items.size() > 2 ? w / (items.size() - 1) : w;
+      for (int i = 0; w > 0 && i < items.size(); i++) {
+        for (int j = i + 1; j < items.size(); j++) {
+          ranks.merge(items.get(i) + "|" + items.get(j), share, Double::sum);
+        }
+      }
+    }
+    return ranks;
+  }
+
   static String[] split(String pairKey) {
     return pairKey.split("\\|", 2);
   }

@@ -103,20 +103,39 @@ class SnapshotTest {
   }
 
   /**
-   * Format compatibility: the version-3 snapshot stored in the repository must still read, with the same answers and
-   * the same bytes; the version-2 one (before the pair-cap steps per size class) must still read, with the same counts
+   * Format compatibility: the version-4 snapshot stored in the repository must still read, with the same answers and
+   * the same bytes; the version-3 one (pairs ranked by count) must still read, its ranks the tracking counts; the version-2 one (before the pair-cap steps per size class) must still read, with the same counts
    * and Q_c = K_c (no basket of the fixture is above the pair cap, so that is also the truth); the version-1 one (before basket-size classes) must still read, with the same counts, under the
    * default size classes, its baskets unclassed (so its horizons publish textbook measures).
    */
   @Test
   void storedFixturesStillRead() throws IOException {
-    byte[] stored = fixture("fixture-v3.ppsn");
+    byte[] stored = fixture("fixture-v4.ppsn");
     PairEngine fromFile = Snapshots.read(stored);
     PairEngine fresh = fixtureEngine();
     assertEquals(fresh.basketCount("day"), fromFile.basketCount("day"));
     assertEquals(fresh.pairCount("tea", "scone", "day"), fromFile.pairCount("tea", "scone", "day"));
     assertEquals(fresh.pairCount("tea", "scone", "recent"), fromFile.pairCount("tea", "scone", "recent"));
-    assertArrayEquals(stored, Snapshots.write(fresh), "format v3 changed: bump FORMAT_VERSION and keep a reader for v3");
+    assertArrayEquals(stored, Snapshots.write(fresh), "format v4 changed: bump FORMAT_VERSION and keep a reader for v4");
+
+    // format 3 ranked pairs by count: it reads under the fractional ranking with the counts as ranks (upper bounds)
+    PairEngine fromVersionThree = Snapshots.read(fixture("fixture-v3.ppsn"));
+    assertEquals(fixtureConfig(), fromVersionThree.config(), "format 3 reads under the default ranking");
+    assertEquals(fresh.pairCount("tea", "scone", "day"), fromVersionThree.pairCount("tea", "scone", "day"));
+    assertEquals(fresh.pairCount("tea", "scone", "recent"), fromVersionThree.pairCount("tea", "scone", "recent"));
+    TrackedTable restored = fromVersionThree.pairs;
+    boolean someRankAbove = false;
+    for (int s = 0; s < restored.size(); s++) {
+      int t = fresh.pairs.find(restored.keys[s]);
+      assertTrue(t >= 0, "the same pairs are tracked");
+      assertEquals(restored.decays[restored.decayIndex(s, restored.trackingDecay)], restored.rank(s),
+          "a format-3 rank is the tracking count");
+      assertTrue(restored.rank(s) >= fresh.pairs.rank(t) - 1e-12, "a count bounds the fractional rank from above");
+      someRankAbove |= restored.rank(s) > fresh.pairs.rank(t) + 1e-12;
+    }
+    assertTrue(someRankAbove, "the fixture's three-item baskets rank their pairs at 1/2: counts are above");
+    assertEquals(fromVersionThree.horizons[fromVersionThree.trackingHorizon].pairSketch[0].totalWeight(),
+        fromVersionThree.pairRankSketch.totalWeight(), "the rank sketch starts as the tracking decay's pair sketch");
 
     PairEngine fromVersionTwo = Snapshots.read(fixture("fixture-v2.ppsn"));
     assertEquals(fixtureConfig(), fromVersionTwo.config());
@@ -124,7 +143,8 @@ class SnapshotTest {
     for (HorizonState state : fromVersionTwo.horizons) {
       assertArrayEquals(state.classPairSlots, state.classWeightedSlots, "format 2 reads with Q_c = K_c");
     }
-    assertArrayEquals(stored, Snapshots.write(fromVersionTwo), "a version-2 state writes as today's");
+    assertArrayEquals(Snapshots.write(Snapshots.read(fixture("fixture-v3.ppsn"))), Snapshots.write(fromVersionTwo),
+        "a version-2 state writes as a version-3 one read today");
 
     PairEngine fromVersionOne = Snapshots.read(fixture("fixture-v1.ppsn"));
     assertEquals(fixtureConfig().toBuilder().sizeClasses(SizeClasses.defaults()).build(), fromVersionOne.config(),
@@ -194,9 +214,9 @@ class SnapshotTest {
     assertEquals(union.stats().baskets(), merged.stats().baskets());
     assertEquals(union.stats().pairUpdates(), merged.stats().pairUpdates());
 
-    // tracked table: the mergeable-summary guarantee and upper bounds on the union's exact counts
+    // tracked table: the mergeable-summary guarantee on the rank weights and upper bounds on the union's exact counts
     HorizonSpec tracking = config.trackingSpec();
-    Map<String, Double> weights = oracle.pairCounts(tracking);
+    Map<String, Double> weights = oracle.pairRanks(tracking); // the default ranking's weights (fractional)
     double total = weights.values().stream().mapToDouble(Double::doubleValue).sum();
     int heavy = 0;
     for (Map.Entry<String, Double> e : weights.entrySet()) {

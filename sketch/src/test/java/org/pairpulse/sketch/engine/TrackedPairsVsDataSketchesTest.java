@@ -27,7 +27,8 @@ class TrackedPairsVsDataSketchesTest {
     // a decay with a half-life far beyond the stream: weights stay 1 within 1e-6, like DataSketches' counts
     EngineConfig config = EngineConfig.builder()
         .horizons(List.of(HorizonSpec.decay("flat", Duration.ofDays(1_000_000))))
-        .trackingHorizon("flat").trackedPairCapacity(capacity).pairError(0.002, 0.02).build();
+        .trackingHorizon("flat").trackedPairCapacity(capacity).pairError(0.002, 0.02)
+        .pairRanking(PairRanking.COUNT).build(); // DataSketches ranks by count: compare like with like
     PairEngine engine = new PairEngine(config);
     LongsSketch reference = new LongsSketch(1024); // map size 1024: 0.75·1024 = 768 counters ≥ our 512
     Map<Long, Long> exact = new HashMap<>();

@@ -10,7 +10,7 @@ import org.junit.jupiter.api.Test;
 
 /**
  * The tracked table's lazy 4-ary heap against a slow, obvious oracle: a map of every tracked key's count,
- * whose minimum is found by scanning. Counts grow in place (as the engine adds to them) without telling
+ * whose minimum is found by scanning. Ranks grow in place (as the engine adds to them) without telling
  * the heap; the minimum asked for must still be the true one, and the evicted slot the true minimum's.
  */
 class TrackedTableTest {
@@ -26,10 +26,10 @@ class TrackedTableTest {
       int slot = table.find(key);
       if (slot >= 0) { // grow the count behind the heap's back, as the engine does
         double add = 1 + random.nextInt(5);
-        table.decays[table.decayIndex(slot, 1)] += add;
+        table.rank[slot] += add;
         oracle.merge(key, add, Double::sum);
       } else {
-        double min = table.minCount();
+        double min = table.minRank();
         assertEquals(oracle.isEmpty() ? 0.0 : oracle.values().stream().mapToDouble(Double::doubleValue).min().orElseThrow(),
             min, "minimum at step " + step);
         int before = table.size();
@@ -38,7 +38,7 @@ class TrackedTableTest {
           assertEquals(min, oracle.remove(findKeyNotIn(table, oracle)), "the evicted key held the minimum");
         }
         double start = min + 1 + random.nextInt(3);
-        table.decays[table.decayIndex(slot, 1)] = start;
+        table.rank[slot] = start;
         table.placed(slot);
         oracle.put(key, start);
       }
@@ -57,7 +57,7 @@ class TrackedTableTest {
     for (Map.Entry<Long, Double> e : oracle.entrySet()) {
       int slot = table.find(e.getKey());
       assertTrue(slot >= 0, "tracked " + e.getKey());
-      assertEquals(e.getValue(), table.count(slot), 1e-9);
+      assertEquals(e.getValue(), table.rank(slot), 1e-9);
     }
   }
 
