@@ -66,14 +66,16 @@ public final class PairEngine {
   long expiredWindowUpdates;
 
   /** The current basket's keys, row hashes and decay estimates (scratch, reused). */
-  private final BasketKeys keys;
+  final BasketKeys keys;
   /** Per horizon, the ring slot of the current basket's pane (0 for a decay, −1 if it left the window). */
-  private final int[] paneOfHorizon;
-  private final double[] weightOfHorizon;
-  private final long[] eventPaneOfHorizon;
-  private final boolean[] lateOfHorizon;
+  final int[] paneOfHorizon;
+  final double[] weightOfHorizon;
+  final long[] eventPaneOfHorizon;
+  final boolean[] lateOfHorizon;
   /** The current basket's size class (see {@link org.pairpulse.sketch.stats.SizeClasses}). */
-  private int basketClass;
+  int basketClass;
+  /** Counts the basket's keys in the tracked tables and admits new ones. */
+  private final TrackedUpdates tracked;
 
   public PairEngine(EngineConfig config) {
     this.config = Objects.requireNonNull(config, "config");
@@ -120,6 +122,7 @@ public final class PairEngine {
     this.eventPaneOfHorizon = new long[horizons.length];
     this.lateOfHorizon = new boolean[horizons.length];
     this.keys = new BasketKeys(horizons[0].itemSketch[0].depth(), horizons[0].pairSketch[0].depth(), decayCount + 1);
+    this.tracked = new TrackedUpdates(this);
   }
 
   public EngineConfig config() {
@@ -169,10 +172,10 @@ public final class PairEngine {
     addToSketches(distinct, pairCount, pairRank);
     for (int i = 0; i < distinct; i++) {
       long key = keys.itemHashes[i];
-      keys.itemSlots[i] = track(items, false, key, i, -1, i, keys.itemRows, i * keys.itemDepth, 1.0, 1.0, eventMillis);
+      keys.itemSlots[i] = tracked.track(items, false, key, i, -1, i, keys.itemRows, i * keys.itemDepth, 1.0, 1.0, eventMillis);
     }
     for (int k = 0; k < pairCount; k++) {
-      track(pairs, true, keys.pairKeys[k], keys.pairFirst[k], keys.pairSecond[k], k, keys.pairRows, k * keys.pairDepth,
+      tracked.track(pairs, true, keys.pairKeys[k], keys.pairFirst[k], keys.pairSecond[k], k, keys.pairRows, k * keys.pairDepth,
           keys.pairWeight, pairRank, eventMillis);
     }
     pairUpdates += pairCount;
@@ -223,166 +226,6 @@ public final class PairEngine {
     }
   }
 
-
-  /**
-   * Counts one key (an item, {@code second < 0}, or the pair of basket items {@code first} and
-   * {@code second}) in the tracked table, after the sketches have it; {@code scratch} is its index among
-   * the basket's items or pairs. {@code multiplier} is its count weight, {@code rankMultiplier} its rank weight
-   * ({@link PairRanking}; equal for items). Returns its slot, or −1 when it is not tracked.
-   */
-  private int track(TrackedTable table, boolean pair, long key, int first, int second, int scratch, long[] rows,
-      int rowOffset, double multiplier, double rankMultiplier, long eventMillis) {
-    int slot = table.find(key);
-    if (slot >= 0) {
-      for (int h = 0; h < horizons.length; h++) {
-        int pane = paneOfHorizon[h];
-        if (pane < 0) {
-          continue;
-        }
-        HorizonState state = horizons[h];
-        if (!state.isWindow()) {
-          table.decays[table.decayIndex(slot, state.kindOrdinal)] += multiplier * weightOfHorizon[h];
-          if (h == trackingHorizon) {
-            table.rank[slot] += rankMultiplier * weightOfHorizon[h];
-          }
-          if (table.classCount > 0) {
-            table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, basketClass)] += weightOfHorizon[h];
-          }
-        } else if (!(lateOfHorizon[h] && beforeAdmission(table, slot, h))) {
-          table.addToPane(slot, state.paneCellOffset + pane, multiplier);
-          if (table.classCount > 0) {
-            table.classPanes[table.classPaneIndex(slot, state.paneCellOffset + pane, basketClass)]++;
-          }
-        }
-      }
-      return slot;
-    }
-    double[][] decayEstimates = pair ? keys.pairDecayEstimates : keys.itemDecayEstimates;
-    double add = rankMultiplier * weightOfHorizon[trackingHorizon];
-    if (!table.isFull()) {
-      // never full so far: nothing was ever evicted or refused, so this key was never seen: exact start
-      slot = admit(table, pair, key, first, second, eventMillis);
-      for (int h = 0; h < horizons.length; h++) {
-        int pane = paneOfHorizon[h];
-        if (pane < 0) {
-          continue;
-        }
-        HorizonState state = horizons[h];
-        if (state.isWindow()) {
-          table.addToPane(slot, state.paneCellOffset + pane, multiplier);
-          if (table.classCount > 0) {
-            table.classPanes[table.classPaneIndex(slot, state.paneCellOffset + pane, basketClass)]++;
-          }
-        } else {
-          table.decays[table.decayIndex(slot, state.kindOrdinal)] = multiplier * weightOfHorizon[h];
-          if (h == trackingHorizon) {
-            table.rank[slot] = rankMultiplier * weightOfHorizon[h];
-          }
-          if (table.classCount > 0) {
-            table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, basketClass)] = weightOfHorizon[h];
-          }
-        }
-      }
-      table.placed(slot);
-      return slot;
-    }
-    double estimate = decayEstimates[horizons[trackingHorizon].kindOrdinal][scratch];
-    double rankEstimate = pair ? decayEstimates[pairs.decayCount][scratch] : estimate;
-    // the lazy heap's root key is a lower bound of the minimum: most rejections need no heap work
-    double min = rankEstimate > table.minRankLowerBound() ? table.minRank() : table.minRankLowerBound();
-    if (!(rankEstimate > min) && !burstHeavy(table, pair, decayEstimates[horizons[burstHorizon].kindOrdinal][scratch])) {
-      table.rejections++;
-      return -1;
-    }
-    double rankStart = Math.min(rankEstimate, min + add);
-    slot = admit(table, pair, key, first, second, eventMillis);
-    // an item's rank is its tracking count, which Space-Saving bounds by min + add; a pair's count is not bounded by a
-    // rank, so its tracking count starts from its estimate like the other decays
-    initialiseFromSketches(table, slot, pair, rows, rowOffset, decayEstimates, scratch, pair ? estimate : rankStart,
-        estimate);
-    table.rank[slot] = rankStart;
-    table.placed(slot);
-    return slot;
-  }
-
-  private int admit(TrackedTable table, boolean pair, long key, int first, int second, long eventMillis) {
-    if (!pair) {
-      return table.admit(key, keys.itemLabels[first], null, key, 0L, eventMillis);
-    }
-    long ha = keys.itemHashes[first];
-    long hb = keys.itemHashes[second];
-    return table.admit(key, canonical(first), canonical(second), ha, hb, eventMillis);
-  }
-
-  /**
-   * A pair's item label: the tracked item's own String when there is one (tracked just before, in this
-   * basket), so labels are held once.
-   */
-  private String canonical(int item) {
-    int slot = keys.itemSlots[item];
-    return slot >= 0 && items.keys[slot] == keys.itemHashes[item] ? items.labelA[slot] : keys.itemLabels[item];
-  }
-
-  /**
-   * True when the key weighs more than W / capacity in the burst horizon: it enters the table at once,
-   * although its long-horizon weight may not beat the minimum yet. Its starting rank is still at most
-   * {@code min + w}, so the Space-Saving bound on the tracking weights is kept.
-   */
-  private boolean burstHeavy(TrackedTable table, boolean pair, double burstEstimate) {
-    HorizonState burst = horizons[burstHorizon];
-    CountMinSketch sketch = pair ? burst.pairSketch[0] : burst.itemSketch[0];
-    return burstEstimate > sketch.totalWeight() / table.capacity;
-  }
-
-  /**
-   * A late basket (not in the newest pane) whose pane is older than the slot's admission pane: that
-   * pane is read from the sketches, which already hold it, so the tracked cell must not count it too.
-   */
-  private boolean beforeAdmission(TrackedTable table, int slot, int h) {
-    HorizonState state = horizons[h];
-    long admitted = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
-    return admitted != Long.MIN_VALUE && eventPaneOfHorizon[h] < admitted;
-  }
-
-  /**
-   * Fills a newly admitted slot from the count-min sketches (upper bounds) and records their error.
-   * Windows: only the newest pane's cell starts from its sketch estimate; older panes stay in the
-   * sketches and are read from there at query time (see {@link Counts}), so admission costs one
-   * estimate per horizon, not one per pane.
-   */
-  private void initialiseFromSketches(TrackedTable table, int slot, boolean pair, long[] rows, int rowOffset,
-      double[][] decayEstimates, int scratch, double trackingStart, double trackingEstimate) {
-    if (table.classCount > 0) { // the starting estimates have no class: class counts begin at 0
-      table.clearClassDecays(slot);
-    }
-    for (HorizonState state : horizons) {
-      CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
-      int biasIndex = slot * table.horizonCount + state.index;
-      if (state.isWindow()) {
-        int newest = state.slotOf(state.newestPane);
-        double estimate = sketches[newest].estimateHashed(rows, rowOffset);
-        table.panes[table.paneIndex(slot, state.paneCellOffset + newest)] = (int) Math.min(estimate, Integer.MAX_VALUE);
-        table.admissionPane[slot * table.windowCount + state.kindOrdinal] = state.newestPane;
-        if (table.classCount > 0) {
-          table.clearClassPane(slot, state.paneCellOffset + newest);
-        }
-        table.admissionBias[biasIndex] = estimate - sketches[newest].debiasedEstimateHashed(rows, rowOffset);
-      } else if (state.index == trackingHorizon) {
-        double lower = Math.min(trackingStart, Math.max(0, trackingEstimate - sketches[0].maxError()));
-        table.decays[table.decayIndex(slot, state.kindOrdinal)] = trackingStart;
-        table.admissionError[slot * table.decayCount + state.kindOrdinal] = trackingStart - lower;
-        table.admissionBias[biasIndex] = trackingStart - Math.min(trackingStart, sketches[0].debiasedEstimateHashed(rows, rowOffset));
-      } else {
-        // the estimate was read right after this key's update; the debiased value is read now, after the
-        // basket's other keys, which may have raised the same counters: cap it, so the point value stays
-        // within the bounds
-        double estimate = decayEstimates[state.kindOrdinal][scratch];
-        table.decays[table.decayIndex(slot, state.kindOrdinal)] = estimate;
-        table.admissionError[slot * table.decayCount + state.kindOrdinal] = Math.min(estimate, sketches[0].maxError());
-        table.admissionBias[biasIndex] = estimate - Math.min(estimate, sketches[0].debiasedEstimateHashed(rows, rowOffset));
-      }
-    }
-  }
 
   /** Chooses each horizon's cell and weight for a basket at {@code eventMillis}, advancing as needed. */
   private void placeInHorizons(long eventMillis) {
