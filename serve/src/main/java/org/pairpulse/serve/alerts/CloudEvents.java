@@ -6,8 +6,8 @@ import java.time.Instant;
 import java.util.LinkedHashMap;
 import java.util.Map;
 import org.pairpulse.serve.drift.AlertEvent;
-import org.pairpulse.serve.internal.Json;
-import org.pairpulse.serve.internal.Wire;
+import org.pairpulse.serve.wire.Json;
+import org.pairpulse.serve.wire.Wire;
 
 /**
  * Alert events as CloudEvents 1.0 in structured JSON mode (CloudEvents spec 1.0.2, JSON event

@@ -2,10 +2,7 @@ package org.pairpulse.serve.internal;
 
 import java.nio.ByteBuffer;
 import java.nio.charset.StandardCharsets;
-import java.util.LinkedHashMap;
-import java.util.Map;
 import org.eclipse.jetty.http.HttpHeader;
-import org.eclipse.jetty.http.HttpStatus;
 import org.eclipse.jetty.server.Request;
 import org.eclipse.jetty.server.Response;
 import org.eclipse.jetty.server.handler.ErrorHandler;
@@ -13,7 +10,7 @@ import org.eclipse.jetty.util.Callback;
 
 /**
  * Jetty's own errors (malformed requests, bad URIs, oversized headers) in serve's JSON shape
- * {@code {"error": reason, "status": code}}, never an HTML page or a stack trace.
+ * {@code {"error": reason, "status": code}} ({@link ErrorMapper#body}), never an HTML page or a stack trace.
  */
 final class JsonErrorHandler extends ErrorHandler {
   JsonErrorHandler() {
@@ -21,23 +18,11 @@ final class JsonErrorHandler extends ErrorHandler {
     setShowCauses(false);
   }
 
-  static byte[] body(int status, String reason) {
-    Map<String, Object> error = new LinkedHashMap<>();
-    error.put("error", reason == null || reason.isBlank() ? defaultReason(status) : reason);
-    error.put("status", status);
-    return Json.bytes(error);
-  }
-
-  private static String defaultReason(int status) {
-    String reason = HttpStatus.getMessage(status);
-    return reason == null ? "error" : reason.toLowerCase(java.util.Locale.ROOT);
-  }
-
   @Override
   protected void generateResponse(Request request, Response response, int code, String message, Throwable cause,
       Callback callback) {
     response.getHeaders().put(HttpHeader.CONTENT_TYPE, "application/json");
-    response.write(true, ByteBuffer.wrap(body(code, message == null ? null : safe(message))), callback);
+    response.write(true, ByteBuffer.wrap(ErrorMapper.body(code, message == null ? null : safe(message))), callback);
   }
 
   /** Jetty's reasons are short and fixed; cut anything long and drop control characters. */

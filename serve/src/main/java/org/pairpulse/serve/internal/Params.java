@@ -11,6 +11,7 @@ import java.util.Map;
 import java.util.Optional;
 import java.util.Set;
 import java.util.TreeSet;
+import org.pairpulse.serve.wire.Json;
 
 /**
  * A request's parameters, from the query string or a JSON body, checked against the names an

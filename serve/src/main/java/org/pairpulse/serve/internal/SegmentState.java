@@ -5,13 +5,17 @@ import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.trend.TrendHistory;
 import org.pairpulse.sketch.table.PairTableSource;
 
-/** One segment: its table source, its newest floored view, drift monitor and trend history. */
-public final class SegmentState {
+/**
+ * One segment: its table source, its newest floored view, drift monitor and trend history. Requests read the
+ * view (volatile); only the refresh loop writes it and the processed version.
+ */
+final class SegmentState {
   private final String name;
   private final PairTableSource source;
   private final DriftMonitor drift;
   private final TrendHistory trend;
   private volatile FlooredTable view;
+  /** The table version last processed (refresh loop only); -1 before the first. */
   long processedVersion = -1;
 
   SegmentState(String name, PairTableSource source, DriftMonitor drift, TrendHistory trend, FlooredTable initial) {
@@ -22,24 +26,24 @@ public final class SegmentState {
     this.view = initial;
   }
 
-  public String name() {
+  String name() {
     return name;
   }
 
-  public PairTableSource source() {
+  PairTableSource source() {
     return source;
   }
 
-  public DriftMonitor drift() {
+  DriftMonitor drift() {
     return drift;
   }
 
-  public TrendHistory trend() {
+  TrendHistory trend() {
     return trend;
   }
 
   /** The newest floored view: what requests answer from (never null). */
-  public FlooredTable view() {
+  FlooredTable view() {
     return view;
   }
 

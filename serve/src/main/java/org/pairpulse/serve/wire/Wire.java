@@ -1,4 +1,4 @@
-package org.pairpulse.serve.internal;
+package org.pairpulse.serve.wire;
 
 import java.time.Instant;
 import java.util.ArrayList;
@@ -9,9 +9,12 @@ import org.pairpulse.serve.drift.AlertEvent;
 import org.pairpulse.serve.drift.DriftEntry;
 import org.pairpulse.serve.drift.DriftFinding;
 import org.pairpulse.serve.drift.DriftReport;
+import org.pairpulse.serve.query.DirectedRules;
+import org.pairpulse.serve.query.TopItems;
 import org.pairpulse.serve.suggest.Evidence;
 import org.pairpulse.serve.suggest.Suggestion;
 import org.pairpulse.serve.suggest.SuggestionResult;
+import org.pairpulse.serve.trend.TrendHistory;
 import org.pairpulse.sketch.stats.Estimate;
 import org.pairpulse.sketch.stats.PairMeasures;
 import org.pairpulse.sketch.table.PairStats;
@@ -87,6 +90,43 @@ public final class Wire {
     out.put("bundle", m.isBundle());
     out.put("repelling", m.isRepelling());
     return out;
+  }
+
+  /** Rules in the shape of {@link #rule}. */
+  public static List<Object> rules(List<DirectedRules.Rule> rules) {
+    List<Object> out = new ArrayList<>(rules.size());
+    for (DirectedRules.Rule r : rules) {
+      out.add(rule(r.pair(), r.antecedent(), r.measureValue()));
+    }
+    return out;
+  }
+
+  /** Pairs in the shape of {@link #pair}. */
+  public static List<Object> pairs(List<PairStats> pairs) {
+    return pairs.stream().<Object>map(Wire::pair).toList();
+  }
+
+  /** Items with their counts and shares. */
+  public static List<Object> items(List<TopItems.ItemShare> items) {
+    List<Object> out = new ArrayList<>(items.size());
+    for (TopItems.ItemShare item : items) {
+      Map<String, Object> one = new LinkedHashMap<>();
+      one.put("item", item.item());
+      one.put("count", estimate(item.count()));
+      one.put("share", item.share());
+      out.add(one);
+    }
+    return out;
+  }
+
+  /** A trend series' members, added to {@code out}. */
+  public static void putSeries(Map<String, Object> out, TrendHistory.Series series) {
+    out.put("horizons", series.horizons());
+    out.put("points", series.versions().size());
+    out.put("versions", series.versions());
+    out.put("watermarkMillis", series.watermarkMillis());
+    out.put("publishedAtMillis", series.publishedAtMillis());
+    out.put("series", series.values());
   }
 
   public static Map<String, Object> suggestions(SuggestionResult r, String segment) {

@@ -1,4 +1,4 @@
-package org.pairpulse.serve.internal;
+package org.pairpulse.serve.wire;
 
 import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.core.JsonProcessingException;
