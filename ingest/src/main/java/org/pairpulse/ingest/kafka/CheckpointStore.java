@@ -42,7 +42,9 @@ interface CheckpointStore extends AutoCloseable {
   }
 
   /** False when checkpoints are not kept at all: a checkpoint then only marks the partitions clean. */
-  boolean keepsCheckpoints();
+  default boolean keepsCheckpoints() {
+    return true;
+  }
 
   /**
    * True when a checkpoint must take every dirty partition of the instance, not just those asked for (one
@@ -51,7 +53,10 @@ interface CheckpointStore extends AutoCloseable {
   boolean checkpointsWholeAssignment();
 
   /** The group's committed offsets of {@code partitions} (none for a store that commits nothing). */
-  Map<TopicPartition, OffsetAndMetadata> committed(Consumer<byte[], byte[]> consumer, Set<TopicPartition> partitions);
+  default Map<TopicPartition, OffsetAndMetadata> committed(Consumer<byte[], byte[]> consumer,
+      Set<TopicPartition> partitions) {
+    return consumer.committed(partitions);
+  }
 
   /** The newest checkpoint of {@code tp}; {@code committed} is its committed offset, or null. */
   Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed);

@@ -4,7 +4,6 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
-import java.util.Set;
 import org.apache.kafka.clients.consumer.Consumer;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
 import org.apache.kafka.common.KafkaException;
@@ -29,18 +28,8 @@ final class LocalCheckpoints implements CheckpointStore {
   }
 
   @Override
-  public boolean keepsCheckpoints() {
-    return true;
-  }
-
-  @Override
   public boolean checkpointsWholeAssignment() {
     return false;
-  }
-
-  @Override
-  public Map<TopicPartition, OffsetAndMetadata> committed(Consumer<byte[], byte[]> consumer, Set<TopicPartition> partitions) {
-    return consumer.committed(partitions);
   }
 
   @Override

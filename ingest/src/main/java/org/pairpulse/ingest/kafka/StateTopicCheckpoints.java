@@ -2,9 +2,7 @@ package org.pairpulse.ingest.kafka;
 
 import java.time.Duration;
 import java.util.List;
-import java.util.Map;
 import java.util.Optional;
-import java.util.Set;
 import java.util.concurrent.atomic.AtomicInteger;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.consumer.CloseOptions;
@@ -70,18 +68,8 @@ final class StateTopicCheckpoints implements CheckpointStore {
   }
 
   @Override
-  public boolean keepsCheckpoints() {
-    return true;
-  }
-
-  @Override
   public boolean checkpointsWholeAssignment() {
     return true;
-  }
-
-  @Override
-  public Map<TopicPartition, OffsetAndMetadata> committed(Consumer<byte[], byte[]> consumer, Set<TopicPartition> partitions) {
-    return consumer.committed(partitions);
   }
 
   @Override
