@@ -241,6 +241,17 @@ public final class IngestConfig extends AbstractConfig {
     return Store.valueOf(getString(CHECKPOINT_STORE).toUpperCase(Locale.ROOT));
   }
 
+  /** True when group mode publishes the whole group's table ({@code checkpoint.store=kafka} with {@code group.view}). */
+  public boolean groupViewEnabled() {
+    return store() == Store.KAFKA && getBoolean(GROUP_VIEW);
+  }
+
+  /** {@code group.view.stale.ms}, its 0 resolved to three times {@code checkpoint.interval.ms}. */
+  long groupViewStaleMs() {
+    long stale = getLong(GROUP_VIEW_STALE_MS);
+    return stale > 0 ? stale : 3 * getLong(CHECKPOINT_INTERVAL_MS);
+  }
+
   /** Limits of the decoder against {@code clock}. */
   public EventLimits eventLimits(EventClock clock) {
     return new EventLimits(getInt(MAX_BASKET_ITEMS), getInt(MAX_ID_CHARS), getLong(MAX_FUTURE_MS), getLong(MAX_PAST_MS),

@@ -18,6 +18,8 @@ import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.errors.ProducerFencedException;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
+import org.pairpulse.ingest.kafka.IngestConfig;
+import org.pairpulse.ingest.kafka.KafkaClientProperties;
 import org.pairpulse.serve.alerts.AlertLeadership;
 import org.pairpulse.serve.alerts.CloudEvents;
 import org.pairpulse.serve.drift.AlertEvent;
@@ -59,7 +61,7 @@ final class GroupAlerts implements AlertLeadership {
   private final io.micrometer.core.instrument.Counter failed;
 
   /**
-   * @param clientProps ingest's settings (for the client pass-through)
+   * @param ingest ingest's settings (for {@code bootstrap.servers} and the client pass-through)
    * @param owned the partitions this instance owns now
    * @param designated the partition whose owner leads
    * @param alertTopic the alerts topic; empty: events go to no topic (the state is published all the same)
@@ -67,16 +69,16 @@ final class GroupAlerts implements AlertLeadership {
    * @param registry where the deliveries to the alerts topic are counted ({@code pairpulse_alert_deliveries_total}
    *     with {@code sink="kafka"}, as the one-instance topic sink counts them)
    */
-  GroupAlerts(Map<String, Object> clientProps, String group, Supplier<java.util.Set<TopicPartition>> owned,
+  GroupAlerts(IngestConfig ingest, String group, Supplier<java.util.Set<TopicPartition>> owned,
       TopicPartition designated, String alertTopic, String stateTopic, io.micrometer.core.instrument.MeterRegistry registry) {
-    Map<String, Object> p = KafkaClientProperties.forClient(clientProps, "producer");
+    Map<String, Object> p = KafkaClientProperties.forClient(ingest, KafkaClientProperties.Kind.PRODUCER);
     p.put(ProducerConfig.CLIENT_ID_CONFIG, "pairpulse-alerts");
     p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, "pairpulse-" + group + "-alerts");
     p.put(ProducerConfig.ACKS_CONFIG, "all");
     p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
     p.put(ProducerConfig.MAX_BLOCK_MS_CONFIG, 60_000);
     this.producerProps = p;
-    Map<String, Object> c = KafkaClientProperties.forClient(clientProps, "consumer");
+    Map<String, Object> c = KafkaClientProperties.forClient(ingest, KafkaClientProperties.Kind.CONSUMER);
     c.remove(ConsumerConfig.GROUP_ID_CONFIG);
     c.remove(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG);
     c.put(ConsumerConfig.CLIENT_ID_CONFIG, "pairpulse-alert-state");

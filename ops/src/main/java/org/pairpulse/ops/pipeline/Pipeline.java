@@ -23,6 +23,7 @@ import org.apache.kafka.common.config.TopicConfig;
 import org.pairpulse.ingest.kafka.GroupCoverage;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ingest.kafka.Ingestor;
+import org.pairpulse.ingest.kafka.KafkaClientProperties;
 import org.pairpulse.ops.evaluation.EvaluationSettings;
 import org.pairpulse.ops.live.LiveEvaluation;
 import org.pairpulse.serve.GroupStatus;
@@ -213,7 +214,7 @@ public final class Pipeline implements AutoCloseable {
     LiveEvaluation evaluation = null;
     GroupAlerts groupAlerts = null;
     if (ingestor.groupViewEnabled()) {
-      groupAlerts = new GroupAlerts(settings.ingest(), ingestConfig.groupId(), ingestor::assignment,
+      groupAlerts = new GroupAlerts(ingestConfig, ingestConfig.groupId(), ingestor::assignment,
           GroupAlerts.designated(ingestConfig.topics()), settings.alertTopic(), alertStateTopic(ingestConfig),
           registry);
       GroupAlerts leader = groupAlerts;
@@ -235,7 +236,7 @@ public final class Pipeline implements AutoCloseable {
         builder.evaluation(evaluation);
       }
     } else if (settings.evaluates()) {
-      evaluation = new LiveEvaluation(KafkaClientProperties.forClient(settings.ingest(), "consumer"),
+      evaluation = new LiveEvaluation(KafkaClientProperties.forClient(ingestConfig, KafkaClientProperties.Kind.CONSUMER),
           ingestConfig.topics(), new EventDecoder(ingestConfig.eventLimits(wallClock)), ingestConfig.frontSettings(),
           settings.evaluation(), () -> served.get().view(ServeServer.ALL), registry, trial -> { });
       builder.evaluation(evaluation);
@@ -243,7 +244,7 @@ public final class Pipeline implements AutoCloseable {
     ServeServer server = null;
     try {
       if (!settings.alertTopic().isEmpty() && groupAlerts == null) {
-        builder.alertSink(new KafkaAlertSink(KafkaClientProperties.forClient(settings.ingest(), "producer"),
+        builder.alertSink(new KafkaAlertSink(KafkaClientProperties.forClient(ingestConfig, KafkaClientProperties.Kind.PRODUCER),
             settings.alertTopic(), registry));
       }
       server = builder.build().start();
@@ -263,12 +264,12 @@ public final class Pipeline implements AutoCloseable {
    * @throws IllegalStateException when ingest cannot start (the cause says why); close the pipeline then
    */
   public Pipeline startIngest() {
-    if (!settings.alertTopic().isEmpty() && settings.createAlertTopic()) {
-      createTopic(settings.ingest(), settings.alertTopic(), Map.of());
-    }
     IngestConfig ingestConfig = ingestConfig(settings);
+    if (!settings.alertTopic().isEmpty() && settings.createAlertTopic()) {
+      createTopic(ingestConfig, settings.alertTopic(), Map.of());
+    }
     if (ingestor.groupViewEnabled() && ingestConfig.getBoolean(IngestConfig.TOPICS_CREATE)) {
-      createTopic(settings.ingest(), alertStateTopic(ingestConfig),
+      createTopic(ingestConfig, alertStateTopic(ingestConfig),
           Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
     }
     ingestor.start();
@@ -299,8 +300,8 @@ public final class Pipeline implements AutoCloseable {
         c.oldestContributionAgeMillis());
   }
 
-  private static void createTopic(Map<String, Object> ingest, String topic, Map<String, String> configs) {
-    try (Admin admin = Admin.create(KafkaClientProperties.forClient(ingest, "admin"))) {
+  private static void createTopic(IngestConfig ingest, String topic, Map<String, String> configs) {
+    try (Admin admin = Admin.create(KafkaClientProperties.forClient(ingest, KafkaClientProperties.Kind.ADMIN))) {
       if (admin.listTopics().names().get(60, TimeUnit.SECONDS).contains(topic)) {
         return;
       }

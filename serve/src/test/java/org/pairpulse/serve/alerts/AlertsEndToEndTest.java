@@ -22,11 +22,11 @@ import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.ingest.broker.EmbeddedKafkaBroker;
 import org.pairpulse.serve.ServeConfig;
 import org.pairpulse.serve.ServeServer;
 import org.pairpulse.serve.drift.AlertEvent;
 import org.pairpulse.serve.fixtures.Tables;
-import org.pairpulse.serve.fixtures.TestBroker;
 import org.pairpulse.sketch.table.PairTable;
 import org.pairpulse.sketch.table.PairTableHolder;
 import org.pairpulse.sketch.time.ManualClock;
@@ -57,7 +57,7 @@ class AlertsEndToEndTest {
     hook.start();
     ManualClock alertClock = new ManualClock(1_772_409_600_000L);
     PairTableHolder tables = new PairTableHolder();
-    try (TestBroker broker = new TestBroker()) {
+    try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder().build().start()) {
       ServeConfig config = ServeConfig.defaults().with(ServeConfig.PORT, 0).with(ServeConfig.WATCH_MILLIS, 60_000)
           .with(ServeConfig.KAFKA_BOOTSTRAP, broker.bootstrapServers()).with(ServeConfig.KAFKA_TOPIC, "alerts-test")
           .with(ServeConfig.WEBHOOK_URL, "http://127.0.0.1:" + hook.getAddress().getPort() + "/alerts");
