@@ -44,12 +44,27 @@ public final class EventDecoder {
   static final String CE_TYPE = "ce_type";
   static final String CE_TIME = "ce_time";
 
+  /** Which JSON reader decodes: both read the same contract with the same dead-letter reasons. */
+  public enum JsonReader {
+    /** {@code JsonEventReader}, written for the contract's shapes. */
+    HAND_WRITTEN,
+    /** {@code JacksonEventReader}, on jackson-core's streaming parser. */
+    JACKSON
+  }
+
   private final EventLimits limits;
-  private final JsonEventReader reader;
+  private final EventReader reader;
 
   public EventDecoder(EventLimits limits) {
+    this(limits, JsonReader.HAND_WRITTEN);
+  }
+
+  public EventDecoder(EventLimits limits, JsonReader jsonReader) {
     this.limits = Objects.requireNonNull(limits, "limits");
-    this.reader = new JsonEventReader(limits);
+    this.reader = switch (Objects.requireNonNull(jsonReader, "jsonReader")) {
+      case HAND_WRITTEN -> new JsonEventReader(limits);
+      case JACKSON -> new JacksonEventReader(limits);
+    };
   }
 
   public EventLimits limits() {
@@ -72,7 +87,7 @@ public final class EventDecoder {
         if (type.startsWith("application/cloudevents")) {
           if (!type.startsWith("application/cloudevents+json")) {
             throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "structured CloudEvent format '"
-                + JsonEventReader.clip(type) + "' is not supported; use application/cloudevents+json");
+                + EventReader.clip(type) + "' is not supported; use application/cloudevents+json");
           }
           return reader.readRecord(value, 0, length(value), true);
         }
@@ -89,11 +104,11 @@ public final class EventDecoder {
   private BasketEvent decodeBinary(byte[] value, Headers headers, String specversion) throws InvalidEventException {
     if (!"1.0".equals(specversion)) {
       throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "CloudEvents specversion '"
-          + JsonEventReader.clip(specversion) + "' is not supported; expected 1.0");
+          + EventReader.clip(specversion) + "' is not supported; expected 1.0");
     }
     requireHeader(headers, CE_ID);
     requireHeader(headers, CE_SOURCE);
-    JsonEventReader.Shape shape = shapeOfType(requireHeader(headers, CE_TYPE));
+    EventReader.Shape shape = shapeOfType(requireHeader(headers, CE_TYPE));
     Header contentType = headers.lastHeader(CONTENT_TYPE);
     if (contentType != null) {
       requireJsonContentType(utf8(contentType));
@@ -114,14 +129,14 @@ public final class EventDecoder {
     return utf8(header);
   }
 
-  static JsonEventReader.Shape shapeOfType(String type) throws InvalidEventException {
+  static EventReader.Shape shapeOfType(String type) throws InvalidEventException {
     if (BASKET_TYPE.equals(type)) {
-      return JsonEventReader.Shape.BASKET;
+      return EventReader.Shape.BASKET;
     }
     if (LINE_ITEM_TYPE.equals(type)) {
-      return JsonEventReader.Shape.LINE_ITEM;
+      return EventReader.Shape.LINE_ITEM;
     }
-    throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "CloudEvent type '" + JsonEventReader.clip(type)
+    throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "CloudEvent type '" + EventReader.clip(type)
         + "' is not one of " + BASKET_TYPE + ", " + LINE_ITEM_TYPE);
   }
 
@@ -134,7 +149,7 @@ public final class EventDecoder {
     }
     if (!(type.equals("application/json") || type.equals("text/json") || type.endsWith("+json"))) {
       throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "data content type '"
-          + JsonEventReader.clip(contentType) + "' is not JSON");
+          + EventReader.clip(contentType) + "' is not JSON");
     }
   }
 

@@ -23,7 +23,7 @@ import java.util.Map;
  *
  * <p>Not thread-safe: one reader per decoding thread (it keeps scratch state).
  */
-final class JsonEventReader {
+final class JsonEventReader implements EventReader {
   /** Deepest nesting accepted inside unknown values; deeper input is {@code malformed}. */
   static final int MAX_DEPTH = 64;
 
@@ -62,9 +62,6 @@ final class JsonEventReader {
   private static final byte[] DATA_BASE64 = ascii("data_base64");
   private static final byte[] SUBJECT = ascii("subject");
 
-  /** What shape a payload must have. */
-  enum Shape { ANY, BASKET, LINE_ITEM }
-
   private final EventLimits limits;
   private final int[] valueAt = new int[KEY_CODES];
   private final CharsetDecoder utf8 = StandardCharsets.UTF_8.newDecoder()
@@ -86,8 +83,8 @@ final class JsonEventReader {
 
   // ------------------------------------------------------------------ entry points
 
-  /** A whole record: a plain event, or a structured-mode CloudEvent (by header or by its specversion key). */
-  BasketEvent readRecord(byte[] bytes, int from, int to, boolean structuredCloudEvent) throws InvalidEventException {
+  @Override
+  public BasketEvent readRecord(byte[] bytes, int from, int to, boolean structuredCloudEvent) throws InvalidEventException {
     begin(bytes, from, to);
     scanObject(0);
     expectEnd();
@@ -97,8 +94,8 @@ final class JsonEventReader {
     return readPlain(Shape.ANY, Long.MIN_VALUE);
   }
 
-  /** The data of a binary-mode CloudEvent: a plain event of {@code shape}, its time defaulting to {@code ceTime}. */
-  BasketEvent readData(byte[] bytes, Shape shape, long ceTimeMillis) throws InvalidEventException {
+  @Override
+  public BasketEvent readData(byte[] bytes, Shape shape, long ceTimeMillis) throws InvalidEventException {
     begin(bytes, 0, bytes.length);
     scanObject(0);
     expectEnd();
@@ -134,7 +131,7 @@ final class JsonEventReader {
     String specversion = requiredString(K_SPECVERSION, "specversion");
     if (!"1.0".equals(specversion)) {
       throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "CloudEvents specversion '"
-          + clip(specversion) + "' is not supported; expected 1.0");
+          + EventReader.clip(specversion) + "' is not supported; expected 1.0");
     }
     requiredString(K_ID, "id");
     requiredString(K_SOURCE, "source");
@@ -379,12 +376,12 @@ final class JsonEventReader {
       expect(':');
       skipWs();
       if (peek() != '"') {
-        throw new InvalidEventException(DeadLetterReason.WRONG_TYPE, "attribute '" + clip(key) + "' must be a string");
+        throw new InvalidEventException(DeadLetterReason.WRONG_TYPE, "attribute '" + EventReader.clip(key) + "' must be a string");
       }
       String value = readString();
       limits.checkId("attribute key", key);
       if (value.length() > limits.maxIdChars()) {
-        throw new InvalidEventException(DeadLetterReason.ID_TOO_LONG, "attribute '" + clip(key) + "' value has "
+        throw new InvalidEventException(DeadLetterReason.ID_TOO_LONG, "attribute '" + EventReader.clip(key) + "' value has "
             + value.length() + " chars; max.id.chars is " + limits.maxIdChars());
       }
       attributes.put(key, value);
@@ -903,10 +900,6 @@ final class JsonEventReader {
 
   private InvalidEventException malformed(String why) {
     return new InvalidEventException(DeadLetterReason.MALFORMED, "invalid JSON at byte " + pos + ": " + why);
-  }
-
-  static String clip(String s) {
-    return s.length() > 40 ? s.substring(0, 40) + "..." : s;
   }
 
   private static byte[] ascii(String s) {

@@ -29,14 +29,28 @@ import java.util.stream.Stream;
 import org.apache.kafka.common.header.Headers;
 import org.apache.kafka.common.header.internals.RecordHeaders;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.params.ParameterizedClass;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.Arguments;
+import org.junit.jupiter.params.provider.EnumSource;
 import org.junit.jupiter.params.provider.MethodSource;
 import org.pairpulse.sketch.time.ManualClock;
 
+/** Every check runs against each JSON reader ({@link EventDecoder.JsonReader}). */
+@ParameterizedClass
+@EnumSource(EventDecoder.JsonReader.class)
 class EventDecoderTest {
   static final long NOW = Instant.parse("2026-12-02T12:00:00Z").toEpochMilli();
-  final EventDecoder decoder = new EventDecoder(new EventLimits(20, 64, 86_400_000L, 365L * 86_400_000L, 4, new ManualClock(NOW)));
+  final EventDecoder decoder;
+
+  EventDecoderTest(EventDecoder.JsonReader reader) {
+    decoder = new EventDecoder(limits(), reader);
+  }
+
+  /** The test limits: 20 items, 64-char ids, 1 day ahead, 365 days back, 4 attributes. */
+  static EventLimits limits() {
+    return new EventLimits(20, 64, 86_400_000L, 365L * 86_400_000L, 4, new ManualClock(NOW));
+  }
 
   BasketEvent json(String text) throws InvalidEventException {
     return decoder.decode(text.getBytes(StandardCharsets.UTF_8), new RecordHeaders());
@@ -209,14 +223,14 @@ class EventDecoderTest {
       List<String> ids = new ArrayList<>();
       int size = 1 + random.nextInt(8);
       for (int k = 0; k < size; k++) {
-        String id = randomId(random);
+        String id = EventCorpus.randomId(random);
         ids.add(id);
         items.add(random.nextBoolean() ? id : Map.of("id", id, "qty", 1 + random.nextInt(5)));
       }
       if (random.nextBoolean()) {
         basket.put("extra", Map.of("list", List.of(1, "two", 3.5), "flag", false));
       }
-      basket.put("id", randomId(random));
+      basket.put("id", EventCorpus.randomId(random));
       basket.put("time", NOW - random.nextInt(1_000_000));
       basket.put("items", items);
       Basket decoded = (Basket) decoder.decode(mapper.writeValueAsBytes(basket), new RecordHeaders());
@@ -226,47 +240,13 @@ class EventDecoderTest {
     }
   }
 
-  private static String randomId(Random random) {
-    String alphabet = "abcXYZ019-_ é\"\\/\u00e9\u4e2d\ud83d\ude00\n";
-    StringBuilder out = new StringBuilder();
-    int length = 1 + random.nextInt(12);
-    while (out.length() < length) {
-      int i = random.nextInt(alphabet.length());
-      char c = alphabet.charAt(i);
-      if (Character.isHighSurrogate(c)) {
-        out.append(c).append(alphabet.charAt(i + 1));
-      } else if (!Character.isLowSurrogate(c)) {
-        out.append(c);
-      }
-    }
-    return out.toString();
-  }
-
-  private static final String PUNCTUATION = "{}[]\",:\\0-e.tfn ";
-
   /** No input, however broken, makes the decoder throw anything but InvalidEventException. */
   @Test
   void mutatedRecordsNeverEscapeAsOtherExceptions() {
-    String[] seeds = {
-        "{\"id\":\"o-1\",\"time\":\"2026-12-02T10:15:00Z\",\"items\":[\"a\",{\"id\":\"b\",\"qty\":2}],\"attributes\":{\"s\":\"p\"}}",
-        "{\"basket\":\"o-9\",\"time\":1796205600000,\"item\":{\"id\":\"tv\",\"qty\":1},\"end\":true}",
-        "{\"specversion\":\"1.0\",\"id\":\"e\",\"source\":\"/s\",\"type\":\"org.pairpulse.basket.v1\",\"time\":\"2026-12-02T11:00:00Z\","
-            + "\"data\":{\"id\":\"x\",\"items\":[\"\\u00e9\"]},\"data_base64\":\"e30=\"}"};
     Random random = new Random(7);
     int rejected = 0;
     for (int n = 0; n < 30_000; n++) {
-      byte[] bytes = seeds[n % seeds.length].getBytes(StandardCharsets.UTF_8);
-      int mutations = 1 + random.nextInt(3);
-      for (int m = 0; m < mutations; m++) {
-        switch (random.nextInt(3)) {
-          case 0 -> bytes[random.nextInt(bytes.length)] = (byte) random.nextInt(256);
-          case 1 -> bytes = java.util.Arrays.copyOf(bytes, random.nextInt(bytes.length));
-          default -> bytes[random.nextInt(bytes.length)] = (byte) PUNCTUATION.charAt(random.nextInt(PUNCTUATION.length()));
-        }
-        if (bytes.length == 0) {
-          break;
-        }
-      }
+      byte[] bytes = EventCorpus.mutate(EventCorpus.MUTATION_SEEDS.get(n % EventCorpus.MUTATION_SEEDS.size()), random);
       try {
         decoder.decode(bytes, new RecordHeaders());
       } catch (InvalidEventException e) {

@@ -1,0 +1,141 @@
+package org.pairpulse.ingest.event;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.ByteBuffer;
+import java.nio.charset.CharacterCodingException;
+import java.nio.charset.StandardCharsets;
+import java.util.ArrayList;
+import java.util.EnumMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Random;
+import java.util.function.Supplier;
+import org.apache.kafka.common.header.Headers;
+import org.apache.kafka.common.header.internals.RecordHeaders;
+import org.junit.jupiter.api.Test;
+
+/**
+ * The two JSON readers side by side: the hand-written {@code JsonEventReader} is the oracle of the Jackson-based
+ * {@code JacksonEventReader} on every record of {@link EventCorpus}, each sent as a plain record, as a structured
+ * CloudEvent (by header) and as the data of a binary-mode CloudEvent of either type. Both must return equal events or
+ * the same dead-letter reason. One deliberate difference: a record that is no UTF-8 is {@code malformed} for the Jackson
+ * reader whatever else is wrong with it, where the hand-written reader checks UTF-8 only in the strings it reads.
+ */
+class JsonReadersAgreeTest {
+  private final EventDecoder handWritten = new EventDecoder(EventDecoderTest.limits(), EventDecoder.JsonReader.HAND_WRITTEN);
+  private final EventDecoder jackson = new EventDecoder(EventDecoderTest.limits(), EventDecoder.JsonReader.JACKSON);
+
+  /** What a decoder made of a record: an event, or a reason (the detail text may differ). */
+  record Outcome(BasketEvent event, DeadLetterReason reason) {
+    static Outcome of(EventDecoder decoder, byte[] value, Headers headers) {
+      try {
+        return new Outcome(decoder.decode(value, headers), null);
+      } catch (InvalidEventException e) {
+        return new Outcome(null, e.reason());
+      }
+    }
+  }
+
+  @Test
+  void validEventsOfEveryShape() {
+    Map<DeadLetterReason, Integer> reasons = compare(utf8(EventCorpus.valid(3000, 11)));
+    assertTrue(reasons.get(null) > 3000, "the valid corpus decodes: " + reasons);
+  }
+
+  @Test
+  void poisonAndEdgeRecords() {
+    List<byte[]> records = utf8(EventCorpus.poison());
+    records.addAll(utf8(EventCorpus.edges()));
+    Map<DeadLetterReason, Integer> reasons = compare(records);
+    for (DeadLetterReason reason : List.of(DeadLetterReason.MALFORMED, DeadLetterReason.MISSING_FIELD,
+        DeadLetterReason.WRONG_TYPE, DeadLetterReason.EMPTY_BASKET, DeadLetterReason.OVERSIZED_BASKET,
+        DeadLetterReason.ID_TOO_LONG, DeadLetterReason.TIME_IN_FUTURE, DeadLetterReason.TIME_TOO_OLD,
+        DeadLetterReason.UNSUPPORTED_EVENT)) {
+      assertTrue(reasons.getOrDefault(reason, 0) > 0, "the corpus reaches " + reason + ": " + reasons);
+    }
+  }
+
+  @Test
+  void mutatedRecords() {
+    List<String> seeds = new ArrayList<>(EventCorpus.MUTATION_SEEDS);
+    seeds.addAll(EventCorpus.valid(40, 12));
+    Random random = new Random(13);
+    List<byte[]> records = new ArrayList<>();
+    for (int n = 0; n < 60_000; n++) {
+      records.add(EventCorpus.mutate(seeds.get(n % seeds.size()), random));
+    }
+    Map<DeadLetterReason, Integer> reasons = compare(records);
+    assertTrue(reasons.getOrDefault(null, 0) > 1000 && reasons.get(DeadLetterReason.MALFORMED) > 10_000,
+        "mutations keep some records valid and break most: " + reasons);
+  }
+
+  @Test
+  void recordsThatAreNoUtf8AreMalformedForJackson() {
+    for (byte[] record : EventCorpus.notUtf8()) {
+      assertEquals(DeadLetterReason.MALFORMED, Outcome.of(jackson, record, new RecordHeaders()).reason(),
+          new String(record, StandardCharsets.ISO_8859_1));
+    }
+  }
+
+  /** Both decoders on each record in each encoding; returns how often each reason came up (null: decoded). */
+  private Map<DeadLetterReason, Integer> compare(List<byte[]> records) {
+    Map<DeadLetterReason, Integer> reasons = new EnumMap<>(DeadLetterReason.class);
+    int decoded = 0;
+    for (byte[] record : records) {
+      boolean utf8 = isUtf8(record);
+      for (Headers headers : encodings()) {
+        Outcome expected = Outcome.of(handWritten, record, headers);
+        Outcome actual = Outcome.of(jackson, record, headers);
+        Supplier<String> where = () -> new String(record, StandardCharsets.UTF_8) + " with headers " + headers;
+        if (utf8) {
+          assertEquals(expected, actual, where);
+        } else {
+          assertEquals(DeadLetterReason.MALFORMED, actual.reason(), where);
+        }
+        if (actual.reason() == null) {
+          decoded++;
+        } else {
+          reasons.merge(actual.reason(), 1, Integer::sum);
+        }
+      }
+    }
+    Map<DeadLetterReason, Integer> out = new java.util.HashMap<>(reasons);
+    out.put(null, decoded);
+    return out;
+  }
+
+  private static List<Headers> encodings() {
+    RecordHeaders structured = new RecordHeaders();
+    structured.add(EventDecoder.CONTENT_TYPE, "application/cloudevents+json".getBytes(StandardCharsets.UTF_8));
+    return List.of(new RecordHeaders(), structured, binary(EventDecoder.BASKET_TYPE), binary(EventDecoder.LINE_ITEM_TYPE));
+  }
+
+  private static Headers binary(String type) {
+    RecordHeaders headers = new RecordHeaders();
+    headers.add(EventDecoder.CE_SPECVERSION, "1.0".getBytes(StandardCharsets.UTF_8));
+    headers.add(EventDecoder.CE_ID, "ev".getBytes(StandardCharsets.UTF_8));
+    headers.add(EventDecoder.CE_SOURCE, "/s".getBytes(StandardCharsets.UTF_8));
+    headers.add(EventDecoder.CE_TYPE, type.getBytes(StandardCharsets.UTF_8));
+    headers.add(EventDecoder.CE_TIME, "2026-12-02T11:00:00Z".getBytes(StandardCharsets.UTF_8));
+    return headers;
+  }
+
+  private static List<byte[]> utf8(List<String> records) {
+    List<byte[]> out = new ArrayList<>();
+    for (String record : records) {
+      out.add(record.getBytes(StandardCharsets.UTF_8));
+    }
+    return out;
+  }
+
+  private static boolean isUtf8(byte[] record) {
+    try {
+      StandardCharsets.UTF_8.newDecoder().decode(ByteBuffer.wrap(record));
+      return true;
+    } catch (CharacterCodingException e) {
+      return false;
+    }
+  }
+}
