@@ -19,7 +19,10 @@ import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.core.JsonToken;
 import com.fasterxml.jackson.core.StreamReadConstraints;
 import java.io.IOException;
+import java.lang.invoke.MethodHandles;
+import java.lang.invoke.VarHandle;
 import java.nio.ByteBuffer;
+import java.nio.ByteOrder;
 import java.nio.CharBuffer;
 import java.nio.charset.CharsetDecoder;
 import java.nio.charset.CodingErrorAction;
@@ -61,6 +64,10 @@ final class JacksonEventReader implements EventReader {
           .maxNameLength(Integer.MAX_VALUE)
           .build())
       .build();
+
+  /** Eight bytes of an array as one long: the ASCII test takes the high bit of each at once. */
+  private static final VarHandle LONGS = MethodHandles.byteArrayViewVarHandle(long[].class, ByteOrder.LITTLE_ENDIAN);
+  private static final long HIGH_BITS = 0x8080808080808080L;
 
   private final EventLimits limits;
   private final EventChecks checks;
@@ -131,13 +138,22 @@ final class JacksonEventReader implements EventReader {
         throw malformedAt(i, "NUL byte");
       }
     }
-    int firstNonAscii = from;
-    while (firstNonAscii < to && bytes[firstNonAscii] >= 0) {
-      firstNonAscii++;
-    }
+    int firstNonAscii = firstNonAscii(bytes, from, to);
     if (firstNonAscii < to) {
       requireUtf8(bytes, firstNonAscii, to);
     }
+  }
+
+  /** The first byte in [from, to) above 0x7F, or {@code to}; eight bytes at a time while it can. */
+  static int firstNonAscii(byte[] bytes, int from, int to) {
+    int at = from;
+    while (at + Long.BYTES <= to && ((long) LONGS.get(bytes, at) & HIGH_BITS) == 0) {
+      at += Long.BYTES;
+    }
+    while (at < to && bytes[at] >= 0) {
+      at++;
+    }
+    return at;
   }
 
   /** Strict UTF-8 from {@code from}, the start of a sequence, to {@code to}. */

@@ -3,14 +3,11 @@ package org.pairpulse.ingest.event;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.nio.ByteBuffer;
-import java.nio.charset.CharacterCodingException;
 import java.nio.charset.StandardCharsets;
-import java.util.ArrayList;
 import java.util.EnumMap;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
-import java.util.Random;
 import java.util.function.Supplier;
 import org.apache.kafka.common.header.Headers;
 import org.apache.kafka.common.header.internals.RecordHeaders;
@@ -40,14 +37,14 @@ class JsonReadersAgreeTest {
 
   @Test
   void validEventsOfEveryShape() {
-    Map<DeadLetterReason, Integer> reasons = compare(utf8(EventCorpus.valid(3000, 11)));
+    Map<DeadLetterReason, Integer> reasons = compare(CorpusOutcomesTest.utf8(EventCorpus.valid(3000, 11)));
     assertTrue(reasons.get(null) > 3000, "the valid corpus decodes: " + reasons);
   }
 
   @Test
   void poisonAndEdgeRecords() {
-    List<byte[]> records = utf8(EventCorpus.poison());
-    records.addAll(utf8(EventCorpus.edges()));
+    List<byte[]> records = CorpusOutcomesTest.utf8(EventCorpus.poison());
+    records.addAll(CorpusOutcomesTest.utf8(EventCorpus.edges()));
     Map<DeadLetterReason, Integer> reasons = compare(records);
     for (DeadLetterReason reason : List.of(DeadLetterReason.MALFORMED, DeadLetterReason.MISSING_FIELD,
         DeadLetterReason.WRONG_TYPE, DeadLetterReason.EMPTY_BASKET, DeadLetterReason.OVERSIZED_BASKET,
@@ -59,13 +56,7 @@ class JsonReadersAgreeTest {
 
   @Test
   void mutatedRecords() {
-    List<String> seeds = new ArrayList<>(EventCorpus.MUTATION_SEEDS);
-    seeds.addAll(EventCorpus.valid(40, 12));
-    Random random = new Random(13);
-    List<byte[]> records = new ArrayList<>();
-    for (int n = 0; n < 60_000; n++) {
-      records.add(EventCorpus.mutate(seeds.get(n % seeds.size()), random));
-    }
+    List<byte[]> records = CorpusOutcomesTest.groups().get("mutated");
     Map<DeadLetterReason, Integer> reasons = compare(records);
     assertTrue(reasons.getOrDefault(null, 0) > 1000 && reasons.get(DeadLetterReason.MALFORMED) > 10_000,
         "mutations keep some records valid and break most: " + reasons);
@@ -84,7 +75,7 @@ class JsonReadersAgreeTest {
     Map<DeadLetterReason, Integer> reasons = new EnumMap<>(DeadLetterReason.class);
     int decoded = 0;
     for (byte[] record : records) {
-      boolean utf8 = isUtf8(record);
+      boolean utf8 = CorpusOutcomesTest.isUtf8(record);
       for (Headers headers : encodings()) {
         Outcome expected = Outcome.of(handWritten, record, headers);
         Outcome actual = Outcome.of(jackson, record, headers);
@@ -106,10 +97,27 @@ class JsonReadersAgreeTest {
     return out;
   }
 
-  private static List<Headers> encodings() {
+  private static Iterable<Headers> encodings() {
+    return encodingsByName().values();
+  }
+
+  /** Each record as a plain record, as a structured CloudEvent (by header), and as binary-mode data of either type. */
+  static Map<String, Headers> encodingsByName() {
     RecordHeaders structured = new RecordHeaders();
     structured.add(EventDecoder.CONTENT_TYPE, "application/cloudevents+json".getBytes(StandardCharsets.UTF_8));
-    return List.of(new RecordHeaders(), structured, binary(EventDecoder.BASKET_TYPE), binary(EventDecoder.LINE_ITEM_TYPE));
+    Map<String, Headers> encodings = new LinkedHashMap<>();
+    encodings.put("plain", new RecordHeaders());
+    encodings.put("structured", structured);
+    encodings.put("binary-basket", binary(EventDecoder.BASKET_TYPE));
+    encodings.put("binary-line-item", binary(EventDecoder.LINE_ITEM_TYPE));
+    return encodings;
+  }
+
+  /** The recorded outcomes ({@link CorpusOutcomesTest}) are the hand-written reader's, UTF-8 aside. */
+  @Test
+  void theHandWrittenReaderMadeTheRecordedOutcomes() throws java.io.IOException {
+    List<String> lines = CorpusOutcomesTest.outcomes(handWritten, true);
+    assertEquals(String.join("\n", CorpusOutcomesTest.recorded()), String.join("\n", lines));
   }
 
   private static Headers binary(String type) {
@@ -120,22 +128,5 @@ class JsonReadersAgreeTest {
     headers.add(EventDecoder.CE_TYPE, type.getBytes(StandardCharsets.UTF_8));
     headers.add(EventDecoder.CE_TIME, "2026-12-02T11:00:00Z".getBytes(StandardCharsets.UTF_8));
     return headers;
-  }
-
-  private static List<byte[]> utf8(List<String> records) {
-    List<byte[]> out = new ArrayList<>();
-    for (String record : records) {
-      out.add(record.getBytes(StandardCharsets.UTF_8));
-    }
-    return out;
-  }
-
-  private static boolean isUtf8(byte[] record) {
-    try {
-      StandardCharsets.UTF_8.newDecoder().decode(ByteBuffer.wrap(record));
-      return true;
-    } catch (CharacterCodingException e) {
-      return false;
-    }
   }
 }
