@@ -2,7 +2,6 @@ package org.pairpulse.ops;
 
 import java.util.concurrent.Callable;
 import org.pairpulse.ops.bench.IngestBench;
-import org.pairpulse.ops.bench.JsonBenchCommand;
 import org.pairpulse.ops.bench.ReplayBenchCommand;
 import org.pairpulse.ops.bench.RulesBenchCommand;
 import org.pairpulse.ops.bench.ServeBench;
@@ -18,7 +17,7 @@ import picocli.CommandLine.Spec;
     description = "Runs a benchmark and prints its progress and a final RESULT line.",
     subcommands = {SketchBenchCommand.class, IngestBench.class, ServeBench.class, ShiftBenchCommand.class,
         DriftBenchCommand.class, RulesBenchCommand.class, ReplayBenchCommand.class,
-        org.pairpulse.ops.group.GroupBenchCommand.class, JsonBenchCommand.class},
+        org.pairpulse.ops.group.GroupBenchCommand.class},
     commandListHeading = "%nBenchmarks:%n")
 final class BenchCommand implements Callable<Integer> {
   @Spec

@@ -13,7 +13,7 @@ import com.fasterxml.jackson.core.JsonToken;
 import java.util.Arrays;
 import java.util.List;
 import java.util.Map;
-import org.pairpulse.ingest.event.EventReader.Shape;
+import org.pairpulse.ingest.event.JacksonEventReader.Shape;
 
 /**
  * The contract's checks on the kept {@link EventFields} of a basket or line-item event, in the contract's order:

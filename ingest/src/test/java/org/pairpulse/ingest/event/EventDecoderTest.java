@@ -29,23 +29,14 @@ import java.util.stream.Stream;
 import org.apache.kafka.common.header.Headers;
 import org.apache.kafka.common.header.internals.RecordHeaders;
 import org.junit.jupiter.api.Test;
-import org.junit.jupiter.params.ParameterizedClass;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.Arguments;
-import org.junit.jupiter.params.provider.EnumSource;
 import org.junit.jupiter.params.provider.MethodSource;
 import org.pairpulse.sketch.time.ManualClock;
 
-/** Every check runs against each JSON reader ({@link EventDecoder.JsonReader}). */
-@ParameterizedClass
-@EnumSource(EventDecoder.JsonReader.class)
 class EventDecoderTest {
   static final long NOW = Instant.parse("2026-12-02T12:00:00Z").toEpochMilli();
-  final EventDecoder decoder;
-
-  EventDecoderTest(EventDecoder.JsonReader reader) {
-    decoder = new EventDecoder(limits(), reader);
-  }
+  final EventDecoder decoder = new EventDecoder(limits());
 
   /** The test limits: 20 items, 64-char ids, 1 day ahead, 365 days back, 4 attributes. */
   static EventLimits limits() {
@@ -160,6 +151,20 @@ class EventDecoderTest {
         () -> json("{\"id\":\"a\tb\",\"time\":1796205600000,\"items\":[\"a\"]}")).reason());
     assertEquals(DeadLetterReason.MALFORMED, assertThrows(InvalidEventException.class,
         () -> decoder.decode(null, new RecordHeaders())).reason());
+  }
+
+  /**
+   * A record that is no UTF-8 (RFC 3629: overlong forms, encoded surrogates, code points past U+10FFFF, stray or
+   * missing continuation bytes) is malformed wherever the bad bytes sit, even in a value the contract ignores.
+   */
+  @Test
+  void recordsThatAreNoUtf8AreMalformedWhereverTheBytesSit() {
+    List<byte[]> records = EventCorpus.notUtf8();
+    assertEquals(40, records.size());
+    for (byte[] record : records) {
+      assertEquals(DeadLetterReason.MALFORMED, assertThrows(InvalidEventException.class,
+          () -> decoder.decode(record, new RecordHeaders())).reason(), new String(record, StandardCharsets.ISO_8859_1));
+    }
   }
 
   @Test
