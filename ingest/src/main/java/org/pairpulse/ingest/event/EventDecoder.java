@@ -27,8 +27,12 @@ import org.apache.kafka.common.header.Headers;
  * with the CloudEvents SDK: the SDK materialises every attribute and a Jackson tree per record, and the
  * contract needs four attributes. The tests check interoperability against records written by the SDK.
  *
+ * <h2>The JSON</h2>
+ * {@link JacksonEventReader} reads it with jackson-core's streaming parser (tokens, no tree) and checks it against
+ * the contract; every record that is refused gets its {@link DeadLetterReason}.
+ *
  * <h2>Threading</h2>
- * Not thread-safe (scratch buffers): use one decoder per thread. Decoding allocates the event, its
+ * Not thread-safe (scratch buffers): use one decoder per thread. Decoding allocates a parser, the event, its
  * Strings and an item list; no tree.
  */
 public final class EventDecoder {
@@ -45,11 +49,11 @@ public final class EventDecoder {
   static final String CE_TIME = "ce_time";
 
   private final EventLimits limits;
-  private final JsonEventReader reader;
+  private final JacksonEventReader reader;
 
   public EventDecoder(EventLimits limits) {
     this.limits = Objects.requireNonNull(limits, "limits");
-    this.reader = new JsonEventReader(limits);
+    this.reader = new JacksonEventReader(limits);
   }
 
   public EventLimits limits() {
@@ -72,7 +76,7 @@ public final class EventDecoder {
         if (type.startsWith("application/cloudevents")) {
           if (!type.startsWith("application/cloudevents+json")) {
             throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "structured CloudEvent format '"
-                + JsonEventReader.clip(type) + "' is not supported; use application/cloudevents+json");
+                + clip(type) + "' is not supported; use application/cloudevents+json");
           }
           return reader.readRecord(value, 0, length(value), true);
         }
@@ -89,11 +93,11 @@ public final class EventDecoder {
   private BasketEvent decodeBinary(byte[] value, Headers headers, String specversion) throws InvalidEventException {
     if (!"1.0".equals(specversion)) {
       throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "CloudEvents specversion '"
-          + JsonEventReader.clip(specversion) + "' is not supported; expected 1.0");
+          + clip(specversion) + "' is not supported; expected 1.0");
     }
     requireHeader(headers, CE_ID);
     requireHeader(headers, CE_SOURCE);
-    JsonEventReader.Shape shape = shapeOfType(requireHeader(headers, CE_TYPE));
+    JacksonEventReader.Shape shape = shapeOfType(requireHeader(headers, CE_TYPE));
     Header contentType = headers.lastHeader(CONTENT_TYPE);
     if (contentType != null) {
       requireJsonContentType(utf8(contentType));
@@ -114,14 +118,14 @@ public final class EventDecoder {
     return utf8(header);
   }
 
-  static JsonEventReader.Shape shapeOfType(String type) throws InvalidEventException {
+  static JacksonEventReader.Shape shapeOfType(String type) throws InvalidEventException {
     if (BASKET_TYPE.equals(type)) {
-      return JsonEventReader.Shape.BASKET;
+      return JacksonEventReader.Shape.BASKET;
     }
     if (LINE_ITEM_TYPE.equals(type)) {
-      return JsonEventReader.Shape.LINE_ITEM;
+      return JacksonEventReader.Shape.LINE_ITEM;
     }
-    throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "CloudEvent type '" + JsonEventReader.clip(type)
+    throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "CloudEvent type '" + clip(type)
         + "' is not one of " + BASKET_TYPE + ", " + LINE_ITEM_TYPE);
   }
 
@@ -134,7 +138,7 @@ public final class EventDecoder {
     }
     if (!(type.equals("application/json") || type.equals("text/json") || type.endsWith("+json"))) {
       throw new InvalidEventException(DeadLetterReason.UNSUPPORTED_EVENT, "data content type '"
-          + JsonEventReader.clip(contentType) + "' is not JSON");
+          + clip(contentType) + "' is not JSON");
     }
   }
 
@@ -144,6 +148,11 @@ public final class EventDecoder {
     } catch (IllegalArgumentException e) {
       throw new InvalidEventException(DeadLetterReason.WRONG_TYPE, "CloudEvent 'time' " + e.getMessage());
     }
+  }
+
+  /** At most 40 chars of {@code s}, for messages that quote input. */
+  static String clip(String s) {
+    return s.length() > 40 ? s.substring(0, 40) + "..." : s;
   }
 
   private static int length(byte[] value) {

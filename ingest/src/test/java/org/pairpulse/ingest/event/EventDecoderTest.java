@@ -36,7 +36,12 @@ import org.pairpulse.sketch.time.ManualClock;
 
 class EventDecoderTest {
   static final long NOW = Instant.parse("2026-12-02T12:00:00Z").toEpochMilli();
-  final EventDecoder decoder = new EventDecoder(new EventLimits(20, 64, 86_400_000L, 365L * 86_400_000L, 4, new ManualClock(NOW)));
+  final EventDecoder decoder = new EventDecoder(limits());
+
+  /** The test limits: 20 items, 64-char ids, 1 day ahead, 365 days back, 4 attributes. */
+  static EventLimits limits() {
+    return new EventLimits(20, 64, 86_400_000L, 365L * 86_400_000L, 4, new ManualClock(NOW));
+  }
 
   BasketEvent json(String text) throws InvalidEventException {
     return decoder.decode(text.getBytes(StandardCharsets.UTF_8), new RecordHeaders());
@@ -148,6 +153,20 @@ class EventDecoderTest {
         () -> decoder.decode(null, new RecordHeaders())).reason());
   }
 
+  /**
+   * A record that is no UTF-8 (RFC 3629: overlong forms, encoded surrogates, code points past U+10FFFF, stray or
+   * missing continuation bytes) is malformed wherever the bad bytes sit, even in a value the contract ignores.
+   */
+  @Test
+  void recordsThatAreNoUtf8AreMalformedWhereverTheBytesSit() {
+    List<byte[]> records = EventCorpus.notUtf8();
+    assertEquals(40, records.size());
+    for (byte[] record : records) {
+      assertEquals(DeadLetterReason.MALFORMED, assertThrows(InvalidEventException.class,
+          () -> decoder.decode(record, new RecordHeaders())).reason(), new String(record, StandardCharsets.ISO_8859_1));
+    }
+  }
+
   @Test
   void structuredCloudEventWithOrWithoutHeaderAndWithBase64Data() throws Exception {
     String data = "{\"id\":\"o-5\",\"items\":[\"a\",\"b\"]}";
@@ -209,14 +228,14 @@ class EventDecoderTest {
       List<String> ids = new ArrayList<>();
       int size = 1 + random.nextInt(8);
       for (int k = 0; k < size; k++) {
-        String id = randomId(random);
+        String id = EventCorpus.randomId(random);
         ids.add(id);
         items.add(random.nextBoolean() ? id : Map.of("id", id, "qty", 1 + random.nextInt(5)));
       }
       if (random.nextBoolean()) {
         basket.put("extra", Map.of("list", List.of(1, "two", 3.5), "flag", false));
       }
-      basket.put("id", randomId(random));
+      basket.put("id", EventCorpus.randomId(random));
       basket.put("time", NOW - random.nextInt(1_000_000));
       basket.put("items", items);
       Basket decoded = (Basket) decoder.decode(mapper.writeValueAsBytes(basket), new RecordHeaders());
@@ -226,47 +245,13 @@ class EventDecoderTest {
     }
   }
 
-  private static String randomId(Random random) {
-    String alphabet = "abcXYZ019-_ é\"\\/\u00e9\u4e2d\ud83d\ude00\n";
-    StringBuilder out = new StringBuilder();
-    int length = 1 + random.nextInt(12);
-    while (out.length() < length) {
-      int i = random.nextInt(alphabet.length());
-      char c = alphabet.charAt(i);
-      if (Character.isHighSurrogate(c)) {
-        out.append(c).append(alphabet.charAt(i + 1));
-      } else if (!Character.isLowSurrogate(c)) {
-        out.append(c);
-      }
-    }
-    return out.toString();
-  }
-
-  private static final String PUNCTUATION = "{}[]\",:\\0-e.tfn ";
-
   /** No input, however broken, makes the decoder throw anything but InvalidEventException. */
   @Test
   void mutatedRecordsNeverEscapeAsOtherExceptions() {
-    String[] seeds = {
-        "{\"id\":\"o-1\",\"time\":\"2026-12-02T10:15:00Z\",\"items\":[\"a\",{\"id\":\"b\",\"qty\":2}],\"attributes\":{\"s\":\"p\"}}",
-        "{\"basket\":\"o-9\",\"time\":1796205600000,\"item\":{\"id\":\"tv\",\"qty\":1},\"end\":true}",
-        "{\"specversion\":\"1.0\",\"id\":\"e\",\"source\":\"/s\",\"type\":\"org.pairpulse.basket.v1\",\"time\":\"2026-12-02T11:00:00Z\","
-            + "\"data\":{\"id\":\"x\",\"items\":[\"\\u00e9\"]},\"data_base64\":\"e30=\"}"};
     Random random = new Random(7);
     int rejected = 0;
     for (int n = 0; n < 30_000; n++) {
-      byte[] bytes = seeds[n % seeds.length].getBytes(StandardCharsets.UTF_8);
-      int mutations = 1 + random.nextInt(3);
-      for (int m = 0; m < mutations; m++) {
-        switch (random.nextInt(3)) {
-          case 0 -> bytes[random.nextInt(bytes.length)] = (byte) random.nextInt(256);
-          case 1 -> bytes = java.util.Arrays.copyOf(bytes, random.nextInt(bytes.length));
-          default -> bytes[random.nextInt(bytes.length)] = (byte) PUNCTUATION.charAt(random.nextInt(PUNCTUATION.length()));
-        }
-        if (bytes.length == 0) {
-          break;
-        }
-      }
+      byte[] bytes = EventCorpus.mutate(EventCorpus.MUTATION_SEEDS.get(n % EventCorpus.MUTATION_SEEDS.size()), random);
       try {
         decoder.decode(bytes, new RecordHeaders());
       } catch (InvalidEventException e) {
