@@ -53,15 +53,15 @@ class SettingsFileTest {
   @Test
   void horizonKeysChangeTheEngineAndRunOnlyKeysAreNoted() {
     List<String> notes = new ArrayList<>();
-    BacktestSettings settings = SettingsFile.apply(Map.of("horizon.recent.halfLifeMillis", "7200000",
-        "horizon.day.lengthMillis", "43200000", "horizon.day.panes", "12", "run.sketchHealthIntervalMillis", "60000",
+    BacktestSettings settings = SettingsFile.apply(Map.of("horizon.recent.half.life.ms", "7200000",
+        "horizon.day.length.ms", "43200000", "horizon.day.panes", "12", "run.sketch.health.interval.ms", "60000",
         "evaluation.ranking", "association"), BacktestSettings.defaults(), notes::add);
     List<HorizonSpec> horizons = settings.engine().horizons();
     assertEquals(HorizonSpec.decay("recent", Duration.ofHours(2)), horizons.get(0));
     assertEquals(HorizonSpec.window("day", Duration.ofHours(12), 12), horizons.get(1));
     assertEquals(HorizonSpec.BASELINE, horizons.get(2));
     assertEquals(SuggestionRanking.ASSOCIATION, settings.evaluation().ranking());
-    assertEquals(List.of("ignoring 'run.sketchHealthIntervalMillis': only 'pairpulse run' uses it"), notes);
+    assertEquals(List.of("ignoring 'run.sketch.health.interval.ms': only 'pairpulse run' uses it"), notes);
   }
 
   @Test
@@ -80,11 +80,11 @@ class SettingsFileTest {
   @Test
   void aFileWithRunKeysReadsWithNotes(@TempDir Path directory) throws IOException {
     Path file = directory.resolve("both.properties");
-    Files.writeString(file, "run.sketchHealthIntervalMillis=60000\ndrift.minDwellMillis=0\n");
+    Files.writeString(file, "run.sketch.health.interval.ms=60000\ndrift.min.dwell.ms=0\n");
     List<String> notes = new ArrayList<>();
     BacktestSettings settings = SettingsFile.read(file, BacktestSettings.defaults(), notes::add);
     assertEquals(0, settings.drift().minDwellMillis());
     assertEquals(1, notes.size());
-    assertTrue(notes.get(0).contains("run.sketchHealthIntervalMillis"), notes.get(0));
+    assertTrue(notes.get(0).contains("run.sketch.health.interval.ms"), notes.get(0));
   }
 }
