@@ -60,7 +60,7 @@ import org.slf4j.LoggerFactory;
  * <h2>Threads</h2>
  * Requests run on Jetty's pool and read each segment's newest floored table through a volatile
  * reference: no locks, nothing shared with ingest, so requests never block ingest. One watcher
- * thread looks for new table versions every {@code serve.watchMillis}: per new version it builds the
+ * thread looks for new table versions every {@code serve.watch.ms}: per new version it builds the
  * floored view, records a trend point, runs drift detection and the alert state machine, and hands
  * alert events to the dispatcher thread, which feeds the sinks (Kafka, webhook) asynchronously.
  *

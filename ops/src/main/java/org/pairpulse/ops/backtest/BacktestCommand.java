@@ -35,7 +35,7 @@ public final class BacktestCommand implements Callable<Integer> {
   Path input;
 
   @Option(names = "--config", paramLabel = "FILE",
-      description = "Settings file (Java properties): drift.*, serve.cohortFloor, ingest's front keys, engine.*,"
+      description = "Settings file (Java properties): drift.*, serve.cohort.floor, ingest's front keys, engine.*,"
           + " backtest.*, evaluation.*; options below override it.")
   Path config;
 

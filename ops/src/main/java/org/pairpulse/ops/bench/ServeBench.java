@@ -107,7 +107,7 @@ public final class ServeBench implements Callable<Integer> {
   long refreshMillis = 2000;
 
   @Option(names = "--cohort-floor", paramLabel = "N",
-      description = "serve.cohortFloor (default: ${DEFAULT-VALUE}; see the command's class comment).")
+      description = "serve.cohort.floor (default: ${DEFAULT-VALUE}; see the command's class comment).")
   double cohortFloor = 0;
 
   @Option(names = "--max-seconds", paramLabel = "S",

@@ -60,7 +60,7 @@ import org.slf4j.LoggerFactory;
  * {@code segments.attributes}), ingest also counts each basket in segment {@code <attribute>=<value>} for each
  * configured attribute it carries, and publishes one pair table per segment every refresh; the server serves
  * them as they are discovered ({@link Ingestor#segmentTables()} to {@link ServeServer.Builder#discoveredSegments}),
- * a segment being named only once its N passes the cohort floor. The cohort floor ({@code serve.cohortFloor})
+ * a segment being named only once its N passes the cohort floor. The cohort floor ({@code serve.cohort.floor})
  * applies to every statistic serve publishes, in every segment: API, dashboard and alerts all read the floored
  * view.
  *
@@ -78,7 +78,7 @@ public final class Pipeline implements AutoCloseable {
    * @param ingest ingest's settings ({@link IngestConfig} keys, {@code kafka.*} pass-through included)
    * @param engine the engine's memory and horizons
    * @param serve the server's settings (HTTP, floor, drift thresholds, webhook); its own topic sink
-   *     ({@code alerts.kafka.bootstrapServers}) should stay empty: {@code alertTopic} is the topic sink here
+   *     ({@code alerts.kafka.bootstrap.servers}) should stay empty: {@code alertTopic} is the topic sink here
    * @param alertTopic where alert events go as CloudEvents, through the same Kafka client settings as
    *     ingest; empty: no topic
    * @param createAlertTopic create {@code alertTopic} when missing (1 partition, the cluster's default

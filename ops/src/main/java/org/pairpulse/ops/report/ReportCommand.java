@@ -65,7 +65,7 @@ public final class ReportCommand implements Callable<Integer> {
   List<String> segmentAttributes = new ArrayList<>();
 
   @Option(names = "--config", paramLabel = "FILE", description = "Settings file (Java properties): drift.*,"
-      + " serve.cohortFloor, engine.*, ingest's front keys and segments.* (as 'pairpulse run' reads them).")
+      + " serve.cohort.floor, engine.*, ingest's front keys and segments.* (as 'pairpulse run' reads them).")
   Path config;
 
   @Option(names = "--floor", paramLabel = "N", description = "Cohort floor in distinct baskets (default: 50).")

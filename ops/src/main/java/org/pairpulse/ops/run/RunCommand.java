@@ -49,6 +49,11 @@ public final class RunCommand implements Callable<Integer> {
   public Integer call() throws Exception {
     RunConfig run = read();
     PrintWriter out = spec.commandLine().getOut();
+    PrintWriter err = spec.commandLine().getErr();
+    for (String deprecation : run.deprecations()) {
+      err.println("pairpulse run: " + config + ": " + deprecation);
+    }
+    err.flush();
     if (printConfig) {
       out.print(run.describe());
       out.flush();

@@ -48,7 +48,7 @@ class BacktestTest {
     ScenarioFiles.writeAll(new ScenarioGenerator(ScenarioConfig.defaults().withDurationDays(3).withBasketsPerMinute(2)),
         directory.resolve("scenario"));
     Files.writeString(directory.resolve("small.properties"), String.join("\n",
-        "engine.trackedPairCapacity=512", "engine.trackedItemCapacity=512", "drift.minDwellMillis=600000", ""));
+        "engine.tracked.pair.capacity=512", "engine.tracked.item.capacity=512", "drift.min.dwell.ms=600000", ""));
   }
 
   record Run(int exitCode, String out, String err) {}

@@ -33,7 +33,7 @@ class PlantedEmergingTest {
         directory);
     // a small tracked table and a coarse refresh keep the test fast; the floor is lowered for the low rate
     Files.writeString(directory.resolve("test.properties"),
-        "engine.trackedPairCapacity=1024\nengine.trackedItemCapacity=1024\n");
+        "engine.tracked.pair.capacity=1024\nengine.tracked.item.capacity=1024\n");
     StringWriter out = new StringWriter();
     StringWriter err = new StringWriter();
     CommandLine cli = Main.commandLine();

@@ -16,7 +16,11 @@ import java.util.Properties;
 import java.util.TreeMap;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
+import org.apache.kafka.common.config.ConfigDef;
+import org.pairpulse.ops.evaluation.EvaluationKeys;
+import org.pairpulse.ops.run.ConfigParts;
 import org.pairpulse.ops.run.RunConfig;
+import org.pairpulse.ops.run.RunConfigException;
 import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 
@@ -53,15 +57,15 @@ class SettingsFileTest {
   @Test
   void horizonKeysChangeTheEngineAndRunOnlyKeysAreNoted() {
     List<String> notes = new ArrayList<>();
-    BacktestSettings settings = SettingsFile.apply(Map.of("horizon.recent.halfLifeMillis", "7200000",
-        "horizon.day.lengthMillis", "43200000", "horizon.day.panes", "12", "run.sketchHealthIntervalMillis", "60000",
+    BacktestSettings settings = SettingsFile.apply(Map.of("horizon.recent.half.life.ms", "7200000",
+        "horizon.day.length.ms", "43200000", "horizon.day.panes", "12", "run.sketch.health.interval.ms", "60000",
         "evaluation.ranking", "association"), BacktestSettings.defaults(), notes::add);
     List<HorizonSpec> horizons = settings.engine().horizons();
     assertEquals(HorizonSpec.decay("recent", Duration.ofHours(2)), horizons.get(0));
     assertEquals(HorizonSpec.window("day", Duration.ofHours(12), 12), horizons.get(1));
     assertEquals(HorizonSpec.BASELINE, horizons.get(2));
     assertEquals(SuggestionRanking.ASSOCIATION, settings.evaluation().ranking());
-    assertEquals(List.of("ignoring 'run.sketchHealthIntervalMillis': only 'pairpulse run' uses it"), notes);
+    assertEquals(List.of("ignoring 'run.sketch.health.interval.ms': only 'pairpulse run' uses it"), notes);
   }
 
   @Test
@@ -80,11 +84,78 @@ class SettingsFileTest {
   @Test
   void aFileWithRunKeysReadsWithNotes(@TempDir Path directory) throws IOException {
     Path file = directory.resolve("both.properties");
-    Files.writeString(file, "run.sketchHealthIntervalMillis=60000\ndrift.minDwellMillis=0\n");
+    Files.writeString(file, "run.sketch.health.interval.ms=60000\ndrift.min.dwell.ms=0\n");
     List<String> notes = new ArrayList<>();
     BacktestSettings settings = SettingsFile.read(file, BacktestSettings.defaults(), notes::add);
     assertEquals(0, settings.drift().minDwellMillis());
     assertEquals(1, notes.size());
-    assertTrue(notes.get(0).contains("run.sketchHealthIntervalMillis"), notes.get(0));
+    assertTrue(notes.get(0).contains("run.sketch.health.interval.ms"), notes.get(0));
+  }
+  /** A settings file written before the keys were respelled reads as the same settings, with one note per key. */
+  @Test
+  void theEarlierSpellingsStillReadWithADeprecationNoteEach(@TempDir Path directory) throws IOException {
+    Path earlier = directory.resolve("earlier.properties");
+    Files.writeString(earlier, String.join("\n", "engine.trackedPairCapacity=512", "engine.pairRanking=count",
+        "horizon.recent.halfLifeMillis=7200000", "drift.minDwellMillis=0", "serve.cohortFloor=20",
+        "backtest.refreshEveryMillis=600000", "evaluation.minConfidence=0.1", "run.sketchHealthIntervalMillis=1000", ""));
+    Path now = directory.resolve("now.properties");
+    Files.writeString(now, String.join("\n", "engine.tracked.pair.capacity=512", "engine.pair.ranking=count",
+        "horizon.recent.half.life.ms=7200000", "drift.min.dwell.ms=0", "serve.cohort.floor=20",
+        "backtest.refresh.every.ms=600000", "evaluation.min.confidence=0.1", ""));
+    List<String> notes = new ArrayList<>();
+    BacktestSettings fromEarlier = SettingsFile.read(earlier, BacktestSettings.defaults(), notes::add);
+    BacktestSettings fromNow = SettingsFile.read(now, BacktestSettings.defaults());
+    assertEquals(fromNow, fromEarlier);
+    assertEquals(512, fromEarlier.engine().trackedPairCapacity());
+    assertEquals(0.1, fromEarlier.evaluation().minConfidence());
+    assertEquals(600_000, fromEarlier.refreshEveryMillis());
+    assertEquals(9, notes.size(), String.join("\n", notes));
+    assertTrue(notes.contains("key 'backtest.refreshEveryMillis' is deprecated: use 'backtest.refresh.every.ms'"),
+        notes.toString());
+    assertTrue(notes.contains("ignoring 'run.sketch.health.interval.ms': only 'pairpulse run' uses it"), notes.toString());
+  }
+
+  /** The backtest checks a value as 'pairpulse run' does: the same definition, the same range. */
+  @Test
+  void valuesAreCheckedByTheSameDefinitionsAsTheRunConfiguration() {
+    for (Map.Entry<String, String> bad : Map.of("engine.tracked.pair.capacity", "1", "engine.pair.epsilon", "1.5",
+        "horizon.day.panes", "0", "evaluation.k", "0", "drift.exit.ratio", "0.5", "engine.size.classes", "2,3+",
+        "backtest.summary.top", "-1").entrySet()) {
+      IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
+          () -> SettingsFile.apply(Map.of(bad.getKey(), bad.getValue()), BacktestSettings.defaults()), bad.toString());
+      assertTrue(e.getMessage().startsWith(bad.getKey() + "=" + bad.getValue() + ": "), e.getMessage());
+      RunConfigException run = assertThrows(RunConfigException.class, () -> RunConfig.of(Map.of("bootstrap.servers",
+          "k:9092", "topics", "t", bad.getKey(), bad.getValue()), "run"), bad.toString());
+      if (!bad.getKey().startsWith("backtest.")) {
+        assertEquals(e.getMessage(), run.problems().get(0), "the same check, the same words");
+      }
+    }
+  }
+  /** README-ops-analysis's table is the backtest's and evaluation's definitions; every key it names is defined. */
+  @Test
+  void theReadmeTablesAreTheDefinitions() throws IOException {
+    Path readme = Path.of("README-ops-analysis.md");
+    String text = Files.readString(readme);
+    String begin = "<!-- backtest-keys-table:begin -->\n";
+    String end = "<!-- backtest-keys-table:end -->";
+    List<ConfigDef.ConfigKey> keys = new ArrayList<>(BacktestKeys.DEFINITION.configKeys().values());
+    keys.addAll(EvaluationKeys.OFFLINE.configKeys().values());
+    String table = ConfigParts.markdownTable(keys);
+    if (Boolean.getBoolean("pairpulse.writeDocs")) {
+      text = text.substring(0, text.indexOf(begin) + begin.length()) + table + text.substring(text.indexOf(end));
+      Files.writeString(readme, text);
+    }
+    assertEquals(table, text.substring(text.indexOf(begin) + begin.length(), text.indexOf(end)),
+        "README-ops-analysis.md's key table is stale; regenerate it with -Dpairpulse.writeDocs=true");
+    String families = text.substring(text.indexOf("**Settings file**"), text.indexOf(begin));
+    java.util.regex.Matcher key = java.util.regex.Pattern.compile("`([a-z0-9]+(?:\\.[a-z0-9]+)+)`").matcher(families);
+    int named = 0;
+    while (key.find()) {
+      if (!key.group(1).endsWith(".md") && !key.group(1).contains("example")) {
+        assertTrue(SettingsFile.PARTS.key(key.group(1)) != null, "README-ops-analysis names an undefined key: " + key.group(1));
+        named++;
+      }
+    }
+    assertTrue(named >= 12, "keys named: " + named);
   }
 }

@@ -27,7 +27,7 @@ class ShiftBenchCommandTest {
   @Test
   void printsProgressThenTheResultLineLast() throws Exception {
     Files.writeString(directory.resolve("small.properties"),
-        "engine.trackedPairCapacity=512\nengine.trackedItemCapacity=512\nserve.cohortFloor=5\n");
+        "engine.tracked.pair.capacity=512\nengine.tracked.item.capacity=512\nserve.cohort.floor=5\n");
     StringWriter out = new StringWriter();
     StringWriter err = new StringWriter();
     CommandLine cli = Main.commandLine();
@@ -56,7 +56,7 @@ class ShiftBenchCommandTest {
   @Test
   void sixDaysHoldThreePlantedChanges() throws Exception {
     Files.writeString(directory.resolve("small.properties"),
-        "engine.trackedPairCapacity=512\nengine.trackedItemCapacity=512\nserve.cohortFloor=5\n");
+        "engine.tracked.pair.capacity=512\nengine.tracked.item.capacity=512\nserve.cohort.floor=5\n");
     StringWriter out = new StringWriter();
     StringWriter err = new StringWriter();
     CommandLine cli = Main.commandLine();

@@ -23,7 +23,7 @@ class DriftBenchCommandTest {
   @Test
   void printsProgressTheChangesThenTheResultLineLast() throws Exception {
     Files.writeString(directory.resolve("small.properties"),
-        "engine.trackedPairCapacity=512\nengine.trackedItemCapacity=512\nserve.cohortFloor=5\n");
+        "engine.tracked.pair.capacity=512\nengine.tracked.item.capacity=512\nserve.cohort.floor=5\n");
     MainTestAccess.Run run = MainTestAccess.run("bench", "drift", "--days", "3", "--levels", "quiet",
         "--traffic-scale", "0.05", "--refresh-every", "1h", "--config", directory.resolve("small.properties").toString());
     assertEquals(Main.EXIT_OK, run.exitCode(), run.err());

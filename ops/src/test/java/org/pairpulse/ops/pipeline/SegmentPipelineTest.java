@@ -74,11 +74,11 @@ class SegmentPipelineTest {
           "checkpoint.dir=" + checkpoints,
           "refresh.interval.ms=200",
           "serve.port=0",
-          "serve.cohortFloor=50",
+          "serve.cohort.floor=50",
           "alerts.kafka.enabled=false",
           "segments.attributes=channel",
           "segments.max.values=4",
-          "run.sketchHealthIntervalMillis=1000", ""), StandardCharsets.UTF_8);
+          "run.sketch.health.interval.ms=1000", ""), StandardCharsets.UTF_8);
       Pipeline.Settings settings = RunConfig.load(file).pipelineSettings();
       assertEquals(List.of("channel"), settings.segmentAttributes());
       Map<String, Long> appPairs = pairCounts(baskets, "app");

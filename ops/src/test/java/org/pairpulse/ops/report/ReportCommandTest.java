@@ -44,7 +44,7 @@ class ReportCommandTest {
     ScenarioFiles.writeAll(new ScenarioGenerator(ScenarioConfig.defaults().withDurationDays(2).withBasketsPerMinute(3)),
         directory);
     Files.writeString(directory.resolve("small.properties"),
-        "engine.trackedPairCapacity=1024\nengine.trackedItemCapacity=1024\n");
+        "engine.tracked.pair.capacity=1024\nengine.tracked.item.capacity=1024\n");
   }
 
   static String[] run(String... args) {
@@ -155,7 +155,7 @@ class ReportCommandTest {
     assertEquals("2", bad[0], bad[2]);
     assertTrue(bad[2].contains("segments.max.values"), bad[2]);
     Files.writeString(settings, "segments.attributes=channel\nsegments.max.values=2\n"
-        + "engine.trackedPairCapacity=1024\nengine.trackedItemCapacity=1024\n");
+        + "engine.tracked.pair.capacity=1024\nengine.tracked.item.capacity=1024\n");
     String[] bounded = run("report", "--input", directory.resolve(ScenarioFiles.JSON_LINES_FILE).toString(), "--config",
         settings.toString(), "--floor", "20", "--quiet", "--out", directory.resolve("bounded").toString());
     assertEquals("0", bounded[0], bounded[2]);

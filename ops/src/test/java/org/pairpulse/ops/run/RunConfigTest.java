@@ -18,6 +18,7 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ops.MainTestAccess;
+import org.pairpulse.ops.backtest.SettingsFile;
 import org.pairpulse.ops.monitoring.AlertRules;
 import org.pairpulse.ops.pipeline.Pipeline;
 import org.pairpulse.serve.ServeConfig;
@@ -68,8 +69,10 @@ class RunConfigTest {
     RunConfigException e = assertThrows(RunConfigException.class, () -> example(Map.of("evaluation.share", "1.5",
         "evaluation.k", "0", "evaluation.horizon", "week")));
     assertTrue(e.getMessage().contains("evaluation.share=1.5: out of range"), e.getMessage());
-    assertTrue(e.getMessage().contains("evaluation.k=0: out of range"), e.getMessage());
-    assertTrue(e.getMessage().contains("evaluation.horizon=week: not a horizon"), e.getMessage());
+    assertTrue(e.getMessage().contains("evaluation.k=0: Value must be at least 1 (allowed: [1,...,100])"),
+        e.getMessage());
+    assertTrue(e.getMessage().contains("evaluation.horizon=week: String must be one of: recent, day, baseline"),
+        e.getMessage());
     assertEquals(0.0, example(Map.of("evaluation.share", "0")).pipelineSettings().evaluation().share(),
         "0 turns it off");
   }
@@ -82,19 +85,19 @@ class RunConfigTest {
     assertEquals("line 3: unknown key 'serve.prot'; did you mean 'serve.port'? (every key: ops/README-ops-run.md)",
         e.problems().get(0));
     e = assertThrows(RunConfigException.class, () -> load("bootstrap.servers=k:9092\ntopics=t\ndrift.enterRootG=4\n"));
-    assertTrue(e.problems().get(0).contains("did you mean 'drift.enterRootG2'?"), e.getMessage());
+    assertTrue(e.problems().get(0).contains("did you mean 'drift.enter.root.g2'?"), e.getMessage());
   }
 
   @Test
   void basketSizeClassesReachTheEngine() throws IOException {
     assertEquals(SizeClasses.defaults(), example(Map.of()).pipelineSettings().engine().sizeClasses());
     assertEquals(SizeClasses.of(1, 2, 3, 4, 6, 10),
-        example(Map.of("engine.sizeClasses", "1,2,3,4-5,6-9,10+")).pipelineSettings().engine().sizeClasses());
-    assertEquals(SizeClasses.single(), example(Map.of("engine.sizeClasses", "1+")).engine().sizeClasses(),
+        example(Map.of("engine.size.classes", "1,2,3,4-5,6-9,10+")).pipelineSettings().engine().sizeClasses());
+    assertEquals(SizeClasses.single(), example(Map.of("engine.size.classes", "1+")).engine().sizeClasses(),
         "one class: the textbook measures");
     RunConfigException e = assertThrows(RunConfigException.class,
-        () -> load("bootstrap.servers=k:9092\ntopics=t\nengine.sizeClasses=2,3,4+\n"));
-    assertTrue(e.getMessage().contains("engine.sizeClasses=2,3,4+: not size classes"), e.getMessage());
+        () -> load("bootstrap.servers=k:9092\ntopics=t\nengine.size.classes=2,3,4+\n"));
+    assertTrue(e.getMessage().contains("engine.size.classes=2,3,4+: not size classes"), e.getMessage());
   }
 
   @Test
@@ -111,14 +114,14 @@ class RunConfigTest {
         topics=t
         checkpoint.interval.ms=5
         serve.port=70000
-        engine.pairEpsilon=two
+        engine.pair.epsilon=two
         checkpoint.store=s3
         """));
     List<String> problems = e.problems();
     assertEquals(4, problems.size(), e.getMessage());
     assertEquals("line 3: checkpoint.interval.ms=5: Value must be at least 100 (allowed: [100,...])", problems.get(0));
-    assertEquals("line 4: serve.port=70000: not allowed (allowed: 0..65535 (0: any free port))", problems.get(1));
-    assertEquals("line 5: engine.pairEpsilon=two: not a number (allowed: (0, 1))", problems.get(2));
+    assertEquals("line 4: serve.port=70000: must be 0..65535 (0: any free port)", problems.get(1));
+    assertEquals("line 5: engine.pair.epsilon=two: Not a number of type DOUBLE (allowed: (0, 1))", problems.get(2));
     assertTrue(problems.get(3).startsWith("line 6: checkpoint.store=s3: "), problems.get(3));
     assertTrue(problems.get(3).contains("[kafka, local, none]"), problems.get(3));
   }
@@ -126,10 +129,10 @@ class RunConfigTest {
   @Test
   void rulesBetweenKeysAreCheckedOnTheWholeFile() throws IOException {
     // exit above the default enter is fine when enter is raised in the same file
-    RunConfig ok = load("bootstrap.servers=k:9092\ntopics=t\ndrift.exitRootG2=6\ndrift.enterRootG2=8\n");
+    RunConfig ok = load("bootstrap.servers=k:9092\ntopics=t\ndrift.exit.root.g2=6\ndrift.enter.root.g2=8\n");
     assertEquals(8.0, ok.serve().driftSettings().enterRootG2());
     RunConfigException e = assertThrows(RunConfigException.class,
-        () -> load("bootstrap.servers=k:9092\ntopics=t\ndrift.exitRootG2=6\n"));
+        () -> load("bootstrap.servers=k:9092\ntopics=t\ndrift.exit.root.g2=6\n"));
     assertTrue(e.getMessage().contains("exitRootG2"), e.getMessage());
     e = assertThrows(RunConfigException.class,
         () -> load("bootstrap.servers=k:9092\ntopics=t\nhorizon.day.panes=7\n"));
@@ -230,6 +233,106 @@ class RunConfigTest {
             + " mvn -pl ops test -Dtest=RunConfigTest#theReadmeTableListsEveryKeyAsDefined -Dpairpulse.writeDocs=true");
   }
 
+  /** The renaming table (earlier spelling to key) is the parts' own, every part a settings file reads included. */
+  @Test
+  void theReadmeRenamingTableListsEveryEarlierSpelling() throws IOException {
+    Path readme = AlertRules.opsDir().resolve("README-ops-run.md");
+    String text = Files.readString(readme, StandardCharsets.UTF_8);
+    String begin = "<!-- renamed-keys-table:begin -->\n";
+    String end = "<!-- renamed-keys-table:end -->";
+    String table = ConfigParts.renamingTable(SettingsFile.PARTS.renamed());
+    if (Boolean.getBoolean("pairpulse.writeDocs")) {
+      int from = text.indexOf(begin) + begin.length();
+      text = text.substring(0, from) + table + text.substring(text.indexOf(end));
+      Files.writeString(readme, text, StandardCharsets.UTF_8);
+    }
+    assertEquals(table, text.substring(text.indexOf(begin) + begin.length(), text.indexOf(end)),
+        "README-ops-run.md's renaming table is stale; regenerate it with -Dpairpulse.writeDocs=true");
+    assertEquals(48, SettingsFile.PARTS.renamed().size(), "every camel-case key of before: " + table);
+  }
+
+  @Test
+  void everyKeyIsSpelledOneWay() {
+    for (ConfigParts parts : List.of(RunConfig.PARTS, SettingsFile.PARTS)) {
+      for (var key : parts.keys()) {
+        assertTrue(key.name.matches("[a-z0-9]+(\\.[a-z0-9]+)*"), "dotted lower case: " + key.name);
+        assertFalse(key.name.matches(".*(millis|Millis|[a-z]Ms)$"), "durations end in .ms: " + key.name);
+      }
+      parts.renamed().forEach((old, now) -> {
+        assertTrue(parts.key(now) != null, old + " -> " + now + " names a key");
+        assertTrue(parts.key(old) == null, "an earlier spelling is not also a key: " + old);
+      });
+    }
+  }
+
+  /** A file written before the keys were respelled configures exactly what the example does, with one warning a key. */
+  @Test
+  void aFileWithTheEarlierSpellingsStillWorksAndEachIsWarnedOnce() throws IOException {
+    Path file = AlertRules.opsDir().resolve("src/test/resources/config/pairpulse.earlier-spellings.properties");
+    RunConfig earlier = RunConfig.of(properties(file), file.toString(), Map.of(), ENV);
+    RunConfig now = example(Map.of());
+    assertEquals(now.engine(), earlier.engine());
+    assertEquals(now.serve().describe(), earlier.serve().describe());
+    assertEquals(now.evaluation(), earlier.evaluation());
+    assertEquals(now.ingestProperties(), earlier.ingestProperties());
+    assertEquals(now.pipelineSettings().sketchHealthMillis(), earlier.pipelineSettings().sketchHealthMillis());
+    assertTrue(now.deprecations().isEmpty(), "the example uses the current spellings: " + now.deprecations());
+    List<String> deprecations = earlier.deprecations();
+    assertEquals(22, deprecations.size(), String.join("\n", deprecations));
+    assertTrue(deprecations.contains("key 'engine.pairEpsilon' is deprecated: use 'engine.pair.epsilon'"), deprecations.toString());
+    assertTrue(deprecations.contains("key 'drift.minDwellMillis' is deprecated: use 'drift.min.dwell.ms'"), deprecations.toString());
+    assertTrue(earlier.given().contains("engine.pair.epsilon"), "given under the current spelling");
+
+    Path small = dir.resolve("earlier.properties");
+    Files.writeString(small, "bootstrap.servers=k:9092\ntopics=t\nserve.cohortFloor=20\nengine.pairEpsilon=0.002\n",
+        StandardCharsets.UTF_8);
+    MainTestAccess.Run run = MainTestAccess.run("run", "--config", small.toString(), "--print-config");
+    assertEquals(0, run.exitCode(), run.err());
+    String warning = "key 'serve.cohortFloor' is deprecated: use 'serve.cohort.floor'";
+    assertEquals(1, run.err().split(java.util.regex.Pattern.quote(warning), -1).length - 1, "printed once: " + run.err());
+    assertTrue(run.out().contains("* serve.cohort.floor"), run.out());
+    assertFalse(run.out().contains("cohortFloor"), "--print-config shows the current spelling: " + run.out());
+  }
+
+  @Test
+  void bothSpellingsOfOneKeyAreAProblemAndATypoOfAnEarlierSpellingNamesTheNewKey() {
+    RunConfigException e = assertThrows(RunConfigException.class,
+        () -> load("bootstrap.servers=k:9092\ntopics=t\nengine.pairEpsilon=0.001\nengine.pair.epsilon=0.002\n"));
+    assertEquals(1, e.problems().size(), e.getMessage());
+    assertTrue(e.problems().get(0).contains("keep 'engine.pair.epsilon' only"), e.getMessage());
+    e = assertThrows(RunConfigException.class, () -> load("bootstrap.servers=k:9092\ntopics=t\nserve.watchMilis=5\n"));
+    assertTrue(e.problems().get(0).contains("did you mean 'serve.watch.ms'?"), e.getMessage());
+    e = assertThrows(RunConfigException.class, () -> load("bootstrap.servers=k:9092\ntopics=t\nengine.pairEpsilon=2\n"));
+    assertEquals("line 3: engine.pair.epsilon=2: out of range (allowed: (0, 1))", e.problems().get(0),
+        "an earlier spelling is checked as its key, on its line");
+  }
+
+  /** Kafka's config providers: environment, a key of a properties file, a file of a directory; the earlier form too. */
+  @Test
+  void secretsResolveThroughKafkasConfigProviders() throws IOException {
+    Path secrets = dir.resolve("secrets");
+    Files.createDirectories(secrets);
+    Files.writeString(secrets.resolve("http-token"), "token-from-a-mounted-file\n", StandardCharsets.UTF_8);
+    Files.writeString(dir.resolve("kafka.properties"), "password=pw-from-properties\n", StandardCharsets.UTF_8);
+    RunConfig config = load("bootstrap.servers=k:9092\ntopics=t\n"
+        + "serve.token=${dir:" + secrets + ":http-token}\n"
+        + "kafka.ssl.key.password=${file:" + dir.resolve("kafka.properties") + ":password}\n");
+    assertEquals("token-from-a-mounted-file", config.serve().token().orElseThrow(), "trimmed");
+    assertEquals("pw-from-properties", config.kafkaSettings().get("kafka.ssl.key.password"));
+    assertTrue(config.deprecations().isEmpty(), config.deprecations().toString());
+
+    RunConfig earlier = load("bootstrap.servers=k:9092\ntopics=t\nserve.token=${file:" + secrets.resolve("http-token") + "}\n");
+    assertEquals("token-from-a-mounted-file", earlier.serve().token().orElseThrow(), "the earlier whole-file form");
+    assertEquals(List.of("serve.token: '${file:" + secrets.resolve("http-token") + "}' (a whole file) is deprecated: write"
+        + " '${dir:" + secrets + ":http-token}'"), earlier.deprecations());
+
+    RunConfigException e = assertThrows(RunConfigException.class, () -> load("bootstrap.servers=k:9092\ntopics=t\n"
+        + "serve.token=${dir:" + secrets + ":no-such-file}\nkafka.ssl.key.password=${file:" + dir.resolve("none.properties")
+        + ":password}\n"));
+    assertTrue(e.getMessage().contains("line 3: serve.token: cannot read " + secrets.resolve("no-such-file")), e.getMessage());
+    assertTrue(e.getMessage().contains("line 4: kafka.ssl.key.password: cannot resolve"), e.getMessage());
+  }
+
   @Test
   void theKubernetesConfigMapIsAValidConfiguration() throws IOException {
     String yaml = Files.readString(AlertRules.opsDir().resolve("deploy/kubernetes/pairpulse-group.yaml"),
@@ -265,11 +368,16 @@ class RunConfigTest {
   /** The example file with {@code overrides}, resolved against {@link #ENV}. */
   private static RunConfig example(Map<String, String> overrides) throws IOException {
     Path file = AlertRules.opsDir().resolve("config/pairpulse.example.properties");
+    Map<String, String> raw = properties(file);
+    raw.putAll(overrides);
+    return RunConfig.of(raw, file.toString(), Map.of(), ENV);
+  }
+
+  private static Map<String, String> properties(Path file) throws IOException {
     Properties properties = new Properties();
     properties.load(new StringReader(Files.readString(file, StandardCharsets.UTF_8)));
     Map<String, String> raw = new LinkedHashMap<>();
     properties.stringPropertyNames().forEach(k -> raw.put(k, properties.getProperty(k)));
-    raw.putAll(overrides);
-    return RunConfig.of(raw, file.toString(), Map.of(), ENV);
+    return raw;
   }
 }

@@ -54,10 +54,10 @@ class RunPipelineTest {
           "checkpoint.dir=" + checkpoints,
           "refresh.interval.ms=200",
           "serve.port=0",
-          "serve.cohortFloor=10",
+          "serve.cohort.floor=10",
           "alerts.kafka.topic=run-test.alerts",
           "kafka.client.dns.lookup=use_all_dns_ips",
-          "run.sketchHealthIntervalMillis=1000", ""), StandardCharsets.UTF_8);
+          "run.sketch.health.interval.ms=1000", ""), StandardCharsets.UTF_8);
       RunConfig config = RunConfig.load(file);
       int baskets = 300;
       try (Pipeline pipeline = Pipeline.start(config.pipelineSettings())) {
@@ -94,8 +94,8 @@ class RunPipelineTest {
       }
 
       // the file's cohort floor reaches the server: above every count, nothing is published
-      Files.writeString(file, Files.readString(file, StandardCharsets.UTF_8).replace("serve.cohortFloor=10",
-          "serve.cohortFloor=1000").replace("group.id=run-test", "group.id=run-test-floor")
+      Files.writeString(file, Files.readString(file, StandardCharsets.UTF_8).replace("serve.cohort.floor=10",
+          "serve.cohort.floor=1000").replace("group.id=run-test", "group.id=run-test-floor")
           .replace("checkpoint.store=local", "checkpoint.store=none"), StandardCharsets.UTF_8);
       try (Pipeline pipeline = Pipeline.start(RunConfig.load(file).pipelineSettings())) {
         HttpClient http = HttpClient.newHttpClient();

@@ -7,7 +7,7 @@ import org.pairpulse.serve.metrics.ServeMeters;
 import org.pairpulse.serve.wire.Json;
 
 /**
- * Answers' JSON bytes by route, segment, table version and bound request ({@code serve.cacheEntries} entries,
+ * Answers' JSON bytes by route, segment, table version and bound request ({@code serve.cache.entries} entries,
  * least recently used out; 0 switches it off). A new table version is a new key, so no entry is ever stale.
  */
 final class ResponseCache {

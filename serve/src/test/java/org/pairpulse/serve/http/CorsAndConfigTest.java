@@ -11,6 +11,7 @@ import java.nio.file.Files;
 import java.nio.file.Paths;
 import java.util.Map;
 import java.util.Optional;
+import org.apache.kafka.common.config.ConfigDef;
 import org.junit.jupiter.api.Test;
 import org.pairpulse.serve.EvaluationStatus;
 import org.pairpulse.serve.ServeConfig;
@@ -69,12 +70,41 @@ class CorsAndConfigTest {
   }
 
   @Test
-  void theReadmeListsEveryKeyWithItsDefault() throws IOException {
-    String readme = Files.readString(Paths.get("README-serve.md"), StandardCharsets.UTF_8);
-    for (ServeConfig.Key key : ServeConfig.keys()) {
-      String row = "| `" + key.name() + "` | " + (key.defaultValue().isEmpty() ? "(empty)" : "`" + key.defaultValue() + "`")
-          + " |";
-      assertTrue(readme.contains(row), "README-serve.md lacks the row starting " + row);
+  void everyKeyIsDefinedWithKafkasConfigDefinitionsAndEarlierSpellingsMapToKeys() {
+    assertTrue(ServeConfig.DEFINITION.names().size() >= 30, "serve's keys: " + ServeConfig.DEFINITION.names());
+    for (String name : ServeConfig.DEFINITION.names()) {
+      assertTrue(name.matches("[a-z0-9]+(\\.[a-z0-9]+)+"), "dotted lower case: " + name);
     }
+    ServeConfig.RENAMED.forEach((old, now) -> {
+      assertTrue(ServeConfig.DEFINITION.names().contains(now), old + " -> " + now);
+      assertThrows(IllegalArgumentException.class, () -> ServeConfig.from(Map.of(old, "1")),
+          "an earlier spelling is the file readers' business, not ServeConfig's: " + old);
+    });
+    assertEquals(3.0, ServeConfig.from(Map.of(ServeConfig.DRIFT_EXIT_ROOT_G2, " 3 ")).doubleValue(
+        ServeConfig.DRIFT_EXIT_ROOT_G2), "values are trimmed");
+  }
+
+  /** The README's table is the definitions' (rewrite it with -Dpairpulse.writeDocs=true). */
+  @Test
+  void theReadmeTableIsTheDefinitions() throws IOException {
+    StringBuilder table = new StringBuilder("| key | default | valid | meaning |\n| --- | --- | --- | --- |\n");
+    for (ConfigDef.ConfigKey key : ServeConfig.DEFINITION.configKeys().values()) {
+      String defaultText = ConfigDef.convertToString(key.defaultValue, key.type);
+      table.append("| `").append(key.name).append("` | ")
+          .append(defaultText.isEmpty() ? "(empty)" : "`" + defaultText + "`").append(" | ").append(key.validator)
+          .append(" | ").append(key.documentation).append(" |\n");
+    }
+    String begin = "<!-- serve-config-table:begin -->\n";
+    String end = "<!-- serve-config-table:end -->";
+    String readme = Files.readString(Paths.get("README-serve.md"), StandardCharsets.UTF_8);
+    if (Boolean.getBoolean("pairpulse.writeDocs")) {
+      readme = readme.substring(0, readme.indexOf(begin) + begin.length()) + table + readme.substring(readme.indexOf(end));
+      Files.writeString(Paths.get("README-serve.md"), readme, StandardCharsets.UTF_8);
+    }
+    int from = readme.indexOf(begin);
+    int to = readme.indexOf(end);
+    assertTrue(from >= 0 && to > from, "README-serve.md has no table markers");
+    assertEquals(table.toString(), readme.substring(from + begin.length(), to), "README-serve.md's key table is stale;"
+        + " rewrite it with mvn -pl serve test -Dtest=CorsAndConfigTest -Dpairpulse.writeDocs=true");
   }
 }
