@@ -85,8 +85,11 @@ public final class FileSource {
     return front;
   }
 
-  /** Reads one file to its end, then closes its open baskets; {@code progress} may be null. */
-  public Result read(Path file, ProgressDisplay progress) throws IOException {
+  /**
+   * Reads one file to its end, then closes its open baskets, telling {@code progress} how far it got (null:
+   * {@link ReadProgress#NONE}).
+   */
+  public Result read(Path file, ReadProgress progress) throws IOException {
     String name = file.getFileName().toString().toLowerCase(Locale.ROOT);
     boolean gzip = name.endsWith(".gz");
     String plain = gzip ? name.substring(0, name.length() - 3) : name;

@@ -170,8 +170,8 @@ public final class Ingestor implements AutoCloseable {
 
   /**
    * Hands every basket the partitions' fronts let through to {@code sink} too, on the poll thread, before the engine
-   * counts it (the group's live evaluation reads the ingest path this way). Call before {@link #start()}; the sink
-   * must be quick (it holds up the poll loop).
+   * counts it (ops' live evaluation reads the ingest path this way, so an instance needs no second consumer). Call
+   * before {@link #start()}; the sink must be quick (it holds up the poll loop).
    */
   public Ingestor basketTap(BasketSink sink) {
     this.tap = sink;

@@ -1,19 +1,18 @@
 package org.pairpulse.ingest.file;
 
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.io.ByteArrayOutputStream;
 import java.io.OutputStream;
-import java.io.PrintStream;
 import java.io.StringWriter;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Instant;
+import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
-import java.util.concurrent.atomic.AtomicLong;
 import java.util.zip.GZIPOutputStream;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
@@ -79,7 +78,7 @@ class FileSourceTest {
   }
 
   @Test
-  void gzippedCsvWithQuotesAHeaderAndAProgressDisplay(@TempDir Path dir) throws Exception {
+  void gzippedCsvWithQuotesAHeaderAndProgressReports(@TempDir Path dir) throws Exception {
     Path file = dir.resolve("lines.csv.gz");
     StringBuilder csv = new StringBuilder("basket_id,timestamp,item\n");
     int baskets = 3000;
@@ -92,17 +91,35 @@ class FileSourceTest {
     try (OutputStream out = new GZIPOutputStream(Files.newOutputStream(file))) {
       out.write(csv.toString().getBytes(StandardCharsets.UTF_8));
     }
-    ByteArrayOutputStream shown = new ByteArrayOutputStream();
-    AtomicLong now = new AtomicLong(0);
-    ProgressDisplay progress = new ProgressDisplay(new PrintStream(shown, true, StandardCharsets.UTF_8),
-        () -> now.addAndGet(500), "lines.csv.gz", Files.size(file), false, 1000);
+    List<long[]> updates = new ArrayList<>();
+    List<long[]> finished = new ArrayList<>();
+    ReadProgress progress = new ReadProgress() {
+      @Override
+      public void update(long bytesRead, long lines, long basketCount, long deadLetters) {
+        updates.add(new long[] {bytesRead, lines, basketCount, deadLetters});
+      }
+
+      @Override
+      public void finish(long bytesRead, long lines, long basketCount, long deadLetters) {
+        finished.add(new long[] {bytesRead, lines, basketCount, deadLetters});
+      }
+    };
     PairEngine engine = new PairEngine(Workload.engineConfig());
     FileSource.Result result = new FileSource(limits, settings, engine, null).read(file, progress);
     assertEquals(baskets, result.baskets());
     assertEquals(baskets, engine.pairCount("sim, 20gb", "tv \"plus\"", "day").value(), 0.0);
     assertEquals(Map.of(DeadLetterReason.WRONG_TYPE, 1L, DeadLetterReason.MALFORMED, 1L), result.deadLetters());
-    String text = shown.toString(StandardCharsets.UTF_8);
-    assertTrue(text.lines().count() >= 2, "at least one progress line and the final one: " + text);
-    assertTrue(text.contains("100.0%") && text.contains(String.format("%,d baskets", baskets)) && text.contains("2 dead letters"), text);
+    // one update every 1,024 lines (6,003 lines: 5), counts growing; one final report with the result's totals
+    long lines = 1 + 2L * baskets + 2;
+    assertEquals(lines / 1024, updates.size());
+    for (int i = 0; i < updates.size(); i++) {
+      assertEquals(1024L * (i + 1), updates.get(i)[1], "lines at update " + i);
+      if (i > 0) {
+        assertTrue(updates.get(i)[0] >= updates.get(i - 1)[0] && updates.get(i)[2] >= updates.get(i - 1)[2]);
+      }
+    }
+    assertEquals(1, finished.size());
+    assertArrayEquals(new long[] {Files.size(file), lines, baskets, 2}, finished.get(0));
   }
+
 }

@@ -5,9 +5,10 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.util.concurrent.Callable;
-import org.pairpulse.ingest.file.ProgressDisplay;
+import org.pairpulse.ingest.file.ReadProgress;
 import org.pairpulse.ops.evaluation.EvaluationSettings;
 import org.pairpulse.ops.scenario.ScenarioGroundTruth;
+import org.pairpulse.ops.terminal.FileProgress;
 import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.sketch.stats.Measure;
 import picocli.CommandLine.Command;
@@ -96,7 +97,7 @@ public final class BacktestCommand implements Callable<Integer> {
       throw new ParameterException(spec.commandLine(), "--input: no such file: " + input);
     }
     ScenarioGroundTruth truth = groundTruth == null ? null : GroundTruthFile.read(groundTruth);
-    ProgressDisplay progress = quiet ? null : ProgressDisplay.onStandardError("backtest", Files.size(input));
+    ReadProgress progress = quiet ? null : FileProgress.onStandardError("backtest", Files.size(input));
     BacktestRun run = BacktestRun.run(input, settings, truth, progress, null, null);
     Path json = run.writeJson(out);
     PrintWriter stdout = spec.commandLine().getOut();

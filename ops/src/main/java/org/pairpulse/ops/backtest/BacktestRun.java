@@ -14,7 +14,7 @@ import java.util.List;
 import java.util.Locale;
 import java.util.Set;
 import org.pairpulse.ingest.file.FileSource;
-import org.pairpulse.ingest.file.ProgressDisplay;
+import org.pairpulse.ingest.file.ReadProgress;
 import org.pairpulse.ops.evaluation.EvaluationMethod;
 import org.pairpulse.ops.evaluation.Evaluator;
 import org.pairpulse.ops.evaluation.Tally;
@@ -45,7 +45,7 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
    * @param listener replay callbacks, or null
    * @param registry where the evaluation's meters go, or null
    */
-  public static BacktestRun run(Path file, BacktestSettings settings, ScenarioGroundTruth truth, ProgressDisplay progress,
+  public static BacktestRun run(Path file, BacktestSettings settings, ScenarioGroundTruth truth, ReadProgress progress,
       Backtest.Listener listener, MeterRegistry registry) throws IOException {
     return run(file, settings, truth, progress, listener, registry, true);
   }
@@ -54,7 +54,7 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
    * Replays {@code file}; {@code readAhead}: the file is read and decoded on a second thread
    * ({@link ReplaySource#readAhead}; the same baskets in the same order, so the same result), else on the caller's.
    */
-  public static BacktestRun run(Path file, BacktestSettings settings, ScenarioGroundTruth truth, ProgressDisplay progress,
+  public static BacktestRun run(Path file, BacktestSettings settings, ScenarioGroundTruth truth, ReadProgress progress,
       Backtest.Listener listener, MeterRegistry registry, boolean readAhead) throws IOException {
     Set<PairKey> focus = new HashSet<>();
     if (truth != null) {

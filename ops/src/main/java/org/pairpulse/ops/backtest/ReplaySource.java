@@ -14,7 +14,7 @@ import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.function.Consumer;
 import org.pairpulse.ingest.event.EventLimits;
 import org.pairpulse.ingest.file.FileSource;
-import org.pairpulse.ingest.file.ProgressDisplay;
+import org.pairpulse.ingest.file.ReadProgress;
 import org.pairpulse.ingest.front.BasketSink;
 import org.pairpulse.ingest.front.FrontSettings;
 import org.pairpulse.ingest.front.PartitionFront;
@@ -56,7 +56,7 @@ public final class ReplaySource {
    * stays at most {@value #BATCHES_AHEAD} batches of {@value #BATCH_BASKETS} baskets ahead. An exception of either
    * side stops both and is thrown here. {@code progress} is called on the reading thread.
    */
-  public FileSource.Result readAhead(Path file, ProgressDisplay progress, Consumer<ReplayBasket> sink)
+  public FileSource.Result readAhead(Path file, ReadProgress progress, Consumer<ReplayBasket> sink)
       throws IOException {
     Objects.requireNonNull(sink, "sink");
     BlockingQueue<List<ReplayBasket>> queue = new ArrayBlockingQueue<>(BATCHES_AHEAD);
@@ -125,7 +125,7 @@ public final class ReplaySource {
   }
 
   /** Reads {@code file} to its end, then closes its open baskets; {@code progress} may be null. */
-  public FileSource.Result read(Path file, ProgressDisplay progress, Consumer<ReplayBasket> sink) throws IOException {
+  public FileSource.Result read(Path file, ReadProgress progress, Consumer<ReplayBasket> sink) throws IOException {
     target = Objects.requireNonNull(sink, "sink");
     try {
       return files.read(file, progress);

@@ -2,19 +2,16 @@ package org.pairpulse.ops.bench;
 
 import java.io.PrintWriter;
 import java.time.Duration;
-import java.util.Collection;
 import java.util.List;
 import java.util.Locale;
+import java.util.Map;
 import java.util.concurrent.Callable;
-import org.openjdk.jmh.results.RunResult;
-import org.openjdk.jmh.runner.Runner;
-import org.openjdk.jmh.runner.RunnerException;
-import org.openjdk.jmh.runner.options.ChainedOptionsBuilder;
-import org.openjdk.jmh.runner.options.OptionsBuilder;
-import org.openjdk.jmh.runner.options.TimeValue;
 import org.pairpulse.sketch.cms.CountMinSketch;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.EngineStats;
+import org.pairpulse.sketch.bench.CountMinBenchmark;
+import org.pairpulse.sketch.bench.EngineStream;
+import org.pairpulse.sketch.bench.PairEngineBenchmark;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
@@ -31,6 +28,8 @@ import picocli.CommandLine.Spec;
  *   <li>count-min: {@link CountMinBenchmark}, pairpulse vs stream-lib at equal (ε, δ) (JMH, one run);</li>
  *   <li>accuracy: {@link AccuracyCheck} on an {@link AccuracyStream} against {@link ExactCounts}.</li>
  * </ol>
+ * The two JMH benchmarks live beside the code they measure, in sketch's test sources ({@code org.pairpulse.sketch.bench},
+ * shipped in sketch's test-jar, which ops depends on); JMH finds them by that jar's {@code META-INF/BenchmarkList}.
  * With the defaults it takes about a minute on 2 cores (plus the first build). Run: {@code ops/pairpulse bench sketch}.
  */
 @Command(name = "sketch", mixinStandardHelpOptions = true, sortOptions = false, usageHelpAutoWidth = true,
@@ -118,7 +117,7 @@ public final class SketchBenchCommand implements Callable<Integer> {
   int detailLines = 12;
 
   @Override
-  public Integer call() throws RunnerException {
+  public Integer call() {
     validate();
     PrintWriter out = spec.commandLine().getOut();
     PrintWriter err = spec.commandLine().getErr();
@@ -129,19 +128,19 @@ public final class SketchBenchCommand implements Callable<Integer> {
 
     // ---- phase 1: throughput of the whole sketch layer
     long phase = System.nanoTime();
-    ThroughputStream preview = ThroughputStream.generate(seed, catalogItems, streamBaskets, PairEngineBenchmark.LAP_MILLIS);
+    EngineStream preview = EngineStream.generate(seed, catalogItems, streamBaskets, PairEngineBenchmark.LAP_MILLIS);
     out.printf(Locale.ROOT, "phase 1/3 throughput: PairEngine.addBasket, one thread; stream %,d baskets over %s per lap, catalog %,d"
             + " (Zipf %.1f), %.2f items and %.2f pairs per basket%n", preview.size(),
-        Duration.ofMillis(PairEngineBenchmark.LAP_MILLIS), catalogItems, ThroughputStream.ZIPF_EXPONENT, preview.meanItems(),
+        Duration.ofMillis(PairEngineBenchmark.LAP_MILLIS), catalogItems, EngineStream.ZIPF_EXPONENT, preview.meanItems(),
         preview.meanPairs());
     out.flush();
-    Collection<RunResult> engineRuns = runJmh(jmhOptions(PairEngineBenchmark.class.getName() + "\\.")
-        .param("streamBaskets", Integer.toString(streamBaskets))
-        .param("catalogItems", Integer.toString(catalogItems))
-        .param("seed", Long.toString(seed)), out, err);
-    RunResult engineRun = single(engineRuns, "addBasket");
-    double basketsPerSecond = engineRun.getPrimaryResult().getScore();
-    double pairsPerSecond = engineRun.getSecondaryResults().get("pairs").getScore();
+    Map<String, JmhRuns.Score> engineRuns = JmhRuns.run(PairEngineBenchmark.class.getName(), Map.of(
+        "streamBaskets", Integer.toString(streamBaskets),
+        "catalogItems", Integer.toString(catalogItems),
+        "seed", Long.toString(seed)), jmh(), out, err);
+    JmhRuns.Score engineRun = single(engineRuns, "addBasket");
+    double basketsPerSecond = engineRun.score();
+    double pairsPerSecond = engineRun.secondary().get("pairs");
     out.printf(Locale.ROOT, "phase 1/3 throughput: %,.0f baskets/s (99.9%% CI +/- %s) = %,.0f pairs/s; took %s%n",
         basketsPerSecond, error(engineRun), pairsPerSecond, seconds(phase));
 
@@ -154,12 +153,12 @@ public final class SketchBenchCommand implements Callable<Integer> {
         CountMinBenchmark.streamLibDepth(cmsDelta));
     out.printf(Locale.ROOT, "  stream-lib says: %s%n", CountMinBenchmark.streamLibSketch(cmsEpsilon, cmsDelta, seed));
     out.flush();
-    Collection<RunResult> cmsRuns = runJmh(jmhOptions(CountMinBenchmark.class.getName() + "\\.")
-        .param("epsilon", Double.toString(cmsEpsilon))
-        .param("delta", Double.toString(cmsDelta))
-        .param("seed", Long.toString(seed)), out, err);
-    double oursPerSecond = single(cmsRuns, "pairpulseLinear").getPrimaryResult().getScore();
-    double theirsPerSecond = single(cmsRuns, "streamLib").getPrimaryResult().getScore();
+    Map<String, JmhRuns.Score> cmsRuns = JmhRuns.run(CountMinBenchmark.class.getName(), Map.of(
+        "epsilon", Double.toString(cmsEpsilon),
+        "delta", Double.toString(cmsDelta),
+        "seed", Long.toString(seed)), jmh(), out, err);
+    double oursPerSecond = single(cmsRuns, "pairpulseLinear").score();
+    double theirsPerSecond = single(cmsRuns, "streamLib").score();
     double cmsRatio = oursPerSecond / theirsPerSecond;
     out.printf(Locale.ROOT, "phase 2/3 count-min: pairpulse %,.0f adds/s (+/- %s), stream-lib %,.0f adds/s (+/- %s), ratio %.3f;"
             + " took %s%n", oursPerSecond, error(single(cmsRuns, "pairpulseLinear")), theirsPerSecond,
@@ -261,39 +260,21 @@ public final class SketchBenchCommand implements Callable<Integer> {
     return new ParameterException(spec.commandLine(), message);
   }
 
-  private ChainedOptionsBuilder jmhOptions(String include) {
-    ChainedOptionsBuilder options = new OptionsBuilder()
-        .include(include)
-        .forks(forks)
-        .warmupIterations(warmupIterations)
-        .warmupTime(TimeValue.milliseconds(iterationMillis))
-        .measurementIterations(measurementIterations)
-        .measurementTime(TimeValue.milliseconds(iterationMillis))
-        .threads(1)
-        .shouldFailOnError(true);
-    if (forks > 0) {
-      options.jvmArgsAppend("-Xmx" + forkHeap);
-    }
-    return options;
+  private JmhRuns.Settings jmh() {
+    return new JmhRuns.Settings(forks, warmupIterations, measurementIterations, iterationMillis, forkHeap);
   }
 
-  private static Collection<RunResult> runJmh(ChainedOptionsBuilder options, PrintWriter out, PrintWriter err)
-      throws RunnerException {
-    return new Runner(options.build(), new JmhProgress(out, err)).run();
-  }
-
-  private static RunResult single(Collection<RunResult> runs, String method) {
-    for (RunResult run : runs) {
-      if (run.getParams().getBenchmark().endsWith("." + method)) {
-        return run;
-      }
+  private static JmhRuns.Score single(Map<String, JmhRuns.Score> runs, String method) {
+    JmhRuns.Score score = runs.get(method);
+    if (score == null) {
+      throw new IllegalStateException("JMH returned no result for benchmark method " + method);
     }
-    throw new IllegalStateException("JMH returned no result for benchmark method " + method);
+    return score;
   }
 
   /** JMH's 99.9% confidence half-width of the primary score (n/a with one measurement). */
-  private static String error(RunResult run) {
-    double error = run.getPrimaryResult().getScoreError();
+  private static String error(JmhRuns.Score run) {
+    double error = run.error();
     return Double.isNaN(error) ? "n/a" : String.format(Locale.ROOT, "%,.0f", error);
   }
 

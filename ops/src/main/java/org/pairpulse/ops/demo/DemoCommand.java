@@ -10,6 +10,7 @@ import java.util.concurrent.TimeUnit;
 import java.util.regex.Matcher;
 import java.util.regex.Pattern;
 import org.pairpulse.ops.scenario.ScenarioConfig;
+import org.pairpulse.ops.terminal.ProgressLine;
 import org.pairpulse.serve.drift.AlertKind;
 import picocli.CommandLine.ArgGroup;
 import picocli.CommandLine.Command;
@@ -85,7 +86,7 @@ public final class DemoCommand implements Callable<Integer> {
       quietLogs();
     }
     PrintWriter out = spec.commandLine().getOut();
-    boolean terminal = System.console() != null;
+    boolean terminal = ProgressLine.isTerminal();
     CountDownLatch finished = new CountDownLatch(1);
     Stop stop = new Stop();
     Thread hook = new Thread(() -> {
@@ -146,7 +147,7 @@ public final class DemoCommand implements Callable<Integer> {
     line.message(String.format(Locale.ROOT,
         "playing Kestrel Connect (invented data): %s, one simulated day per %s s, %s baskets per simulated minute%s;"
             + " Ctrl-C stops", describe(settings), trim(settings.simDaySeconds()), trim(settings.basketsPerMinute()),
-        settings.fastForwardSimMillis() == 0 ? "" : ", the first " + ProgressLine.simDuration(settings.fastForwardSimMillis())
+        settings.fastForwardSimMillis() == 0 ? "" : ", the first " + DemoProgressText.simDuration(settings.fastForwardSimMillis())
             + " sent at once"));
     long printEvery = terminal ? 1000 : 5000;
     long lastPrint = -printEvery;
@@ -158,7 +159,7 @@ public final class DemoCommand implements Callable<Integer> {
         rulesReported = true;
         Demo.Progress p = demo.progress();
         line.message(String.format(Locale.ROOT, "first rules after %.1f s (%,d published pairs at simulated %s)",
-            demo.firstRulesWallMillis() / 1000.0, p.rules(), ProgressLine.simTime(p.watermarkMillis(), p.simStartMillis())));
+            demo.firstRulesWallMillis() / 1000.0, p.rules(), DemoProgressText.simTime(p.watermarkMillis(), p.simStartMillis())));
       }
       reported = reportDetections(demo, line, reported);
       if (demo.pipeline().failure() != null) {
@@ -167,7 +168,7 @@ public final class DemoCommand implements Callable<Integer> {
       }
       if (demo.wallMillis() - lastPrint >= printEvery) {
         lastPrint = demo.wallMillis();
-        line.progress(demo.progress());
+        line.progress(DemoProgressText.format(demo.progress()));
       }
       Thread.sleep(250); // the progress loop: milestones within a quarter second
     }
@@ -176,7 +177,7 @@ public final class DemoCommand implements Callable<Integer> {
     }
     boolean played = demo.awaitPlayed(Duration.ofSeconds(60));
     reportDetections(demo, line, reported);
-    line.progress(demo.progress());
+    line.progress(DemoProgressText.format(demo.progress()));
     line.end();
     summary(demo, out, played);
     return 0;
@@ -188,7 +189,7 @@ public final class DemoCommand implements Callable<Integer> {
       Demo.Detection d = detections.get(i);
       line.message(String.format(Locale.ROOT, "alert: %s %s + %s at simulated %s, %.0f simulated minutes after the"
               + " planted change (%.1f s after the start)", d.alert().kind().wireName(), d.planted().items().get(0),
-          d.planted().items().get(1), ProgressLine.simTime(d.alert().atMillis(), demo.settings().scenario().startMillis()),
+          d.planted().items().get(1), DemoProgressText.simTime(d.alert().atMillis(), demo.settings().scenario().startMillis()),
           d.delaySimMinutes(), d.wallMillisSinceStart() / 1000.0));
     }
     return detections.size();
@@ -228,7 +229,7 @@ public final class DemoCommand implements Callable<Integer> {
 
   private static String describe(DemoSettings settings) {
     return settings.durationSimMillis() == DemoSettings.FOREVER ? "until Ctrl-C"
-        : ProgressLine.simDuration(settings.durationSimMillis()) + " of simulated time";
+        : DemoProgressText.simDuration(settings.durationSimMillis()) + " of simulated time";
   }
 
   private static String trim(double value) {

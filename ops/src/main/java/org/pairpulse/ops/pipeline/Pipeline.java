@@ -18,7 +18,6 @@ import java.util.concurrent.TimeoutException;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.NewTopic;
 import org.apache.kafka.common.errors.TopicExistsException;
-import org.pairpulse.ingest.event.EventDecoder;
 import org.apache.kafka.common.config.TopicConfig;
 import org.pairpulse.ingest.kafka.GroupCoverage;
 import org.pairpulse.ingest.kafka.IngestConfig;
@@ -66,7 +65,8 @@ import org.slf4j.LoggerFactory;
  *
  * <h2>Threads</h2>
  * Ingest's poll and engine threads, serve's Jetty pool, table watcher and alert dispatcher, and one
- * sketch-health thread here, and the live evaluation's consumer thread when it runs. {@link #close()} may be called
+ * sketch-health thread here. The live evaluation, when it runs, is a tap on ingest's poll thread
+ * ({@link LiveEvaluation}): the instance reads its basket topics with one consumer, ingest's. {@link #close()} may be called
  * from a shutdown hook.
  */
 public final class Pipeline implements AutoCloseable {
@@ -229,16 +229,13 @@ public final class Pipeline implements AutoCloseable {
           return leader.leading();
         }
       });
-      if (settings.evaluates()) {
-        evaluation = LiveEvaluation.onIngestPath(settings.evaluation(), () -> served.get().view(ServeServer.ALL),
-            registry, groupAlerts::leading);
-        ingestor.basketTap(evaluation.tap());
-        builder.evaluation(evaluation);
-      }
-    } else if (settings.evaluates()) {
-      evaluation = new LiveEvaluation(KafkaClientProperties.forClient(ingestConfig, KafkaClientProperties.Kind.CONSUMER),
-          ingestConfig.topics(), new EventDecoder(ingestConfig.eventLimits(wallClock)), ingestConfig.frontSettings(),
-          settings.evaluation(), () -> served.get().view(ServeServer.ALL), registry, trial -> { });
+    }
+    if (settings.evaluates()) {
+      // a tap on ingest's path, not a consumer of its own: one consumer per instance
+      GroupAlerts leader = groupAlerts;
+      evaluation = LiveEvaluation.onIngestPath(settings.evaluation(), () -> served.get().view(ServeServer.ALL),
+          registry, leader == null ? () -> true : leader::leading);
+      ingestor.basketTap(evaluation.tap());
       builder.evaluation(evaluation);
     }
     ServeServer server = null;
@@ -274,9 +271,6 @@ public final class Pipeline implements AutoCloseable {
     }
     ingestor.start();
     health.started();
-    if (evaluation != null) {
-      evaluation.start(); // reads from the end of the basket topics, which ingest has made sure exist
-    }
     return this;
   }
 
@@ -363,9 +357,6 @@ public final class Pipeline implements AutoCloseable {
       return;
     }
     closed = true;
-    if (evaluation != null) {
-      evaluation.close();
-    }
     ingestor.close();
     health.stopped();
     sketch.close();

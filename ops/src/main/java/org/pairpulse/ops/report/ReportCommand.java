@@ -15,11 +15,12 @@ import java.util.Properties;
 import java.util.TreeMap;
 import java.util.concurrent.Callable;
 import org.apache.kafka.common.config.ConfigException;
-import org.pairpulse.ingest.file.ProgressDisplay;
+import org.pairpulse.ingest.file.ReadProgress;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.ops.backtest.BacktestSettings;
 import org.pairpulse.ops.backtest.SettingsFile;
+import org.pairpulse.ops.terminal.FileProgress;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.ArgGroup;
@@ -112,7 +113,7 @@ public final class ReportCommand implements Callable<Integer> {
     if (source.input != null) {
       requireFile(source.input, "--input");
       engine = base.engine();
-      ProgressDisplay progress = quiet ? null : ProgressDisplay.onStandardError("report", Files.size(source.input));
+      ReadProgress progress = quiet ? null : FileProgress.onStandardError("report", Files.size(source.input));
       Map<String, Long> skipped = new TreeMap<>();
       tables = ReportSources.replay(source.input, engine, base, segments,
           (attribute, value, reason) -> skipped.merge(attribute + " (" + reason.wireName() + ")", 1L, Long::sum), progress);

@@ -11,7 +11,7 @@ import java.util.SortedMap;
 import java.util.TreeMap;
 import java.util.stream.Stream;
 import org.pairpulse.ingest.checkpoint.PartitionCheckpoint;
-import org.pairpulse.ingest.file.ProgressDisplay;
+import org.pairpulse.ingest.file.ReadProgress;
 import org.pairpulse.ingest.segment.SegmentEngines;
 import org.pairpulse.ingest.segment.SegmentSettings;
 import org.pairpulse.ops.backtest.BacktestSettings;
@@ -41,7 +41,7 @@ public final class ReportSources {
    * @return the tables, {@code all} first, then the segments in name order
    */
   public static Map<String, PairTable> replay(Path file, EngineConfig engineConfig, BacktestSettings input,
-      SegmentSettings segments, SegmentEngines.SkipListener skipped, ProgressDisplay progress) throws IOException {
+      SegmentSettings segments, SegmentEngines.SkipListener skipped, ReadProgress progress) throws IOException {
     SegmentEngines engines = new SegmentEngines(engineConfig, segments, skipped);
     ReplaySource source = new ReplaySource(input.limits(), input.front());
     source.read(file, progress, basket -> engines.addBasket(basket.eventMillis(),

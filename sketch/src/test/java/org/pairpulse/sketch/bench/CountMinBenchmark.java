@@ -1,4 +1,4 @@
-package org.pairpulse.ops.bench;
+package org.pairpulse.sketch.bench;
 
 import java.util.SplittableRandom;
 import java.util.concurrent.TimeUnit;
@@ -21,7 +21,8 @@ import org.pairpulse.sketch.cms.UpdateRule;
  * confidence 1 − δ (width ⌈2/ε⌉, depth ⌈−ln(1 − confidence)/ln 2⌉). Each invocation adds weight 1 to
  * the next of 2^20 pre-generated random 64-bit keys (stream-lib's {@code add(long, long)}).
  *
- * <p>Run it as part of the sketch benchmark ({@code ops/pairpulse bench sketch}), or alone:
+ * <p>A JMH benchmark in sketch's test sources (not a unit test: surefire runs {@code *Test} classes only), shipped in
+ * sketch's test-jar. Run it as part of the sketch benchmark ({@code ops/pairpulse bench sketch}), or alone:
  * <pre>
  *   ops/pairpulse --help   # builds once
  *   java -cp "ops/target/pairpulse-ops.jar:ops/target/lib/*" org.openjdk.jmh.Main CountMinBenchmark \
@@ -64,22 +65,22 @@ public class CountMinBenchmark {
   }
 
   /** pairpulse's sketch for (ε, δ). */
-  static CountMinSketch pairpulseSketch(double epsilon, double delta, long seed) {
+  public static CountMinSketch pairpulseSketch(double epsilon, double delta, long seed) {
     return CountMinSketch.forError(epsilon, delta, UpdateRule.LINEAR, seed);
   }
 
   /** stream-lib's sketch for the same (ε, δ): its constructor takes ε and confidence = 1 − δ. */
-  static com.clearspring.analytics.stream.frequency.CountMinSketch streamLibSketch(double epsilon, double delta, long seed) {
+  public static com.clearspring.analytics.stream.frequency.CountMinSketch streamLibSketch(double epsilon, double delta, long seed) {
     return new com.clearspring.analytics.stream.frequency.CountMinSketch(epsilon, 1 - delta, (int) seed);
   }
 
   /** stream-lib's width for ε: ⌈2/ε⌉ (from its constructor). */
-  static int streamLibWidth(double epsilon) {
+  public static int streamLibWidth(double epsilon) {
     return (int) Math.ceil(2 / epsilon);
   }
 
   /** stream-lib's depth for δ: ⌈−ln(δ)/ln 2⌉ with δ = 1 − confidence (from its constructor). */
-  static int streamLibDepth(double delta) {
+  public static int streamLibDepth(double delta) {
     return (int) Math.ceil(-Math.log(1 - (1 - delta)) / Math.log(2));
   }
 

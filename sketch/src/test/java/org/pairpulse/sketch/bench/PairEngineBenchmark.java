@@ -1,4 +1,4 @@
-package org.pairpulse.ops.bench;
+package org.pairpulse.sketch.bench;
 
 import java.time.Duration;
 import java.util.concurrent.TimeUnit;
@@ -19,12 +19,13 @@ import org.pairpulse.sketch.engine.PairEngine;
  * Pair-update throughput through the whole sketch layer: {@link PairEngine#addBasket} with the default
  * {@link EngineConfig} (horizons recent, day, baseline; the tracked item and pair tables), one thread.
  *
- * <p>The stream is pre-generated in the trial setup ({@link ThroughputStream}: Zipf over the catalog,
+ * <p>The stream is pre-generated in the trial setup ({@link EngineStream}: Zipf over the catalog,
  * 1–8 items per basket, mean 4, event times over 7 days per lap so panes roll) and replayed in laps with
  * event time moving on. The primary score is baskets per second; the auxiliary counter {@code pairs}
  * adds each basket's b(b−1)/2 pair occurrences, so JMH reports pairs per second beside it.
  *
- * <p>Run it as part of the sketch benchmark ({@code ops/pairpulse bench sketch}), or alone:
+ * <p>A JMH benchmark in sketch's test sources (not a unit test: surefire runs {@code *Test} classes only), shipped in
+ * sketch's test-jar. Run it as part of the sketch benchmark ({@code ops/pairpulse bench sketch}), or alone:
  * <pre>
  *   ops/pairpulse --help   # builds once
  *   java -cp "ops/target/pairpulse-ops.jar:ops/target/lib/*" org.openjdk.jmh.Main PairEngineBenchmark \
@@ -35,7 +36,7 @@ import org.pairpulse.sketch.engine.PairEngine;
 @OutputTimeUnit(TimeUnit.SECONDS)
 public class PairEngineBenchmark {
   /** Event time one lap of the stream covers. */
-  static final long LAP_MILLIS = Duration.ofDays(7).toMillis();
+  public static final long LAP_MILLIS = Duration.ofDays(7).toMillis();
 
   /** The engine and the stream it is fed. */
   @State(Scope.Thread)
@@ -50,13 +51,13 @@ public class PairEngineBenchmark {
     public long seed;
 
     PairEngine engine;
-    ThroughputStream stream;
+    EngineStream stream;
     int next;
     long lapOffsetMillis;
 
     @Setup(Level.Trial)
     public void setUp() {
-      stream = ThroughputStream.generate(seed, catalogItems, streamBaskets, LAP_MILLIS);
+      stream = EngineStream.generate(seed, catalogItems, streamBaskets, LAP_MILLIS);
       engine = new PairEngine(EngineConfig.defaults());
       next = 0;
       lapOffsetMillis = 0;
@@ -78,7 +79,7 @@ public class PairEngineBenchmark {
   @Benchmark
   public void addBasket(EngineState state, PairCounter counter) {
     int i = state.next;
-    ThroughputStream stream = state.stream;
+    EngineStream stream = state.stream;
     state.engine.addBasket(stream.eventMillis[i] + state.lapOffsetMillis, stream.baskets[i]);
     counter.pairs += stream.pairsOfBasket[i];
     if (++i == stream.size()) {

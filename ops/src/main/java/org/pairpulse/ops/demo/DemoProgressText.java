@@ -1,52 +1,15 @@
 package org.pairpulse.ops.demo;
 
-import java.io.PrintWriter;
 import java.util.Locale;
 
 /**
- * The demo's live line: on a terminal one line redrawn in place ({@code \r}, cleared to its end), with
- * messages printed above it; elsewhere (a log, a pipe) one line per update, so that logs stay readable.
+ * What the demo's progress line says ({@link org.pairpulse.ops.terminal.ProgressLine} draws it): the simulated clock,
+ * how far ingest has counted, the rates and counts, in the scenario's own time ("day 3 19:40").
  */
-final class ProgressLine {
-  private final PrintWriter out;
-  private final boolean inPlace;
-  private String current = "";
+final class DemoProgressText {
+  private DemoProgressText() {}
 
-  ProgressLine(PrintWriter out, boolean inPlace) {
-    this.out = out;
-    this.inPlace = inPlace;
-  }
-
-  /** A message on its own line (the progress line, if any, is redrawn below it). */
-  void message(String text) {
-    if (inPlace) {
-      out.print("\r\033[K" + text + "\n" + current);
-    } else {
-      out.println(text);
-    }
-    out.flush();
-  }
-
-  void progress(Demo.Progress p) {
-    String line = format(p);
-    if (inPlace) {
-      current = line;
-      out.print("\r\033[K" + line);
-    } else {
-      out.println(line);
-    }
-    out.flush();
-  }
-
-  /** Ends the in-place line. */
-  void end() {
-    if (inPlace && !current.isEmpty()) {
-      out.println();
-      current = "";
-    }
-    out.flush();
-  }
-
+  /** The progress line for {@code p}. */
   static String format(Demo.Progress p) {
     String simulated = simTime(p.simMillis(), p.simStartMillis());
     String counted = p.watermarkMillis() == Long.MIN_VALUE ? "-" : simTime(p.watermarkMillis(), p.simStartMillis());
