@@ -96,12 +96,7 @@ public final class ReportCommand implements Callable<Integer> {
     ShortlistSettings settings;
     SegmentSettings segments;
     try {
-      if (config != null) {
-        if (!Files.isRegularFile(config)) {
-          throw new IllegalArgumentException("--config: no such file: " + config);
-        }
-        base = SettingsFile.read(config, base);
-      }
+      base = SettingsFile.readOption(config, base, spec.commandLine().getErr(), "report");
       settings = new ShortlistSettings(minConfidence, maxConfidence, top, horizon, base.drift(),
           floor != null ? floor : base.cohortFloor());
       segments = segmentSettings();

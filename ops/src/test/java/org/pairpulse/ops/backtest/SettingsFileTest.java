@@ -158,4 +158,19 @@ class SettingsFileTest {
     }
     assertTrue(named >= 12, "keys named: " + named);
   }
+  /** What backtest, report and the replay benchmarks print for a file with an earlier spelling: one line a key. */
+  @Test
+  void theCommandsPrintEachDeprecationOnceWithTheirName(@TempDir Path directory) throws IOException {
+    Path file = directory.resolve("earlier.properties");
+    Files.writeString(file, "serve.cohortFloor=20\nengine.pairRanking=count\n");
+    java.io.StringWriter err = new java.io.StringWriter();
+    BacktestSettings settings = SettingsFile.readOption(file, BacktestSettings.defaults(), new java.io.PrintWriter(err),
+        "report");
+    assertEquals(20.0, settings.cohortFloor());
+    assertEquals(List.of("report: " + file + ": key 'engine.pairRanking' is deprecated: use 'engine.pair.ranking'",
+        "report: " + file + ": key 'serve.cohortFloor' is deprecated: use 'serve.cohort.floor'"),
+        err.toString().lines().toList());
+    assertEquals(BacktestSettings.defaults(), SettingsFile.readOption(null, BacktestSettings.defaults(),
+        new java.io.PrintWriter(err), "report"), "no file: the base");
+  }
 }
