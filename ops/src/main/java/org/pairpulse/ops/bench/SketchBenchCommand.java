@@ -15,6 +15,7 @@ import org.openjdk.jmh.runner.options.TimeValue;
 import org.pairpulse.sketch.cms.CountMinSketch;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.EngineStats;
+import org.pairpulse.sketch.fixtures.ExactCounts;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;

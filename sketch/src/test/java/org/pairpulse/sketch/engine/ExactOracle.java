@@ -5,18 +5,22 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.TreeSet;
+import org.pairpulse.sketch.fixtures.ExactCounts;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 
 /**
- * The slow, obvious oracle for the engine: keeps every basket and recomputes exact counts on demand,
- * with the same window semantics (the panes overlapping the newest pane's window) and the direct decay
- * formula 2^(−(asOf − t) / halfLife) per basket (Cormode et al. 2009, Definition 1 with exponential g).
+ * The engine's oracle: the shared exact counts ({@link ExactCounts}: N, n_a, n_ab per window or decay as of the
+ * watermark) of every basket kept, plus what only the engine's tests need, recomputed from every basket with the
+ * direct decay formula 2^(−(asOf − t) / halfLife) per basket (Cormode et al. 2009, Definition 1 with exponential g):
+ * the fractional rank weights and the size-adjusted null model's sums.
  */
 final class ExactOracle {
   record Basket(long eventMillis, List<String> items) {}
 
   final List<Basket> baskets = new ArrayList<>();
   long watermarkMillis = Long.MIN_VALUE;
+  private final Map<HorizonSpec, ExactCounts> counted = new HashMap<>();
+  private final Map<HorizonSpec, Integer> countedBaskets = new HashMap<>();
 
   void add(long eventMillis, String... items) {
     TreeSet<String> distinct = new TreeSet<>();
@@ -42,42 +46,30 @@ final class ExactOracle {
     return Math.pow(2.0, -(double) (watermarkMillis - eventMillis) / h.halfLifeMillis());
   }
 
-  double baskets(HorizonSpec h) {
-    double sum = 0;
-    for (Basket b : baskets) {
-      sum += weight(h, b.eventMillis);
+  /** The shared oracle's counts of every basket so far in {@code h}. */
+  private ExactCounts counts(HorizonSpec h) {
+    if (countedBaskets.getOrDefault(h, -1) != baskets.size()) {
+      ExactCounts exact = new ExactCounts(List.of(h));
+      for (Basket basket : baskets) {
+        exact.add(basket.eventMillis(), basket.items());
+      }
+      counted.put(h, exact);
+      countedBaskets.put(h, baskets.size());
     }
-    return sum;
+    return counted.get(h);
+  }
+
+  double baskets(HorizonSpec h) {
+    return counts(h).baskets(h.name());
   }
 
   Map<String, Double> itemCounts(HorizonSpec h) {
-    Map<String, Double> counts = new HashMap<>();
-    for (Basket b : baskets) {
-      double w = weight(h, b.eventMillis);
-      if (w > 0) {
-        for (String item : b.items) {
-          counts.merge(item, w, Double::sum);
-        }
-      }
-    }
-    return counts;
+    return counts(h).itemCountsByName(h.name());
   }
 
   /** Pair counts keyed "a|b" with a < b. */
   Map<String, Double> pairCounts(HorizonSpec h) {
-    Map<String, Double> counts = new HashMap<>();
-    for (Basket b : baskets) {
-      double w = weight(h, b.eventMillis);
-      if (w > 0) {
-        List<String> items = b.items;
-        for (int i = 0; i < items.size(); i++) {
-          for (int j = i + 1; j < items.size(); j++) {
-            counts.merge(items.get(i) + "|" + items.get(j), w, Double::sum);
-          }
-        }
-      }
-    }
-    return counts;
+    return counts(h).pairCountsByName(h.name());
   }
 
   /**
@@ -101,7 +93,7 @@ final class ExactOracle {
   }
 
   static String[] split(String pairKey) {
-    return pairKey.split("\\|", 2);
+    return ExactCounts.splitPairName(pairKey);
   }
 
   /**
