@@ -21,7 +21,9 @@ import org.apache.kafka.common.header.internals.RecordHeaders;
 import org.pairpulse.ingest.event.DeadLetterReason;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
+import org.pairpulse.sketch.fixtures.BasketStream;
 import org.pairpulse.sketch.fixtures.ExactCounts;
+import org.pairpulse.sketch.fixtures.ZipfSampler;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Estimate;
 
@@ -98,15 +100,15 @@ public final class Workload {
 
   private final Random random;
   private final String[] catalog;
+  /** Zipf's law with exponent 0.5 (the shared sampler): the skew of the square of a uniform number, p(i) ∝ i^−½. */
+  private final ZipfSampler popularity;
   private final List<Rec> recentBaskets = new ArrayList<>();
   private String attributes; // of the basket being encoded, or null
 
   private Workload(long seed, int catalogSize) {
     this.random = new Random(seed);
-    this.catalog = new String[catalogSize];
-    for (int i = 0; i < catalogSize; i++) {
-      catalog[i] = "item-" + i;
-    }
+    this.catalog = BasketStream.numbered("item-", catalogSize);
+    this.popularity = new ZipfSampler(catalogSize, 0.5);
   }
 
   /** The engine configuration the tests use: small sketches, tables larger than the catalog's pairs. */
@@ -167,9 +169,7 @@ public final class Workload {
     int size = 1 + random.nextInt(5);
     List<String> items = new ArrayList<>();
     for (int k = 0; k < size; k++) {
-      // skewed: low ids are frequent
-      double u = random.nextDouble();
-      items.add(catalog[(int) (catalog.length * u * u)]);
+      items.add(catalog[popularity.sample(random.nextDouble())]); // skewed: low ids are frequent
     }
     if (random.nextInt(20) == 0) {
       items.add(items.get(0)); // a repeated item counts once

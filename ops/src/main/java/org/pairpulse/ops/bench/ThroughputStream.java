@@ -40,8 +40,13 @@ final class ThroughputStream {
     String[][] baskets = new String[basketCount][];
     long[] times = new long[basketCount];
     int[] pairs = new int[basketCount];
+    int[] ids = new int[source.maxBasketItems()];
     for (int b = 0; b < basketCount; b++) {
-      String[] basket = source.nextBasket();
+      int filled = source.next(0L, ids);
+      String[] basket = new String[filled]; // only the baskets are allocated: they lie together in memory
+      for (int i = 0; i < filled; i++) {
+        basket[i] = source.name(ids[i]);
+      }
       baskets[b] = basket;
       times[b] = START_MILLIS + (long) ((double) b * spanMillis / basketCount);
       pairs[b] = basket.length * (basket.length - 1) / 2;

@@ -103,31 +103,11 @@ final class ExactOracle {
    */
   java.util.function.ToDoubleBiFunction<String, String> stratifiedExpected(HorizonSpec h,
       org.pairpulse.sketch.stats.SizeClasses classes) {
-    int count = classes.count();
-    double[] n = new double[count];
-    double[] slots = new double[count];
-    double[] pairSlots = new double[count];
-    Map<String, double[]> byItem = new HashMap<>();
-    for (Basket basket : baskets) {
-      double w = weight(h, basket.eventMillis);
-      int k = basket.items.size();
-      int c = classes.classOf(k);
-      n[c] += w;
-      slots[c] += w * k;
-      pairSlots[c] += w * k * (k - 1.0);
-      for (String item : basket.items) {
-        byItem.computeIfAbsent(item, key -> new double[count])[c] += w;
-      }
-    }
+    ClassSums sums = classSums(h, classes, Integer.MAX_VALUE);
     return (a, b) -> {
-      double[] na = byItem.getOrDefault(a, new double[count]);
-      double[] nb = byItem.getOrDefault(b, new double[count]);
       double sum = 0;
-      for (int c = 0; c < count; c++) {
-        if (n[c] > 0 && pairSlots[c] > 0 && !classes.pairless(c)) {
-          double rho = n[c] * pairSlots[c] / (slots[c] * slots[c]);
-          sum += rho * na[c] * nb[c] / n[c];
-        }
+      for (int c = 0; c < classes.count(); c++) {
+        sum += sums.expected(c, a, b);
       }
       return sum;
     };
@@ -140,39 +120,51 @@ final class ExactOracle {
    */
   java.util.function.ToDoubleBiFunction<String, String> pairCountDispersion(HorizonSpec h,
       org.pairpulse.sketch.stats.SizeClasses classes, int maxPairsPerBasket) {
+    ClassSums sums = classSums(h, classes, maxPairsPerBasket);
+    return (a, b) -> {
+      double expected = 0;
+      double stepped = 0;
+      for (int c = 0; c < classes.count(); c++) {
+        double term = sums.expected(c, a, b);
+        expected += term;
+        stepped += term == 0 ? 0 : term * sums.steppedSlots[c] / sums.pairSlots[c];
+      }
+      return expected > 0 ? Math.max(1.0, stepped / expected) : 1.0;
+    };
+  }
+
+  /** Per size class, over every basket weighed in {@code h}: N_c, Σk, Σk(k − 1), Σk(k − 1)·s and each item's n_a,c. */
+  private ClassSums classSums(HorizonSpec h, org.pairpulse.sketch.stats.SizeClasses classes, int maxPairsPerBasket) {
     int count = classes.count();
-    double[] n = new double[count];
-    double[] slots = new double[count];
-    double[] pairSlots = new double[count];
-    double[] steppedSlots = new double[count];
-    Map<String, double[]> byItem = new HashMap<>();
+    ClassSums sums = new ClassSums(classes, new double[count], new double[count], new double[count], new double[count],
+        new HashMap<>());
     for (Basket basket : baskets) {
       double w = weight(h, basket.eventMillis);
       int k = basket.items.size();
       long pairs = (long) k * (k - 1) / 2;
       long step = pairs <= maxPairsPerBasket ? 1 : (pairs + maxPairsPerBasket - 1) / maxPairsPerBasket;
       int c = classes.classOf(k);
-      n[c] += w;
-      slots[c] += w * k;
-      pairSlots[c] += w * k * (k - 1.0);
-      steppedSlots[c] += w * k * (k - 1.0) * step;
+      sums.n[c] += w;
+      sums.slots[c] += w * k;
+      sums.pairSlots[c] += w * k * (k - 1.0);
+      sums.steppedSlots[c] += w * k * (k - 1.0) * step;
       for (String item : basket.items) {
-        byItem.computeIfAbsent(item, key -> new double[count])[c] += w;
+        sums.byItem.computeIfAbsent(item, key -> new double[count])[c] += w;
       }
     }
-    return (a, b) -> {
-      double[] na = byItem.getOrDefault(a, new double[count]);
-      double[] nb = byItem.getOrDefault(b, new double[count]);
-      double expected = 0;
-      double stepped = 0;
-      for (int c = 0; c < count; c++) {
-        if (n[c] > 0 && pairSlots[c] > 0 && !classes.pairless(c)) {
-          double term = n[c] * pairSlots[c] / (slots[c] * slots[c]) * na[c] * nb[c] / n[c];
-          expected += term;
-          stepped += term * steppedSlots[c] / pairSlots[c];
-        }
+    return sums;
+  }
+
+  private record ClassSums(org.pairpulse.sketch.stats.SizeClasses classes, double[] n, double[] slots,
+      double[] pairSlots, double[] steppedSlots, Map<String, double[]> byItem) {
+    /** E_c of the pair {a, b}: ρ_c·n_a,c·n_b,c / N_c, 0 in a class without pairs. */
+    double expected(int c, String a, String b) {
+      if (!(n[c] > 0 && pairSlots[c] > 0) || classes.pairless(c)) {
+        return 0;
       }
-      return expected > 0 ? Math.max(1.0, stepped / expected) : 1.0;
-    };
+      double[] none = new double[n.length];
+      double rho = n[c] * pairSlots[c] / (slots[c] * slots[c]);
+      return rho * byItem.getOrDefault(a, none)[c] * byItem.getOrDefault(b, none)[c] / n[c];
+    }
   }
 }
