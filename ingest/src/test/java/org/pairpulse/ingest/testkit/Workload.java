@@ -8,7 +8,6 @@ import java.time.Duration;
 import java.time.Instant;
 import java.util.ArrayList;
 import java.util.EnumMap;
-import java.util.LinkedHashSet;
 import java.util.List;
 import java.util.Map;
 import java.util.Random;
@@ -22,6 +21,9 @@ import org.apache.kafka.common.header.internals.RecordHeaders;
 import org.pairpulse.ingest.event.DeadLetterReason;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
+import org.pairpulse.sketch.fixtures.BasketStream;
+import org.pairpulse.sketch.fixtures.ExactCounts;
+import org.pairpulse.sketch.fixtures.ZipfSampler;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Estimate;
 
@@ -48,40 +50,39 @@ public final class Workload {
   private static final String[] REGIONS = {"north", "south", "east"};
   private static final String[] PLANS = {"prepaid", "postpaid"};
 
-  /** Exact counts of a set of baskets: N, n_a, n_ab. */
+  /** The window the tests check: the test engine's {@code day} (every basket of a workload lies inside it). */
+  static final HorizonSpec DAY = HorizonSpec.window("day", Duration.ofHours(24), 24);
+
+  /** Exact counts of a set of baskets, N, n_a, n_ab: the shared oracle over the window {@code day}. */
   public static final class Counts {
     public long baskets;
-    public final Map<String, Long> itemCounts = new TreeMap<>();
-    public final Map<String, Long> pairCounts = new TreeMap<>();
+    private final ExactCounts exact = new ExactCounts(List.of(DAY));
 
-    void count(List<String> items) {
+    void count(long eventMillis, List<String> items) {
       baskets++;
-      List<String> distinct = new ArrayList<>(new LinkedHashSet<>(items));
-      for (String item : distinct) {
-        itemCounts.merge(item, 1L, Long::sum);
-      }
-      for (int a = 0; a < distinct.size(); a++) {
-        for (int b = a + 1; b < distinct.size(); b++) {
-          pairCounts.merge(pairKey(distinct.get(a), distinct.get(b)), 1L, Long::sum);
-        }
-      }
+      exact.add(eventMillis, items);
     }
 
     /** Checks that {@code engine} holds exactly these counts in the window horizon "day". */
     public void assertExact(PairEngine engine, String what) {
       assertEquals(baskets, engine.stats().baskets(), what + ": baskets counted (EngineStats) vs the recount of the input");
+      assertEquals(baskets, exact.baskets(DAY.name()), 0.0, what + ": every basket lies inside the window");
       assertEquals(baskets, engine.basketCount("day"), 0.0, what + ": N of window 'day' vs the recount");
-      for (Map.Entry<String, Long> e : itemCounts.entrySet()) {
+      for (Map.Entry<String, Double> e : new TreeMap<>(exact.itemCountsByName(DAY.name())).entrySet()) {
         Estimate count = engine.itemCount(e.getKey(), "day");
         assertTrue(count.isExact(), what + ": item " + e.getKey() + " should be counted exactly: " + count);
         assertEquals(e.getValue(), count.value(), 0.0, what + ": n_a of " + e.getKey());
       }
-      for (Map.Entry<String, Long> e : pairCounts.entrySet()) {
-        String[] ab = e.getKey().split("\\|");
+      for (Map.Entry<String, Double> e : new TreeMap<>(exact.pairCountsByName(DAY.name())).entrySet()) {
+        String[] ab = ExactCounts.splitPairName(e.getKey());
         Estimate count = engine.pairCount(ab[0], ab[1], "day");
         assertTrue(count.isExact(), what + ": pair " + e.getKey() + " should be counted exactly: " + count);
         assertEquals(e.getValue(), count.value(), 0.0, what + ": n_ab of " + e.getKey());
       }
+    }
+
+    Set<String> items() {
+      return exact.itemCountsByName(DAY.name()).keySet();
     }
   }
 
@@ -91,8 +92,6 @@ public final class Workload {
   public final List<Rec> records = new ArrayList<>();
   /** The oracle of every basket that must be counted (segment all). */
   private final Counts all = new Counts();
-  public final Map<String, Long> itemCounts = all.itemCounts;
-  public final Map<String, Long> pairCounts = all.pairCounts;
   public final Map<DeadLetterReason, Long> deadLetters = new EnumMap<>(DeadLetterReason.class);
   public long baskets;
   public long duplicates;
@@ -101,21 +100,21 @@ public final class Workload {
 
   private final Random random;
   private final String[] catalog;
+  /** Zipf's law with exponent 0.5 (the shared sampler): the skew of the square of a uniform number, p(i) ∝ i^−½. */
+  private final ZipfSampler popularity;
   private final List<Rec> recentBaskets = new ArrayList<>();
   private String attributes; // of the basket being encoded, or null
 
   private Workload(long seed, int catalogSize) {
     this.random = new Random(seed);
-    this.catalog = new String[catalogSize];
-    for (int i = 0; i < catalogSize; i++) {
-      catalog[i] = "item-" + i;
-    }
+    this.catalog = BasketStream.numbered("item-", catalogSize);
+    this.popularity = new ZipfSampler(catalogSize, 0.5);
   }
 
   /** The engine configuration the tests use: small sketches, tables larger than the catalog's pairs. */
   public static EngineConfig engineConfig() {
     return EngineConfig.builder()
-        .horizons(List.of(HorizonSpec.decay("recent", Duration.ofHours(6)), HorizonSpec.window("day", Duration.ofHours(24), 24)))
+        .horizons(List.of(HorizonSpec.decay("recent", Duration.ofHours(6)), DAY))
         .trackingHorizon("recent")
         .itemError(0.01, 0.05).pairError(0.01, 0.05)
         .trackedItemCapacity(256).trackedPairCapacity(4096)
@@ -140,7 +139,7 @@ public final class Workload {
           String region = REGIONS[w.random.nextInt(REGIONS.length)];
           attributes = "{\"" + SEGMENT_ATTRIBUTE + "\":\"" + region + "\",\"plan\":\"" + PLANS[w.random.nextInt(PLANS.length)]
               + "\"}";
-          w.segments.computeIfAbsent(SEGMENT_ATTRIBUTE + "=" + region, k -> new Counts()).count(items);
+          w.segments.computeIfAbsent(SEGMENT_ATTRIBUTE + "=" + region, k -> new Counts()).count(time, items);
         }
         w.attributes = attributes;
         Rec rec = pick < 0.55 ? w.plain(id, time, items) : pick < 0.8 ? w.structured(id, time, items) : w.binary(id, time, items);
@@ -151,7 +150,7 @@ public final class Workload {
           w.recentBaskets.remove(0);
         }
       }
-      w.count(items);
+      w.count(time, items);
       double extra = w.random.nextDouble();
       if (extra < 0.03 && !w.recentBaskets.isEmpty()) {
         w.records.add(w.recentBaskets.get(w.random.nextInt(w.recentBaskets.size())));
@@ -170,9 +169,7 @@ public final class Workload {
     int size = 1 + random.nextInt(5);
     List<String> items = new ArrayList<>();
     for (int k = 0; k < size; k++) {
-      // skewed: low ids are frequent
-      double u = random.nextDouble();
-      items.add(catalog[(int) (catalog.length * u * u)]);
+      items.add(catalog[popularity.sample(random.nextDouble())]); // skewed: low ids are frequent
     }
     if (random.nextInt(20) == 0) {
       items.add(items.get(0)); // a repeated item counts once
@@ -180,13 +177,9 @@ public final class Workload {
     return items;
   }
 
-  private void count(List<String> items) {
-    all.count(items);
+  private void count(long time, List<String> items) {
+    all.count(time, items);
     baskets = all.baskets;
-  }
-
-  static String pairKey(String a, String b) {
-    return a.compareTo(b) < 0 ? a + "|" + b : b + "|" + a;
   }
 
   // ---------------------------------------------------------------- encodings
@@ -333,6 +326,6 @@ public final class Workload {
 
   /** Items of the catalog that occur in the oracle. */
   public Set<String> items() {
-    return itemCounts.keySet();
+    return all.items();
   }
 }

@@ -19,6 +19,7 @@ import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.EngineStats;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.PairTables;
+import org.pairpulse.sketch.fixtures.ExactCounts;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.PairCounts;
 import org.pairpulse.sketch.stats.PairMeasures;

@@ -4,10 +4,14 @@ import com.carrotsearch.hppc.LongIntHashMap;
 import java.time.Duration;
 import java.util.Locale;
 import java.util.SplittableRandom;
+import org.pairpulse.sketch.fixtures.BasketSizes;
+import org.pairpulse.sketch.fixtures.BasketStream;
+import org.pairpulse.sketch.fixtures.ExactCounts;
 
 /**
  * The seeded basket stream of the accuracy phase: Zipf background items mixed with planted associated
- * pairs, spread evenly over {@code days} of event time.
+ * pairs, spread evenly over {@code days} of event time. The workload (which pairs, which rates, when) is defined
+ * here; the baskets come from the shared {@link BasketStream} (one plant per basket).
  *
  * <h2>One basket</h2>
  * <ol>
@@ -97,14 +101,11 @@ final class AccuracyStream {
   }
 
   private final Workload workload;
-  private final SplittableRandom random;
-  private final ZipfSampler zipf;
   private final int[] plantedA;
   private final int[] plantedB;
   private final Kind[] plantedKind;
   private final LongIntHashMap plantedIndex = new LongIntHashMap();
-  /** Per phase (before fading end, between, after emerging start): cumulative rates over the planted pairs. */
-  private final double[][] cumulativeRate = new double[3][];
+  private final BasketStream baskets;
   private final long basketCount;
   private final long spanMillis;
   private long next;
@@ -112,15 +113,19 @@ final class AccuracyStream {
 
   AccuracyStream(Workload workload) {
     this.workload = workload;
-    this.random = new SplittableRandom(workload.seed());
-    this.zipf = new ZipfSampler(workload.catalogItems(), workload.zipfExponent());
+    SplittableRandom random = new SplittableRandom(workload.seed());
     this.basketCount = workload.basketCount();
     this.spanMillis = workload.spanMillis();
+    String[] names = Catalog.names(workload.catalogItems());
+    BasketStream.Builder builder = BasketStream.builder(random).zipf(names, workload.zipfExponent())
+        .sizes(BasketSizes.uniform(MIN_ITEMS, MAX_ITEMS)).maxSize(MAX_ITEMS).onePlantPerBasket();
+    // a phase starts with the first basket whose position in the stream reaches its share
+    long fadingEndMillis = eventMillisAt(firstBasketAt(FADING_END));
+    long emergingStartMillis = eventMillisAt(firstBasketAt(EMERGING_START));
     int planted = workload.plantedPairs();
     plantedA = new int[planted];
     plantedB = new int[planted];
     plantedKind = new Kind[planted];
-    double[] rate = new double[planted];
     int drifting = (int) Math.round(planted * workload.driftingShare());
     double lowRank = Math.log(10);
     double highRank = Math.log(workload.catalogItems());
@@ -134,30 +139,29 @@ final class AccuracyStream {
       plantedA[p] = a;
       plantedB[p] = b;
       plantedIndex.put(ExactCounts.pairKey(a, b), p);
-      rate[p] = PLANTED_RATE_MIN * Math.pow(PLANTED_RATE_MAX / PLANTED_RATE_MIN, random.nextDouble());
+      double rate = PLANTED_RATE_MIN * Math.pow(PLANTED_RATE_MAX / PLANTED_RATE_MIN, random.nextDouble());
       plantedKind[p] = p < drifting / 2 ? Kind.FADING : p < drifting ? Kind.EMERGING : Kind.STATIONARY;
+      builder.plant(switch (plantedKind[p]) {
+        case FADING -> new BasketStream.Plant(names[a], names[b], rate, Long.MIN_VALUE, fadingEndMillis);
+        case EMERGING -> new BasketStream.Plant(names[a], names[b], rate * EMERGING_BOOST, emergingStartMillis,
+            Long.MAX_VALUE);
+        default -> BasketStream.Plant.steady(names[a], names[b], rate);
+      });
     }
-    for (int phase = 0; phase < 3; phase++) {
-      double[] cumulative = new double[planted];
-      double sum = 0;
-      for (int p = 0; p < planted; p++) {
-        sum += rateIn(phase, plantedKind[p], rate[p]);
-        cumulative[p] = sum;
-      }
-      if (sum > 1) {
-        throw new IllegalArgumentException(String.format(Locale.ROOT,
-            "too many planted pairs: %d pairs would be planted in %.2f baskets per basket", planted, sum));
-      }
-      cumulativeRate[phase] = cumulative;
-    }
+    this.baskets = builder.build();
   }
 
-  private static double rateIn(int phase, Kind kind, double rate) {
-    return switch (kind) {
-      case FADING -> phase == 0 ? rate : 0;
-      case EMERGING -> phase == 2 ? rate * EMERGING_BOOST : 0;
-      default -> rate;
-    };
+  /** The index of the first basket whose position {@code index / basketCount} is at least {@code share}. */
+  private long firstBasketAt(double share) {
+    long index = Math.max(0, (long) Math.floor(share * basketCount) - 1);
+    while ((double) index / basketCount < share) {
+      index++;
+    }
+    return index;
+  }
+
+  private long eventMillisAt(long index) {
+    return START_MILLIS + (long) ((double) index / basketCount * spanMillis);
   }
 
   Workload workload() {
@@ -185,20 +189,7 @@ final class AccuracyStream {
 
   /** Writes the next basket's distinct item ids into {@code items} (length ≥ 6) and returns how many. */
   int next(int[] items) {
-    long index = next++;
-    double position = (double) index / basketCount;
-    eventMillis = START_MILLIS + (long) (position * spanMillis);
-    int phase = position < FADING_END ? 0 : position < EMERGING_START ? 1 : 2;
-    double[] cumulative = cumulativeRate[phase];
-    int size = MIN_ITEMS + random.nextInt(MAX_ITEMS - MIN_ITEMS + 1);
-    int filled = 0;
-    double u = random.nextDouble();
-    if (cumulative.length > 0 && u < cumulative[cumulative.length - 1]) {
-      int p = ZipfSampler.firstAbove(cumulative, u);
-      items[0] = plantedA[p];
-      items[1] = plantedB[p];
-      filled = 2;
-    }
-    return ThroughputStream.fillDistinct(random, zipf, items, filled, size);
+    eventMillis = eventMillisAt(next++);
+    return baskets.next(eventMillis, items);
   }
 }

@@ -1,20 +1,22 @@
 package org.pairpulse.ops.bench;
 
 import java.nio.charset.StandardCharsets;
-import java.util.Arrays;
 import java.util.SplittableRandom;
+import org.pairpulse.sketch.fixtures.BasketSizes;
+import org.pairpulse.sketch.fixtures.BasketStream;
+import org.pairpulse.sketch.fixtures.ZipfSampler;
 
 /**
  * The benchmark's basket stream: plain JSON basket records {@code {"id":"b<n>","time":<ms>,"items":[...]}},
- * 1 + Poisson(mean − 1) items per basket (mean {@code meanItems}), items drawn from a Zipf distribution over
- * a catalog of {@code catalogSize} ids, event times spread evenly over {@code spanMillis}. Seeded and
+ * 1 + Poisson(mean − 1) items per basket (mean {@code meanItems}, the shared {@link BasketSizes#poisson}), items
+ * drawn by the shared {@link ZipfSampler} over a catalog of {@code catalogSize} ids (repeats kept in the record), event times spread evenly over {@code spanMillis}. Seeded and
  * deterministic; not thread-safe.
  */
 final class IngestWorkload {
   private final String[] catalog;
-  private final double[] cdf;
+  private final ZipfSampler zipf;
+  private final BasketSizes sizes;
   private final SplittableRandom random;
-  private final double poissonMean;
   private final long startMillis;
   private final double millisPerBasket;
   private final StringBuilder json = new StringBuilder(128);
@@ -22,19 +24,10 @@ final class IngestWorkload {
 
   IngestWorkload(int catalogSize, double zipfExponent, double meanItems, long startMillis, long spanMillis, long baskets,
       long seed) {
-    this.catalog = new String[catalogSize];
-    this.cdf = new double[catalogSize];
-    double sum = 0;
-    for (int i = 0; i < catalogSize; i++) {
-      catalog[i] = "item-" + i;
-      sum += 1.0 / Math.pow(i + 1, zipfExponent);
-      cdf[i] = sum;
-    }
-    for (int i = 0; i < catalogSize; i++) {
-      cdf[i] /= sum;
-    }
+    this.catalog = BasketStream.numbered("item-", catalogSize);
+    this.zipf = new ZipfSampler(catalogSize, zipfExponent);
+    this.sizes = BasketSizes.poisson(meanItems, 40);
     this.random = new SplittableRandom(seed);
-    this.poissonMean = meanItems - 1;
     this.startMillis = startMillis;
     this.millisPerBasket = (double) spanMillis / baskets;
   }
@@ -50,31 +43,14 @@ final class IngestWorkload {
     json.setLength(0);
     json.append("{\"id\":\"b").append(n).append("\",\"time\":").append(startMillis + (long) (n * millisPerBasket))
         .append(",\"items\":[");
-    int size = 1 + poisson();
+    int size = sizes.draw(random);
     for (int k = 0; k < size; k++) {
       if (k > 0) {
         json.append(',');
       }
-      json.append('"').append(catalog[zipf()]).append('"');
+      json.append('"').append(catalog[zipf.sample(random)]).append('"'); // a repeat stays: the decoder's to count once
     }
     json.append("]}");
     return json.toString().getBytes(StandardCharsets.ISO_8859_1);
-  }
-
-  private int zipf() {
-    int index = Arrays.binarySearch(cdf, random.nextDouble());
-    return Math.min(index < 0 ? -index - 1 : index, cdf.length - 1);
-  }
-
-  /** Knuth's multiplication method; fine for a small mean. */
-  private int poisson() {
-    double limit = Math.exp(-poissonMean);
-    double product = random.nextDouble();
-    int k = 0;
-    while (product > limit && k < 40) {
-      product *= random.nextDouble();
-      k++;
-    }
-    return k;
   }
 }

@@ -23,6 +23,7 @@ import org.pairpulse.serve.suggest.SuggestionRequest;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.PairTables;
+import org.pairpulse.sketch.fixtures.SizeShape;
 import org.pairpulse.sketch.stats.Estimate;
 import org.pairpulse.sketch.stats.Measure;
 import org.pairpulse.sketch.stats.SizeClasses;
@@ -90,17 +91,17 @@ public final class RulesBenchCommand implements Callable<Integer> {
 
   @Option(names = "--shapes", split = ",", paramLabel = "SHAPE", converter = ShapeConverter.class,
       description = "Basket-size shapes (default: all): small, mixed, heavy-tail.")
-  List<RulesStream.SizeShape> shapes = List.of(RulesStream.SizeShape.values());
+  List<SizeShape> shapes = List.of(SizeShape.values());
 
   @Option(names = "--pair-ranking", paramLabel = "RANKING", description = "How pairs rank for tracking: fractional or"
       + " count (default: the engine's default).")
   String pairRanking;
 
   /** Reads a shape by the name the bench prints (heavy-tail), in any case. */
-  static final class ShapeConverter implements picocli.CommandLine.ITypeConverter<RulesStream.SizeShape> {
+  static final class ShapeConverter implements picocli.CommandLine.ITypeConverter<SizeShape> {
     @Override
-    public RulesStream.SizeShape convert(String value) {
-      for (RulesStream.SizeShape shape : RulesStream.SizeShape.values()) {
+    public SizeShape convert(String value) {
+      for (SizeShape shape : SizeShape.values()) {
         if (shape.wireName().equalsIgnoreCase(value.trim()) || shape.name().equalsIgnoreCase(value.trim())) {
           return shape;
         }
@@ -157,7 +158,7 @@ public final class RulesBenchCommand implements Callable<Integer> {
     PrintWriter out = spec.commandLine().getOut();
     long started = System.nanoTime();
     out.printf(Locale.ROOT, "bench rules: %,d baskets per shape over %d items (Zipf 1.0), %d planted pairs, shapes %s%n",
-        baskets, items, planted, shapes.stream().map(RulesStream.SizeShape::wireName).toList());
+        baskets, items, planted, shapes.stream().map(SizeShape::wireName).toList());
     out.flush();
     Score total = new Score();
     for (int s = 0; s < shapes.size(); s++) {
@@ -192,7 +193,7 @@ public final class RulesBenchCommand implements Callable<Integer> {
   }
 
   /** One shape: count, report, score. */
-  Score run(RulesStream.SizeShape shape, long runSeed, PrintWriter out) {
+  Score run(SizeShape shape, long runSeed, PrintWriter out) {
     RulesStream stream = new RulesStream(runSeed, items, 1.0, shape, planted);
     EngineConfig.Builder builder = EngineConfig.builder();
     if (sizeClasses != null) {

@@ -27,6 +27,9 @@ import org.pairpulse.serve.metrics.ServeMeters;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.PairTables;
+import org.pairpulse.sketch.fixtures.BasketSizes;
+import org.pairpulse.sketch.fixtures.BasketStream;
+import org.pairpulse.sketch.fixtures.ZipfSampler;
 import org.pairpulse.sketch.table.PairTable;
 import org.pairpulse.sketch.table.PairTableHolder;
 import picocli.CommandLine.Command;
@@ -137,7 +140,8 @@ public final class ServeBench implements Callable<Integer> {
         + refreshMillis + " ms (the Kafka ingest pipeline is not part of this benchmark)");
     out.flush();
 
-    Feeder feeder = new Feeder(engine, names, zipf, new SplittableRandom(seed), refreshMillis);
+    Feeder feeder = new Feeder(engine, BasketStream.builder(seed).zipf(names, zipf).sizes(BasketSizes.uniform(1, 8))
+        .draws(BasketStream.Draws.INDEPENDENT).build(), refreshMillis);
     long preloadStart = System.nanoTime();
     feeder.feed(preloadBaskets);
     PairTableHolder holder = new PairTableHolder();
@@ -165,7 +169,9 @@ public final class ServeBench implements Callable<Integer> {
       RequestSource statusLoad = worker -> () -> status;
       RequestSource basketLoad = worker -> {
         SplittableRandom random = new SplittableRandom(seed + 1 + worker * 7919L + System.nanoTime());
-        return () -> basket(base, names, zipf, random);
+        BasketStream requests = BasketStream.builder(random).zipf(names, zipf)
+            .sizes(BasketSizes.uniform(basketItems, basketItems)).build();
+        return () -> base.resolve("/api/v1/suggestions?items=" + String.join(",", requests.basket(0L)));
       };
       HttpClient client = HttpClient.newBuilder().version(HttpClient.Version.HTTP_1_1)
           .connectTimeout(Duration.ofSeconds(5)).build();
@@ -237,28 +243,6 @@ public final class ServeBench implements Callable<Integer> {
   /** Per client thread, a supplier of request URIs. */
   private interface RequestSource {
     java.util.function.Supplier<URI> forWorker(int worker);
-  }
-
-  /**
-   * A fresh random basket of distinct catalog items, Zipf-distributed like the stream: no two requests
-   * are meant to repeat, so the per-version response cache rarely helps (its hit rate is printed).
-   */
-  private URI basket(URI base, String[] names, ZipfSampler zipf, SplittableRandom random) {
-    StringBuilder items = new StringBuilder();
-    int[] chosen = new int[basketItems];
-    int count = 0;
-    while (count < basketItems) {
-      int item = zipf.sample(random);
-      boolean seen = false;
-      for (int i = 0; i < count; i++) {
-        seen |= chosen[i] == item;
-      }
-      if (!seen) {
-        chosen[count++] = item;
-        items.append(items.length() == 0 ? "" : ",").append(names[item]);
-      }
-    }
-    return base.resolve("/api/v1/suggestions?items=" + items);
   }
 
   /** {@code total} requests spread over the client threads; stops at the deadline. */
@@ -334,9 +318,7 @@ public final class ServeBench implements Callable<Integer> {
   /** The single writer of the engine: feeds baskets at full speed and refreshes on a timer. */
   private static final class Feeder implements Runnable {
     private final PairEngine engine;
-    private final String[] names;
-    private final ZipfSampler zipf;
-    private final SplittableRandom random;
+    private final BasketStream stream;
     private final long refreshMillis;
     final AtomicBoolean stop = new AtomicBoolean();
     final AtomicLong baskets = new AtomicLong();
@@ -349,24 +331,17 @@ public final class ServeBench implements Callable<Integer> {
     double lastRefreshMillis;
     private long eventMillis = 1_772_409_600_000L;
     private long version;
-    private final String[] basket = new String[8];
 
-    Feeder(PairEngine engine, String[] names, ZipfSampler zipf, SplittableRandom random, long refreshMillis) {
+    Feeder(PairEngine engine, BasketStream stream, long refreshMillis) {
       this.engine = engine;
-      this.names = names;
-      this.zipf = zipf;
-      this.random = random;
+      this.stream = stream;
       this.refreshMillis = refreshMillis;
     }
 
     /** Adds {@code count} baskets of 1–8 Zipf items, 100 ms of event time apart. */
     void feed(int count) {
       for (int i = 0; i < count; i++) {
-        int size = 1 + random.nextInt(8);
-        for (int j = 0; j < size; j++) {
-          basket[j] = names[zipf.sample(random)];
-        }
-        engine.addBasket(eventMillis, Arrays.copyOf(basket, size));
+        engine.addBasket(eventMillis, stream.nextBasket());
         eventMillis += 100;
         baskets.incrementAndGet();
       }

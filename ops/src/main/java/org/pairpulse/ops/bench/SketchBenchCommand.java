@@ -12,6 +12,7 @@ import org.pairpulse.sketch.engine.EngineStats;
 import org.pairpulse.sketch.bench.CountMinBenchmark;
 import org.pairpulse.sketch.bench.EngineStream;
 import org.pairpulse.sketch.bench.PairEngineBenchmark;
+import org.pairpulse.sketch.fixtures.ExactCounts;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;

@@ -2,6 +2,7 @@ package org.pairpulse.ops.bench;
 
 import java.util.Locale;
 import java.util.regex.Pattern;
+import org.pairpulse.sketch.fixtures.ExactCounts;
 
 /**
  * The one-line summary of {@code pairpulse bench sketch}, printed last:

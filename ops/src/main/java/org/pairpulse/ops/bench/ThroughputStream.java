@@ -1,10 +1,11 @@
 package org.pairpulse.ops.bench;
 
-import java.util.SplittableRandom;
+import org.pairpulse.sketch.fixtures.BasketSizes;
+import org.pairpulse.sketch.fixtures.BasketStream;
 
 /**
- * The pre-generated basket stream of the throughput benchmark: Zipf item popularity over a catalog, 1 to
- * 8 distinct items per basket (1 + Binomial(7, 3/7): mean 4), event times spread evenly over
+ * The pre-generated basket stream of the throughput benchmark (a shared {@link BasketStream}): Zipf item
+ * popularity over a catalog, 1 to 8 distinct items per basket (1 + Binomial(7, 3/7): mean 4), event times spread evenly over
  * {@code spanMillis} so that panes roll and the decay moves its landmark. A benchmark replays it in laps,
  * adding {@code spanMillis} to the times on every lap, so event time only moves forward.
  */
@@ -34,49 +35,23 @@ final class ThroughputStream {
     if (catalogItems < MAX_ITEMS) {
       throw new IllegalArgumentException("catalog must hold at least " + MAX_ITEMS + " items, got " + catalogItems);
     }
-    SplittableRandom random = new SplittableRandom(seed);
-    ZipfSampler zipf = new ZipfSampler(catalogItems, ZIPF_EXPONENT);
-    String[] names = Catalog.names(catalogItems);
+    BasketStream source = BasketStream.builder(seed).zipf(Catalog.names(catalogItems), ZIPF_EXPONENT)
+        .sizes(BasketSizes.binomial(1, MAX_ITEMS - 1, 3, 7)).build();
     String[][] baskets = new String[basketCount][];
     long[] times = new long[basketCount];
     int[] pairs = new int[basketCount];
-    int[] ids = new int[MAX_ITEMS];
+    int[] ids = new int[source.maxBasketItems()];
     for (int b = 0; b < basketCount; b++) {
-      int size = 1;
-      for (int trial = 0; trial < MAX_ITEMS - 1; trial++) {
-        if (random.nextInt(7) < 3) {
-          size++;
-        }
-      }
-      int filled = fillDistinct(random, zipf, ids, 0, size);
-      String[] basket = new String[filled];
+      int filled = source.next(0L, ids);
+      String[] basket = new String[filled]; // only the baskets are allocated: they lie together in memory
       for (int i = 0; i < filled; i++) {
-        basket[i] = names[ids[i]];
+        basket[i] = source.name(ids[i]);
       }
       baskets[b] = basket;
       times[b] = START_MILLIS + (long) ((double) b * spanMillis / basketCount);
-      pairs[b] = filled * (filled - 1) / 2;
+      pairs[b] = basket.length * (basket.length - 1) / 2;
     }
     return new ThroughputStream(baskets, times, pairs, spanMillis);
-  }
-
-  /** Fills {@code ids[from..size)} with Zipf items distinct from each other and from {@code ids[0..from)}. */
-  static int fillDistinct(SplittableRandom random, ZipfSampler zipf, int[] ids, int from, int size) {
-    int filled = from;
-    while (filled < size) {
-      int candidate = zipf.sample(random);
-      boolean seen = false;
-      for (int i = 0; i < filled; i++) {
-        if (ids[i] == candidate) {
-          seen = true;
-          break;
-        }
-      }
-      if (!seen) {
-        ids[filled++] = candidate;
-      }
-    }
-    return filled;
   }
 
   int size() {

@@ -3,6 +3,7 @@ package org.pairpulse.ops.drift;
 import java.time.Duration;
 import java.time.Instant;
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.Collections;
 import java.util.EnumSet;
 import java.util.Iterator;
@@ -14,9 +15,11 @@ import java.util.Objects;
 import java.util.Set;
 import java.util.SplittableRandom;
 import org.pairpulse.ops.backtest.ReplayBasket;
-import org.pairpulse.ops.bench.ZipfSampler;
 import org.pairpulse.ops.scenario.PlantedKind;
 import org.pairpulse.ops.scenario.PlantedPair;
+import org.pairpulse.sketch.fixtures.BasketSizes;
+import org.pairpulse.sketch.fixtures.BasketStream;
+import org.pairpulse.sketch.fixtures.ZipfSampler;
 
 /**
  * One seeded stream of the drift family: background Zipf traffic with a day/night cycle, and, on disjoint invented
@@ -66,7 +69,7 @@ public final class DriftStream implements Iterable<ReplayBasket> {
   private final int memberDay;
   private final String[] ids;
   private final ZipfSampler zipf;
-  private final double[] sizeCumulative;
+  private final BasketSizes sizes;
   private final List<OwnItem> ownItems = new ArrayList<>();
   private final List<PairModel> pairModels = new ArrayList<>();
   private final List<DriftPlant> truth = new ArrayList<>();
@@ -105,16 +108,7 @@ public final class DriftStream implements Iterable<ReplayBasket> {
       ids[i] = String.format(Locale.ROOT, "item-%0" + digits + "d", permutation[i]);
     }
     zipf = new ZipfSampler(BACKGROUND_ITEMS, ZIPF_EXPONENT);
-    sizeCumulative = new double[SIZE_WEIGHTS.length];
-    double sum = 0;
-    for (int i = 0; i < SIZE_WEIGHTS.length; i++) {
-      sum += SIZE_WEIGHTS[i];
-      sizeCumulative[i] = sum;
-    }
-    for (int i = 0; i < SIZE_WEIGHTS.length; i++) {
-      sizeCumulative[i] /= sum;
-    }
-    sizeCumulative[SIZE_WEIGHTS.length - 1] = 1.0;
+    sizes = BasketSizes.weights(SIZE_WEIGHTS);
     int next = BACKGROUND_ITEMS;
     for (DriftShape shape : this.shapes) {
       plant(shape, next, next + 1);
@@ -328,8 +322,9 @@ public final class DriftStream implements Iterable<ReplayBasket> {
 
   private final class Baskets implements Iterator<ReplayBasket> {
     private final SplittableRandom random = new SplittableRandom(seed);
+    private final BasketStream background = BasketStream.builder(random)
+        .zipf(Arrays.copyOf(ids, BACKGROUND_ITEMS), zipf).sizes(sizes).build();
     private final String prefix = "df-" + level.name() + "-" + seed + "-";
-    private final int[] chosen = new int[SIZE_WEIGHTS.length];
     private final boolean[] present = new boolean[ids.length];
     private final List<String> items = new ArrayList<>(16);
     private double timeMillis = startMillis;
@@ -351,20 +346,7 @@ public final class DriftStream implements Iterable<ReplayBasket> {
 
     private ReplayBasket basket(long t) {
       items.clear();
-      int size = Math.min(ZipfSampler.firstAbove(sizeCumulative, random.nextDouble()), SIZE_WEIGHTS.length - 1) + 1;
-      for (int i = 0; i < size; i++) {
-        int rank;
-        boolean repeat;
-        do {
-          rank = zipf.sample(random);
-          repeat = false;
-          for (int j = 0; j < i; j++) {
-            repeat |= chosen[j] == rank;
-          }
-        } while (repeat);
-        chosen[i] = rank;
-        items.add(ids[rank]);
-      }
+      items.addAll(background.basket(t)); // the shared stream's background: a size, distinct Zipf items
       for (OwnItem own : ownItems) {
         if (random.nextDouble() < own.at(t)) {
           present[own.item()] = true;

@@ -13,6 +13,7 @@ import java.util.Spliterator;
 import java.util.Spliterators;
 import java.util.stream.Stream;
 import java.util.stream.StreamSupport;
+import org.pairpulse.sketch.fixtures.ZipfSampler;
 
 /**
  * Plays the invented Kestrel Connect scenario (see {@code shared/SCENARIO.md}): seeded baskets of a fictional
@@ -78,10 +79,10 @@ public final class ScenarioGenerator implements Iterable<ScenarioBasket> {
 
   private final ScenarioConfig config;
   private final ScenarioScript script;
-  /** Background items, most popular first, and the cumulative Zipf probabilities over them. */
+  /** Background items, most popular first, and the shared samplers of their Zipf law and of the background's size. */
   private final String[] background;
-  private final double[] backgroundCumulative;
-  private final double[] sizeCumulative;
+  private final ZipfSampler backgroundZipf;
+  private final ZipfSampler backgroundSizes;
   private final double[] diurnal;
   private final double diurnalMax;
   /** The attributes of channel c and region r at {@code c × REGIONS.length + r}, shared by all baskets. */
@@ -93,8 +94,8 @@ public final class ScenarioGenerator implements Iterable<ScenarioBasket> {
     List<String> pool = new ArrayList<>(KestrelCatalog.INSTANCE.popularityOrder());
     pool.removeAll(script.scriptedItems);
     background = pool.toArray(new String[0]);
-    backgroundCumulative = cumulative(ScenarioScript.zipfShares(background.length, ScenarioScript.ZIPF_EXPONENT));
-    sizeCumulative = cumulative(ScenarioScript.BACKGROUND_SIZE_PROBABILITIES);
+    backgroundZipf = new ZipfSampler(background.length, ScenarioScript.ZIPF_EXPONENT);
+    backgroundSizes = ZipfSampler.ofWeights(ScenarioScript.BACKGROUND_SIZE_PROBABILITIES);
     double mean = Arrays.stream(HOURLY_RATE).average().orElseThrow();
     diurnal = Arrays.stream(HOURLY_RATE).map(rate -> rate / mean).toArray();
     diurnalMax = Arrays.stream(diurnal).max().orElseThrow();
@@ -203,10 +204,10 @@ public final class ScenarioGenerator implements Iterable<ScenarioBasket> {
           }
         }
       }
-      int backgroundSize = Math.min(firstAbove(sizeCumulative, contents.nextDouble()) + 1, scratch.length - size);
+      int backgroundSize = Math.min(backgroundSizes.sample(contents.nextDouble()) + 1, scratch.length - size);
       int scripted = size;
       for (int drawn = 0, attempts = 0; drawn < backgroundSize && attempts < 1000; attempts++) {
-        String item = background[firstAbove(backgroundCumulative, contents.nextDouble())];
+        String item = background[backgroundZipf.sample(contents.nextDouble())];
         if (!contains(scratch, scripted, size, item)) {
           scratch[size++] = item;
           drawn++;
@@ -259,35 +260,6 @@ public final class ScenarioGenerator implements Iterable<ScenarioBasket> {
         return i;
       }
     }
-  }
-
-  private static double[] cumulative(double[] probabilities) {
-    double[] cumulative = new double[probabilities.length];
-    double sum = 0;
-    for (int i = 0; i < probabilities.length; i++) {
-      sum += probabilities[i];
-      cumulative[i] = sum;
-    }
-    for (int i = 0; i < cumulative.length; i++) {
-      cumulative[i] /= sum;
-    }
-    cumulative[cumulative.length - 1] = Double.POSITIVE_INFINITY; // no rounding gap at the top
-    return cumulative;
-  }
-
-  /** The first index whose cumulative value exceeds {@code u}. */
-  private static int firstAbove(double[] cumulative, double u) {
-    int low = 0;
-    int high = cumulative.length - 1;
-    while (low < high) {
-      int middle = (low + high) >>> 1;
-      if (cumulative[middle] > u) {
-        high = middle;
-      } else {
-        low = middle + 1;
-      }
-    }
-    return low;
   }
 
   private static List<Map<String, String>> attributeSets() {

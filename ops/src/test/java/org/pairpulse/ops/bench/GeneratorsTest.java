@@ -6,37 +6,10 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.util.HashSet;
 import java.util.Set;
-import java.util.SplittableRandom;
 import org.junit.jupiter.api.Test;
 
-/** The seeded generators produce what their comments promise. */
+/** The benchmarks' seeded workloads produce what their comments promise (the shared sampler and stream: sketch's fixtures tests). */
 class GeneratorsTest {
-  @Test
-  void zipfFrequenciesFollowTheLaw() {
-    ZipfSampler zipf = new ZipfSampler(100, 1.0);
-    SplittableRandom random = new SplittableRandom(1);
-    int[] counts = new int[100];
-    int draws = 200_000;
-    for (int i = 0; i < draws; i++) {
-      counts[zipf.sample(random)]++;
-    }
-    for (int rank : new int[] {0, 1, 9, 99}) {
-      double expected = zipf.probability(rank) * draws;
-      // 5 standard deviations of a binomial count
-      assertEquals(expected, counts[rank], 5 * Math.sqrt(expected) + 1, "rank " + rank);
-    }
-    assertEquals(2.0, zipf.probability(0) / zipf.probability(1), 1e-12);
-  }
-
-  @Test
-  void firstAboveSkipsZeroProbabilityEntries() {
-    double[] cumulative = {0.25, 0.25, 0.5, 1.0};
-    assertEquals(0, ZipfSampler.firstAbove(cumulative, 0.0));
-    assertEquals(2, ZipfSampler.firstAbove(cumulative, 0.25)); // never the empty entry 1
-    assertEquals(3, ZipfSampler.firstAbove(cumulative, 0.75));
-    assertEquals(4, ZipfSampler.firstAbove(cumulative, 1.0));
-  }
-
   @Test
   void throughputBasketsHaveOneToEightDistinctItemsAndTimesMoveForward() {
     ThroughputStream stream = ThroughputStream.generate(5, 10_000, 50_000, 86_400_000L);

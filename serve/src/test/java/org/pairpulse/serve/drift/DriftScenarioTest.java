@@ -12,12 +12,12 @@ import java.util.Set;
 import java.util.TreeSet;
 import org.junit.jupiter.api.Test;
 import org.pairpulse.serve.fixtures.InventedStream;
-import org.pairpulse.serve.fixtures.InventedStream.Plant;
-import org.pairpulse.serve.fixtures.InventedStream.Spike;
 import org.pairpulse.serve.floor.CohortFloor;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.floor.PairKey;
 import org.pairpulse.sketch.engine.EngineConfig;
+import org.pairpulse.sketch.fixtures.BasketStream.Plant;
+import org.pairpulse.sketch.fixtures.BasketStream.Spike;
 
 /**
  * A 21-day invented stream with answers known in advance (the demo scenario's planted events, in

@@ -10,6 +10,7 @@ import java.util.SplittableRandom;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.EnumSource;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.sketch.fixtures.ZipfSampler;
 
 /** Count-min sketches against exact maps and against stream-lib's sketches at equal (ε, δ). */
 class CountMinSketchTest {
@@ -17,26 +18,11 @@ class CountMinSketchTest {
   /** Zipf-like keys: key k with probability ∝ 1/k (a seeded stream with a heavy head and a long tail). */
   private static Map<Long, Long> zipfStream(long seed, int distinct, int length, java.util.function.BiConsumer<Long, Long> sink) {
     SplittableRandom random = new SplittableRandom(seed);
-    double[] cumulative = new double[distinct];
-    double sum = 0;
-    for (int i = 0; i < distinct; i++) {
-      sum += 1.0 / (i + 1);
-      cumulative[i] = sum;
-    }
+    ZipfSampler zipf = new ZipfSampler(distinct, 1.0);
     Map<Long, Long> exact = new HashMap<>();
     for (int n = 0; n < length; n++) {
-      double u = random.nextDouble() * sum;
-      int lo = 0;
-      int hi = distinct - 1;
-      while (lo < hi) {
-        int mid = (lo + hi) >>> 1;
-        if (cumulative[mid] < u) {
-          lo = mid + 1;
-        } else {
-          hi = mid;
-        }
-      }
-      long key = 0x1234_5678L * (lo + 1) + 17; // distinct, non-sequential keys
+      int rank = zipf.sample(random);
+      long key = 0x1234_5678L * (rank + 1) + 17; // distinct, non-sequential keys
       long weight = 1 + random.nextInt(3);
       exact.merge(key, weight, Long::sum);
       sink.accept(key, weight);

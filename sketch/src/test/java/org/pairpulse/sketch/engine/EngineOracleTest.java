@@ -7,6 +7,7 @@ import java.time.Duration;
 import java.util.List;
 import java.util.Map;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.sketch.fixtures.BasketStream;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Estimate;
 
@@ -16,21 +17,21 @@ class EngineOracleTest {
   private static final long START = 1_700_000_000_000L;
 
   /** Streams spread over 40 days (160 half-lives of `recent`: the landmark moves), some late and some expired. */
-  private static void feed(PairEngine engine, ExactOracle oracle, Streams stream, int baskets, int maxItems, int planted) {
+  private static void feed(PairEngine engine, ExactOracle oracle, BasketStream stream, int baskets) {
     long span = Duration.ofDays(40).toMillis();
     for (int i = 0; i < baskets; i++) {
       long t = START + span * i / baskets;
-      if (stream.nextDouble() < 0.05) {
-        t -= stream.nextLong(3 * HOUR); // late, but within the live panes
+      if (stream.random().nextDouble() < 0.05) {
+        t -= stream.random().nextLong(3 * HOUR); // late, but within the live panes
       }
-      String[] items = stream.basket(maxItems, planted);
+      String[] items = stream.nextBasket();
       engine.addBasket(t, items);
       oracle.add(t, items);
     }
     // a few baskets so old that every window has dropped their pane: they count in the decay only
     for (int i = 0; i < 20; i++) {
       long t = START + span - Duration.ofDays(35).toMillis() - i * HOUR;
-      String[] items = stream.basket(maxItems, planted);
+      String[] items = stream.nextBasket();
       engine.addBasket(t, items);
       oracle.add(t, items);
     }
@@ -41,7 +42,7 @@ class EngineOracleTest {
     EngineConfig config = EngineConfig.builder().trackedPairCapacity(1 << 16).trackedItemCapacity(512).build();
     PairEngine engine = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
-    feed(engine, oracle, new Streams(42, 300, 1.0), 20_000, 6, 10);
+    feed(engine, oracle, BasketStream.pairedHalves(42, 300, 1.0, 6, 10), 20_000);
 
     assertTrue(engine.stats().expiredWindowUpdates() >= 40, "old baskets must miss both windows");
     HorizonState recent = engine.horizon("recent");
@@ -70,7 +71,7 @@ class EngineOracleTest {
         .pairError(0.01, 0.02).itemError(0.01, 0.02).build();
     PairEngine engine = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
-    feed(engine, oracle, new Streams(7, 2_000, 1.0), 30_000, 8, 30);
+    feed(engine, oracle, BasketStream.pairedHalves(7, 2_000, 1.0, 8, 30), 30_000);
     assertTrue(engine.stats().pairEvictions() > 0, "the stream must overflow the tracked table");
 
     for (HorizonSpec h : config.horizons()) {
@@ -114,7 +115,7 @@ class EngineOracleTest {
         .pairError(0.005, 0.02).pairRanking(ranking).build();
     PairEngine engine = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
-    feed(engine, oracle, new Streams(11, 1_000, 1.1), 30_000, 6, 20);
+    feed(engine, oracle, BasketStream.pairedHalves(11, 1_000, 1.1, 6, 20), 30_000);
     HorizonSpec tracking = config.trackingSpec(); // the internal decay that ranks tracked keys
     Map<String, Double> pairWeights = ranking == PairRanking.COUNT ? oracle.pairCounts(tracking) : oracle.pairRanks(tracking);
     double total = pairWeights.values().stream().mapToDouble(Double::doubleValue).sum();
@@ -172,11 +173,11 @@ class EngineOracleTest {
     EngineConfig config = EngineConfig.builder().horizons(List.of(fast)).trackingHorizon("fast").build();
     PairEngine engine = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
-    Streams stream = new Streams(3, 50, 1.0);
+    BasketStream stream = BasketStream.pairedHalves(3, 50, 1.0, 4, 3);
     long t = START;
     for (int i = 0; i < 5_000; i++) {
-      t += stream.nextLong(60_000); // about 4 days: ~600 half-lives, the landmark moves about 9 times
-      String[] items = stream.basket(4, 3);
+      t += stream.random().nextLong(60_000); // about 4 days: ~600 half-lives, the landmark moves about 9 times
+      String[] items = stream.nextBasket();
       engine.addBasket(t, items);
       oracle.add(t, items);
     }
@@ -201,7 +202,7 @@ class EngineOracleTest {
         .trackedPairCapacity(64).trackedItemCapacity(5).build();
     PairEngine engine = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
-    feed(engine, oracle, new Streams(2, 20, 1.0), 4_000, 22, 0);
+    feed(engine, oracle, BasketStream.pairedHalves(2, 20, 1.0, 22, 0), 4_000);
     engine.refresh(PairTables.Options.of(1, START));
     int checked = 0;
     for (HorizonSpec h : config.horizons()) {

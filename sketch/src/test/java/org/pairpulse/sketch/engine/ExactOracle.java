@@ -5,18 +5,22 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.TreeSet;
+import org.pairpulse.sketch.fixtures.ExactCounts;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 
 /**
- * The slow, obvious oracle for the engine: keeps every basket and recomputes exact counts on demand,
- * with the same window semantics (the panes overlapping the newest pane's window) and the direct decay
- * formula 2^(−(asOf − t) / halfLife) per basket (Cormode et al. 2009, Definition 1 with exponential g).
+ * The engine's oracle: the shared exact counts ({@link ExactCounts}: N, n_a, n_ab per window or decay as of the
+ * watermark) of every basket kept, plus what only the engine's tests need, recomputed from every basket with the
+ * direct decay formula 2^(−(asOf − t) / halfLife) per basket (Cormode et al. 2009, Definition 1 with exponential g):
+ * the fractional rank weights and the size-adjusted null model's sums.
  */
 final class ExactOracle {
   record Basket(long eventMillis, List<String> items) {}
 
   final List<Basket> baskets = new ArrayList<>();
   long watermarkMillis = Long.MIN_VALUE;
+  private final Map<HorizonSpec, ExactCounts> counted = new HashMap<>();
+  private final Map<HorizonSpec, Integer> countedBaskets = new HashMap<>();
 
   void add(long eventMillis, String... items) {
     TreeSet<String> distinct = new TreeSet<>();
@@ -42,42 +46,30 @@ final class ExactOracle {
     return Math.pow(2.0, -(double) (watermarkMillis - eventMillis) / h.halfLifeMillis());
   }
 
-  double baskets(HorizonSpec h) {
-    double sum = 0;
-    for (Basket b : baskets) {
-      sum += weight(h, b.eventMillis);
+  /** The shared oracle's counts of every basket so far in {@code h}. */
+  private ExactCounts counts(HorizonSpec h) {
+    if (countedBaskets.getOrDefault(h, -1) != baskets.size()) {
+      ExactCounts exact = new ExactCounts(List.of(h));
+      for (Basket basket : baskets) {
+        exact.add(basket.eventMillis(), basket.items());
+      }
+      counted.put(h, exact);
+      countedBaskets.put(h, baskets.size());
     }
-    return sum;
+    return counted.get(h);
+  }
+
+  double baskets(HorizonSpec h) {
+    return counts(h).baskets(h.name());
   }
 
   Map<String, Double> itemCounts(HorizonSpec h) {
-    Map<String, Double> counts = new HashMap<>();
-    for (Basket b : baskets) {
-      double w = weight(h, b.eventMillis);
-      if (w > 0) {
-        for (String item : b.items) {
-          counts.merge(item, w, Double::sum);
-        }
-      }
-    }
-    return counts;
+    return counts(h).itemCountsByName(h.name());
   }
 
   /** Pair counts keyed "a|b" with a < b. */
   Map<String, Double> pairCounts(HorizonSpec h) {
-    Map<String, Double> counts = new HashMap<>();
-    for (Basket b : baskets) {
-      double w = weight(h, b.eventMillis);
-      if (w > 0) {
-        List<String> items = b.items;
-        for (int i = 0; i < items.size(); i++) {
-          for (int j = i + 1; j < items.size(); j++) {
-            counts.merge(items.get(i) + "|" + items.get(j), w, Double::sum);
-          }
-        }
-      }
-    }
-    return counts;
+    return counts(h).pairCountsByName(h.name());
   }
 
   /**
@@ -101,7 +93,7 @@ final class ExactOracle {
   }
 
   static String[] split(String pairKey) {
-    return pairKey.split("\\|", 2);
+    return ExactCounts.splitPairName(pairKey);
   }
 
   /**
@@ -111,31 +103,11 @@ final class ExactOracle {
    */
   java.util.function.ToDoubleBiFunction<String, String> stratifiedExpected(HorizonSpec h,
       org.pairpulse.sketch.stats.SizeClasses classes) {
-    int count = classes.count();
-    double[] n = new double[count];
-    double[] slots = new double[count];
-    double[] pairSlots = new double[count];
-    Map<String, double[]> byItem = new HashMap<>();
-    for (Basket basket : baskets) {
-      double w = weight(h, basket.eventMillis);
-      int k = basket.items.size();
-      int c = classes.classOf(k);
-      n[c] += w;
-      slots[c] += w * k;
-      pairSlots[c] += w * k * (k - 1.0);
-      for (String item : basket.items) {
-        byItem.computeIfAbsent(item, key -> new double[count])[c] += w;
-      }
-    }
+    ClassSums sums = classSums(h, classes, Integer.MAX_VALUE);
     return (a, b) -> {
-      double[] na = byItem.getOrDefault(a, new double[count]);
-      double[] nb = byItem.getOrDefault(b, new double[count]);
       double sum = 0;
-      for (int c = 0; c < count; c++) {
-        if (n[c] > 0 && pairSlots[c] > 0 && !classes.pairless(c)) {
-          double rho = n[c] * pairSlots[c] / (slots[c] * slots[c]);
-          sum += rho * na[c] * nb[c] / n[c];
-        }
+      for (int c = 0; c < classes.count(); c++) {
+        sum += sums.expected(c, a, b);
       }
       return sum;
     };
@@ -148,39 +120,51 @@ final class ExactOracle {
    */
   java.util.function.ToDoubleBiFunction<String, String> pairCountDispersion(HorizonSpec h,
       org.pairpulse.sketch.stats.SizeClasses classes, int maxPairsPerBasket) {
+    ClassSums sums = classSums(h, classes, maxPairsPerBasket);
+    return (a, b) -> {
+      double expected = 0;
+      double stepped = 0;
+      for (int c = 0; c < classes.count(); c++) {
+        double term = sums.expected(c, a, b);
+        expected += term;
+        stepped += term == 0 ? 0 : term * sums.steppedSlots[c] / sums.pairSlots[c];
+      }
+      return expected > 0 ? Math.max(1.0, stepped / expected) : 1.0;
+    };
+  }
+
+  /** Per size class, over every basket weighed in {@code h}: N_c, Σk, Σk(k − 1), Σk(k − 1)·s and each item's n_a,c. */
+  private ClassSums classSums(HorizonSpec h, org.pairpulse.sketch.stats.SizeClasses classes, int maxPairsPerBasket) {
     int count = classes.count();
-    double[] n = new double[count];
-    double[] slots = new double[count];
-    double[] pairSlots = new double[count];
-    double[] steppedSlots = new double[count];
-    Map<String, double[]> byItem = new HashMap<>();
+    ClassSums sums = new ClassSums(classes, new double[count], new double[count], new double[count], new double[count],
+        new HashMap<>());
     for (Basket basket : baskets) {
       double w = weight(h, basket.eventMillis);
       int k = basket.items.size();
       long pairs = (long) k * (k - 1) / 2;
       long step = pairs <= maxPairsPerBasket ? 1 : (pairs + maxPairsPerBasket - 1) / maxPairsPerBasket;
       int c = classes.classOf(k);
-      n[c] += w;
-      slots[c] += w * k;
-      pairSlots[c] += w * k * (k - 1.0);
-      steppedSlots[c] += w * k * (k - 1.0) * step;
+      sums.n[c] += w;
+      sums.slots[c] += w * k;
+      sums.pairSlots[c] += w * k * (k - 1.0);
+      sums.steppedSlots[c] += w * k * (k - 1.0) * step;
       for (String item : basket.items) {
-        byItem.computeIfAbsent(item, key -> new double[count])[c] += w;
+        sums.byItem.computeIfAbsent(item, key -> new double[count])[c] += w;
       }
     }
-    return (a, b) -> {
-      double[] na = byItem.getOrDefault(a, new double[count]);
-      double[] nb = byItem.getOrDefault(b, new double[count]);
-      double expected = 0;
-      double stepped = 0;
-      for (int c = 0; c < count; c++) {
-        if (n[c] > 0 && pairSlots[c] > 0 && !classes.pairless(c)) {
-          double term = n[c] * pairSlots[c] / (slots[c] * slots[c]) * na[c] * nb[c] / n[c];
-          expected += term;
-          stepped += term * steppedSlots[c] / pairSlots[c];
-        }
+    return sums;
+  }
+
+  private record ClassSums(org.pairpulse.sketch.stats.SizeClasses classes, double[] n, double[] slots,
+      double[] pairSlots, double[] steppedSlots, Map<String, double[]> byItem) {
+    /** E_c of the pair {a, b}: ρ_c·n_a,c·n_b,c / N_c, 0 in a class without pairs. */
+    double expected(int c, String a, String b) {
+      if (!(n[c] > 0 && pairSlots[c] > 0) || classes.pairless(c)) {
+        return 0;
       }
-      return expected > 0 ? Math.max(1.0, stepped / expected) : 1.0;
-    };
+      double[] none = new double[n.length];
+      double rho = n[c] * pairSlots[c] / (slots[c] * slots[c]);
+      return rho * byItem.getOrDefault(a, none)[c] * byItem.getOrDefault(b, none)[c] / n[c];
+    }
   }
 }

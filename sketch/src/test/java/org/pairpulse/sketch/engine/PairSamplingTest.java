@@ -7,6 +7,7 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.sketch.fixtures.BasketStream;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 
 /** The per-basket pair cap: bounded, unbiased (Horvitz–Thompson), counted, and never touching item counts. */
@@ -42,12 +43,12 @@ class PairSamplingTest {
         .horizons(List.of(HorizonSpec.decay("recent", java.time.Duration.ofDays(100000)), window))
         .maxPairsPerBasket(20).trackedPairCapacity(1 << 15).build();
     PairEngine engine = new PairEngine(config);
-    Streams stream = new Streams(5, 60, 0.3);
+    BasketStream stream = BasketStream.pairedHalves(5, 60, 0.3, 16, 0);
     Map<String, Double> exactPairs = new HashMap<>();
     Map<String, Double> exactItems = new HashMap<>();
     int baskets = 4_000;
     for (int i = 0; i < baskets; i++) {
-      String[] items = stream.basket(16, 0); // up to 16 distinct items: up to 120 pairs, cap 20
+      String[] items = stream.nextBasket(); // up to 16 distinct items: up to 120 pairs, cap 20
       engine.addBasket(T0 + i, items);
       ExactOracle single = new ExactOracle();
       single.add(T0, items);

@@ -9,6 +9,7 @@ import java.util.List;
 import java.util.concurrent.CountDownLatch;
 import java.util.concurrent.atomic.AtomicReference;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.sketch.fixtures.BasketStream;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Measure;
 import org.pairpulse.sketch.stats.MeasureSettings;
@@ -81,9 +82,9 @@ class PairTableTest {
   @Test
   void neighboursAreSortedByTheChosenMeasureAndFiltered() {
     PairEngine engine = new PairEngine(EngineConfig.defaults());
-    Streams stream = new Streams(17, 200, 1.0);
+    BasketStream stream = BasketStream.pairedHalves(17, 200, 1.0, 5, 10);
     for (int i = 0; i < 5_000; i++) {
-      engine.addBasket(T0 + i * 10_000L, stream.basket(5, 10));
+      engine.addBasket(T0 + i * 10_000L, stream.nextBasket());
     }
     for (Measure measure : List.of(Measure.LIFT, Measure.SUPPORT, Measure.SHRUNK_LIFT)) {
       PairTable table = engine.refresh(new PairTables.Options(2, T0, MeasureSettings.defaults(), measure, 3.0));
@@ -109,12 +110,12 @@ class PairTableTest {
         .build();
     PairEngine engine = new PairEngine(config);
     PairTableHolder holder = new PairTableHolder();
-    Streams stream = new Streams(23, 300, 1.0);
+    BasketStream stream = BasketStream.pairedHalves(23, 300, 1.0, 5, 5);
     CountDownLatch firstPublished = new CountDownLatch(1);
     AtomicReference<Throwable> readerFailure = new AtomicReference<>();
     Thread writer = new Thread(() -> {
       for (int i = 1; i <= 20_000; i++) {
-        engine.addBasket(T0 + i * 1_000L, stream.basket(5, 5));
+        engine.addBasket(T0 + i * 1_000L, stream.nextBasket());
         if (i % 2_000 == 0) {
           holder.publish(engine.refresh(PairTables.Options.of(i / 2_000, T0 + i)));
           firstPublished.countDown();

@@ -12,6 +12,7 @@ import java.util.stream.Stream;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.Arguments;
 import org.junit.jupiter.params.provider.MethodSource;
+import org.pairpulse.sketch.fixtures.BasketStream;
 import org.pairpulse.sketch.stats.Estimate;
 import org.pairpulse.sketch.stats.Measure;
 import org.pairpulse.sketch.stats.MeasureSettings;
@@ -45,14 +46,14 @@ class RefreshMemoryTest {
     EngineConfig config = EngineConfig.defaults().toBuilder().trackedPairCapacity(pairCapacity)
         .trackedItemCapacity(itemCapacity).build();
     PairEngine engine = new PairEngine(config);
-    Streams stream = new Streams(seed, 300, 1.0);
+    BasketStream stream = BasketStream.pairedHalves(seed, 300, 1.0, 6, 20);
     long t = T0;
     long version = 0;
     int compared = 0;
     for (int i = 0; i < 12_000; i++) {
-      t += stream.nextLong(40_000L); // about 2.2 days in all: panes of both windows leave
-      long eventMillis = stream.nextDouble() < lateShare ? t - stream.nextLong(lateMillis) : t;
-      engine.addBasket(eventMillis, stream.basket(6, 20));
+      t += stream.random().nextLong(40_000L); // about 2.2 days in all: panes of both windows leave
+      long eventMillis = stream.random().nextDouble() < lateShare ? t - stream.random().nextLong(lateMillis) : t;
+      engine.addBasket(eventMillis, stream.nextBasket());
       if (i % basketsPerTable == basketsPerTable - 1) {
         if (i % 900 == 899) {
           engine.advanceTo(t + 2 * HOUR); // an idle stretch: panes leave without a basket
@@ -63,9 +64,9 @@ class RefreshMemoryTest {
       }
       if (mergeAndRestore && i == 6_000) {
         PairEngine other = new PairEngine(config);
-        Streams side = new Streams(seed + 100, 300, 1.0);
+        BasketStream side = BasketStream.pairedHalves(seed + 100, 300, 1.0, 6, 20);
         for (int k = 0; k < 2_000; k++) {
-          other.addBasket(t - side.nextLong(30 * HOUR), side.basket(6, 20));
+          other.addBasket(t - side.random().nextLong(30 * HOUR), side.nextBasket());
         }
         engine.merge(other);
         assertSameTables(engine, ++version);

@@ -15,6 +15,7 @@ import java.util.Arrays;
 import java.util.List;
 import java.util.Map;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.sketch.fixtures.BasketStream;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.snapshot.SnapshotFormatException;
 import org.pairpulse.sketch.stats.Estimate;
@@ -28,9 +29,9 @@ class SnapshotTest {
 
   private static PairEngine streamed(EngineConfig config, long seed, int baskets) {
     PairEngine engine = new PairEngine(config);
-    Streams stream = new Streams(seed, 500, 1.0);
+    BasketStream stream = BasketStream.pairedHalves(seed, 500, 1.0, 6, 10);
     for (int i = 0; i < baskets; i++) {
-      engine.addBasket(START + i * 60_000L, stream.basket(6, 10));
+      engine.addBasket(START + i * 60_000L, stream.nextBasket());
     }
     return engine;
   }
@@ -182,10 +183,10 @@ class SnapshotTest {
     PairEngine b = new PairEngine(config);
     PairEngine union = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
-    Streams stream = new Streams(9, 800, 1.0);
+    BasketStream stream = BasketStream.pairedHalves(9, 800, 1.0, 6, 20);
     for (int i = 0; i < 30_000; i++) {
       long t = START + i * 90_000L; // ~31 days
-      String[] items = stream.basket(6, 20);
+      String[] items = stream.nextBasket();
       // b stops after day 12: its windows and landmark lag behind a's, so the merge must align them
       boolean toA = i % 2 == 0 || t > START + 12 * 24 * HOUR;
       (toA ? a : b).addBasket(t, items);

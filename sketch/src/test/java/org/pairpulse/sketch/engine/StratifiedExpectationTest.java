@@ -7,6 +7,7 @@ import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.sketch.fixtures.BasketStream;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Estimate;
 import org.pairpulse.sketch.stats.MeasureSettings;
@@ -25,14 +26,14 @@ class StratifiedExpectationTest {
   private static final long HOUR = Duration.ofHours(1).toMillis();
   private static final long START = 1_700_000_000_000L;
 
-  private static void feed(PairEngine[] engines, ExactOracle oracle, Streams stream, int baskets, int maxItems) {
+  private static void feed(PairEngine[] engines, ExactOracle oracle, BasketStream stream, int baskets) {
     long span = Duration.ofDays(30).toMillis();
     for (int i = 0; i < baskets; i++) {
       long t = START + span * i / baskets;
-      if (stream.nextDouble() < 0.05) {
-        t -= stream.nextLong(3 * HOUR);
+      if (stream.random().nextDouble() < 0.05) {
+        t -= stream.random().nextLong(3 * HOUR);
       }
-      String[] items = stream.basket(maxItems, 10);
+      String[] items = stream.nextBasket();
       engines[i % engines.length].addBasket(t, items);
       oracle.add(t, items);
     }
@@ -46,9 +47,9 @@ class StratifiedExpectationTest {
       PairEngine one = new PairEngine(config);
       PairEngine[] halves = {new PairEngine(config), new PairEngine(config)};
       ExactOracle oracle = new ExactOracle();
-      Streams stream = new Streams(11, 300, 1.0);
-      feed(new PairEngine[] {one}, new ExactOracle(), new Streams(11, 300, 1.0), 15_000, 8);
-      feed(halves, oracle, stream, 15_000, 8);
+      BasketStream stream = BasketStream.pairedHalves(11, 300, 1.0, 8, 10);
+      feed(new PairEngine[] {one}, new ExactOracle(), BasketStream.pairedHalves(11, 300, 1.0, 8, 10), 15_000);
+      feed(halves, oracle, stream, 15_000);
       PairEngine merged = halves[0];
       merged.merge(halves[1]);
       merged.advanceTo(one.watermarkMillis());
@@ -87,7 +88,7 @@ class StratifiedExpectationTest {
         .pairError(0.01, 0.02).itemError(0.01, 0.02).build();
     PairEngine engine = new PairEngine(config);
     ExactOracle oracle = new ExactOracle();
-    feed(new PairEngine[] {engine}, oracle, new Streams(5, 2_000, 1.0), 30_000, 8);
+    feed(new PairEngine[] {engine}, oracle, BasketStream.pairedHalves(5, 2_000, 1.0, 8, 10), 30_000);
     assertTrue(engine.stats().pairEvictions() > 0);
     PairTable table = engine.refresh(PairTables.Options.of(1, 0));
     for (HorizonSpec h : config.horizons()) {

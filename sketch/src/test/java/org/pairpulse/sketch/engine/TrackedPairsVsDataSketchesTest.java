@@ -11,6 +11,7 @@ import java.util.Set;
 import org.apache.datasketches.frequencies.ErrorType;
 import org.apache.datasketches.frequencies.LongsSketch;
 import org.junit.jupiter.api.Test;
+import org.pairpulse.sketch.fixtures.BasketStream;
 import org.pairpulse.sketch.hash.ItemHash;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 
@@ -33,10 +34,10 @@ class TrackedPairsVsDataSketchesTest {
     LongsSketch reference = new LongsSketch(1024); // map size 1024: 0.75·1024 = 768 counters ≥ our 512
     Map<Long, Long> exact = new HashMap<>();
     Map<Long, String> names = new HashMap<>();
-    Streams stream = new Streams(31, 3_000, 1.05);
+    BasketStream stream = BasketStream.pairedHalves(31, 3_000, 1.05, 6, 40);
     long t0 = 1_700_000_000_000L;
     for (int i = 0; i < 40_000; i++) {
-      String[] basket = stream.basket(6, 40);
+      String[] basket = stream.nextBasket();
       engine.addBasket(t0 + i, basket);
       Set<String> distinct = new HashSet<>(List.of(basket));
       String[] items = distinct.toArray(new String[0]);
