@@ -2,8 +2,8 @@ package org.pairpulse.ops;
 
 import java.io.PrintWriter;
 import java.util.concurrent.Callable;
-import org.pairpulse.ops.backtest.BacktestCommand;
-import org.pairpulse.ops.report.ReportCommand;
+import org.pairpulse.ops.analysis.backtest.BacktestCommand;
+import org.pairpulse.ops.analysis.report.ReportCommand;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.IExecutionExceptionHandler;
@@ -31,7 +31,7 @@ import picocli.CommandLine.UnmatchedArgumentException;
     description = "Streaming market-basket association engine: pair statistics over sliding windows and decaying"
         + " horizons in fixed memory.",
     subcommands = {BenchCommand.class, BacktestCommand.class, ReportCommand.class,
-        org.pairpulse.ops.demo.DemoCommand.class, org.pairpulse.ops.run.RunCommand.class,
+        org.pairpulse.ops.tools.demo.DemoCommand.class, org.pairpulse.ops.product.run.RunCommand.class,
         picocli.CommandLine.HelpCommand.class},
     // picocli's defaults for every command (usage error 2, failure 1), named here because they are our contract
     exitCodeOnInvalidInput = Main.EXIT_USAGE,
