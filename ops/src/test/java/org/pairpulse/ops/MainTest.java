@@ -3,26 +3,15 @@ package org.pairpulse.ops;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.io.PrintWriter;
-import java.io.StringWriter;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.CsvSource;
 import org.junit.jupiter.api.Test;
-import picocli.CommandLine;
+import org.pairpulse.ops.MainTestAccess.Run;
 
 /** The command line parses, helps, and rejects bad input with a clear message and exit code 2. */
 class MainTest {
-  /** What one run of the CLI printed and returned. */
-  record Run(int exitCode, String out, String err) {}
-
   static Run run(String... args) {
-    StringWriter out = new StringWriter();
-    StringWriter err = new StringWriter();
-    CommandLine commandLine = Main.commandLine();
-    commandLine.setOut(new PrintWriter(out, true));
-    commandLine.setErr(new PrintWriter(err, true));
-    int exitCode = commandLine.execute(args);
-    return new Run(exitCode, out.toString(), err.toString());
+    return MainTestAccess.run(args);
   }
 
   @Test

@@ -1,14 +1,24 @@
 package org.pairpulse.ops;
 
-/** Lets tests in other packages run the CLI the way {@link MainTest} does. */
+import java.io.PrintWriter;
+import java.io.StringWriter;
+import picocli.CommandLine;
+
+/** Runs the CLI in this JVM with captured output: the one helper every command's test uses. */
 public final class MainTestAccess {
   private MainTestAccess() {}
 
   /** What one run of the CLI printed and returned. */
   public record Run(int exitCode, String out, String err) {}
 
+  /** {@code pairpulse args...} through {@link Main#commandLine()}, as the launcher runs it, without exiting. */
   public static Run run(String... args) {
-    MainTest.Run run = MainTest.run(args);
-    return new Run(run.exitCode(), run.out(), run.err());
+    StringWriter out = new StringWriter();
+    StringWriter err = new StringWriter();
+    CommandLine commandLine = Main.commandLine();
+    commandLine.setOut(new PrintWriter(out, true));
+    commandLine.setErr(new PrintWriter(err, true));
+    int exitCode = commandLine.execute(args);
+    return new Run(exitCode, out.toString(), err.toString());
   }
 }
