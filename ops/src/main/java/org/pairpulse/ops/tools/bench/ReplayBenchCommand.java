@@ -15,6 +15,7 @@ import org.pairpulse.ops.analysis.backtest.BacktestRun;
 import org.pairpulse.ops.analysis.backtest.BacktestSettings;
 import org.pairpulse.ops.analysis.backtest.DurationText;
 import org.pairpulse.ops.analysis.backtest.SettingsFile;
+import org.pairpulse.ops.analysis.backtest.SimulatedDays;
 import org.pairpulse.ops.tools.scenario.ScenarioConfig;
 import org.pairpulse.ops.tools.scenario.ScenarioFiles;
 import org.pairpulse.ops.tools.scenario.ScenarioGenerator;
@@ -164,7 +165,7 @@ public final class ReplayBenchCommand implements Callable<Integer> {
     private double[] table = new double[1024];
     private double[] step = new double[1024];
     private int count;
-    private long day = Long.MIN_VALUE;
+    private final SimulatedDays days = new SimulatedDays();
     long startedNanos;
 
     RefreshTimes(PrintWriter out) {
@@ -184,9 +185,7 @@ public final class ReplayBenchCommand implements Callable<Integer> {
 
     @Override
     public void refreshed(long atMillis, PairTable pairs, FlooredTable floored, List<AlertEvent> events) {
-      long today = Math.floorDiv(atMillis, BacktestSettings.DAY_MILLIS);
-      if (today != day) {
-        day = today;
+      if (days.refreshed(atMillis, events)) {
         out.printf(Locale.ROOT, "    %s  table v%d, %,d tracked pairs; %.1f s%n", Instant.ofEpochMilli(atMillis),
             pairs.version(), pairs.pairCount(), seconds(startedNanos));
         out.flush();

@@ -23,6 +23,7 @@ import org.pairpulse.ops.tools.drift.DriftScore;
 import org.pairpulse.ops.tools.drift.ExactDriftDetector;
 import org.pairpulse.ops.analysis.backtest.DurationText;
 import org.pairpulse.ops.analysis.backtest.SettingsFile;
+import org.pairpulse.ops.analysis.backtest.SimulatedDays;
 import org.pairpulse.ops.product.evaluation.EvaluationMethod;
 import org.pairpulse.ops.product.evaluation.EvaluationSettings;
 import org.pairpulse.ops.product.evaluation.Tally;
@@ -31,7 +32,6 @@ import org.pairpulse.ops.tools.scenario.ScenarioFiles;
 import org.pairpulse.ops.tools.scenario.ScenarioGenerator;
 import org.pairpulse.ops.tools.scenario.ScenarioGroundTruth;
 import org.pairpulse.serve.drift.AlertEvent;
-import org.pairpulse.serve.drift.AlertTransition;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
@@ -250,8 +250,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
   private static final class DailyProgress implements Backtest.Listener {
     private final PrintWriter out;
     private final long startedNanos;
-    private long day = Long.MIN_VALUE;
-    private long raised;
+    private final SimulatedDays days = new SimulatedDays();
 
     DailyProgress(PrintWriter out, long startedNanos) {
       this.out = out;
@@ -260,12 +259,9 @@ public final class ShiftBenchCommand implements Callable<Integer> {
 
     @Override
     public void refreshed(long atMillis, PairTable table, FlooredTable floored, List<AlertEvent> events) {
-      raised += events.stream().filter(e -> e.transition() == AlertTransition.RAISED).count();
-      long today = Math.floorDiv(atMillis, BacktestSettings.DAY_MILLIS);
-      if (today != day) {
-        day = today;
+      if (days.refreshed(atMillis, events)) {
         out.printf(Locale.ROOT, "  %s  table v%d: %,d tracked pairs, %,d published; %d alerts raised so far; %.1f s%n",
-            Instant.ofEpochMilli(atMillis), table.version(), table.pairCount(), floored.publishedPairs(), raised,
+            Instant.ofEpochMilli(atMillis), table.version(), table.pairCount(), floored.publishedPairs(), days.raised(),
             seconds(startedNanos));
         out.flush();
       }

@@ -18,8 +18,8 @@ import org.pairpulse.ops.analysis.backtest.BacktestSettings;
 import org.pairpulse.ops.analysis.backtest.DurationText;
 import org.pairpulse.ops.analysis.backtest.ReplayBasket;
 import org.pairpulse.ops.analysis.backtest.SettingsFile;
+import org.pairpulse.ops.analysis.backtest.SimulatedDays;
 import org.pairpulse.serve.drift.AlertEvent;
-import org.pairpulse.serve.drift.AlertTransition;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
@@ -229,18 +229,14 @@ public final class DriftBenchCommand implements Callable<Integer> {
   /** Replays one stream through the backtest, with one progress line per simulated day. */
   private static BacktestResult replay(DriftStream stream, BacktestSettings settings, PrintWriter out, long started) {
     Backtest backtest = new Backtest(settings, new Backtest.Listener() {
-      private long day = Long.MIN_VALUE;
-      private long raised;
+      private final SimulatedDays days = new SimulatedDays();
 
       @Override
       public void refreshed(long atMillis, PairTable table, FlooredTable floored, List<AlertEvent> events) {
-        raised += events.stream().filter(e -> e.transition() == AlertTransition.RAISED).count();
-        long today = Math.floorDiv(atMillis, BacktestSettings.DAY_MILLIS);
-        if (today != day) {
-          day = today;
+        if (days.refreshed(atMillis, events)) {
           print(out, String.format(Locale.ROOT, "  %s %s  table v%d: %,d tracked pairs, %,d published; %d alerts"
               + " raised; %.1f s", stream.level().name(), Instant.ofEpochMilli(atMillis), table.version(),
-              table.pairCount(), floored.publishedPairs(), raised, seconds(started)));
+              table.pairCount(), floored.publishedPairs(), days.raised(), seconds(started)));
         }
       }
     }, null);
