@@ -35,6 +35,7 @@ import org.pairpulse.serve.drift.AlertEvent;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
@@ -62,9 +63,7 @@ import picocli.CommandLine.Spec;
             + " the most popular items. Prints progress, then one line:",
         "RESULT shift detected=<k>/<m> delay_sim_minutes_median=<n> false_alerts_per_sim_day=<x> hit_at_10=<x>"
             + " hit_at_10_nightly=<x> hit_at_10_popular=<x>",
-        "Hit rates are over the baskets of the simulated day (24 h) after each planted change."},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+        "Hit rates are over the baskets of the simulated day (24 h) after each planted change."})
 public final class ShiftBenchCommand implements Callable<Integer> {
   /**
    * Refresh interval of the benchmark: as fine as an alert's dwell (15 min), coarse enough for 8 simulated days in
@@ -75,17 +74,16 @@ public final class ShiftBenchCommand implements Callable<Integer> {
   @Spec
   CommandSpec spec;
 
+  @Mixin
+  BenchExitCodes exitCodes;
+
   @Option(names = "--days", paramLabel = "N", description = "Simulated days (default: ${DEFAULT-VALUE}; the planted"
       + " emerging pairs start on day 3 and the fading change is at day 5, so fewer than 6 days see only the emerging"
       + " ones).")
   int days = ScenarioConfig.DEFAULT_DURATION_DAYS;
 
-  @Option(names = "--baskets-per-minute", paramLabel = "X", description = "Mean baskets per simulated minute"
-      + " (default: ${DEFAULT-VALUE}).")
-  double basketsPerMinute = ScenarioConfig.DEFAULT_BASKETS_PER_MINUTE;
-
-  @Option(names = "--seed", paramLabel = "N", description = "Scenario seed (default: ${DEFAULT-VALUE}).")
-  long seed = ScenarioConfig.DEFAULT_SEED;
+  @Mixin
+  ScenarioOptions scenarioOptions = new ScenarioOptions();
 
   @Option(names = "--refresh-every", paramLabel = "DURATION", converter = DurationText.class,
       description = "Event time between refreshes; must divide a day (default: 15m).")
@@ -108,7 +106,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     BacktestSettings settings = settings();
     ScenarioConfig scenario;
     try {
-      scenario = ScenarioConfig.defaults().withSeed(seed).withDurationDays(days).withBasketsPerMinute(basketsPerMinute);
+      scenario = scenarioOptions.scenario(days);
     } catch (IllegalArgumentException e) {
       throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
@@ -117,7 +115,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     try {
       long started = System.nanoTime();
       out.printf(Locale.ROOT, "bench shift: scenario of %d simulated days at %s baskets/min (seed %d) into %s%n", days,
-          basketsPerMinute, seed, directory);
+          scenarioOptions.basketsPerMinute, scenarioOptions.seed, directory);
       out.flush();
       ScenarioGenerator generator = new ScenarioGenerator(scenario);
       long baskets = ScenarioFiles.writeAll(generator, directory);

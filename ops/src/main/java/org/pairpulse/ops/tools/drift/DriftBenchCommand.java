@@ -22,7 +22,9 @@ import org.pairpulse.ops.analysis.backtest.SimulatedDays;
 import org.pairpulse.serve.drift.AlertEvent;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
+import org.pairpulse.ops.tools.bench.BenchExitCodes;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
@@ -49,15 +51,16 @@ import picocli.CommandLine.Spec;
             + " weekend traffic shift) through the backtest with default settings and through a reference detector on"
             + " exact counts; scores both against the planted truth. Prints progress, then one line:",
         "RESULT drift changes=<n> detected=<d>/<n> direction_errors=<n> delay_ratio_vs_exact_median=<x>"
-            + " delay_sim_minutes_median=<x> false_alerts_per_sim_day=<x> bundle_flaps=<n>"},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+            + " delay_sim_minutes_median=<x> false_alerts_per_sim_day=<x> bundle_flaps=<n>"})
 public final class DriftBenchCommand implements Callable<Integer> {
   /** As {@code bench shift}'s: an alert's dwell; 2 levels × 7 days is 1,344 refreshes of about 0.13 s. */
   static final Duration DEFAULT_REFRESH = Duration.ofMinutes(15);
 
   @Spec
   CommandSpec spec;
+
+  @Mixin
+  BenchExitCodes exitCodes;
 
   @Option(names = "--days", paramLabel = "N", description = "Simulated days per stream (default: ${DEFAULT-VALUE};"
       + " the changes lie on days 2 to 5).")
