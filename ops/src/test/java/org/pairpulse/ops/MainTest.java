@@ -60,11 +60,7 @@ class MainTest {
       "bench sketch --drifting-share 2       | pairpulse bench sketch: --drifting-share must be in [0, 1], got 2.0",
       "bench sketch --catalog-items 30 --planted-pairs 400 | pairpulse bench sketch: planted pairs must be in 0..225"})
   void rejectsBadInputWithAClearMessageAndExitCode2(String commandLine, String expectedMessage) {
-    String[] args = commandLine.isBlank() ? new String[0] : commandLine.trim().split("\\s+");
-    Run run = run(args);
-    assertEquals(Main.EXIT_USAGE, run.exitCode(), run.err());
-    assertTrue(run.err().contains(expectedMessage), () -> "stderr was:\n" + run.err());
-    assertEquals("", run.out(), "usage errors go to stderr only");
+    MainTestAccess.assertUsageError(commandLine, expectedMessage);
   }
 
   @Test
