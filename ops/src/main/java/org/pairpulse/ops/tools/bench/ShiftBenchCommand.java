@@ -65,12 +65,6 @@ import picocli.CommandLine.Spec;
             + " hit_at_10_nightly=<x> hit_at_10_popular=<x>",
         "Hit rates are over the baskets of the simulated day (24 h) after each planted change."})
 public final class ShiftBenchCommand implements Callable<Integer> {
-  /**
-   * Refresh interval of the benchmark: as fine as an alert's dwell (15 min), coarse enough for 8 simulated days in
-   * under 5 minutes here (a refresh of the default engine costs about 0.15 s of CPU with 16,384 tracked pairs).
-   */
-  static final Duration DEFAULT_REFRESH = Duration.ofMinutes(15);
-
   @Spec
   CommandSpec spec;
 
@@ -85,9 +79,8 @@ public final class ShiftBenchCommand implements Callable<Integer> {
   @Mixin
   ScenarioOptions scenarioOptions = new ScenarioOptions();
 
-  @Option(names = "--refresh-every", paramLabel = "DURATION", converter = DurationText.class,
-      description = "Event time between refreshes; must divide a day (default: 15m).")
-  Duration refreshEvery = DEFAULT_REFRESH;
+  @Mixin
+  DwellRefreshOption refresh = new DwellRefreshOption();
 
   @Option(names = "--eval-share", paramLabel = "X", description = "Share of baskets evaluated (default: ${DEFAULT-VALUE}).")
   double evalShare = EvaluationSettings.DEFAULT_SHARE;
@@ -147,7 +140,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     BacktestSettings settings = benchmarkSettings();
     try {
       settings = SettingsFile.readOption(config, settings, spec.commandLine().getErr(), "bench shift");
-      settings = settings.withRefreshEveryMillis(refreshEvery.toMillis());
+      settings = settings.withRefreshEveryMillis(refresh.millis());
       EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
       return settings.withEvaluation(evalShare > 0 ? evaluation.withShare(evalShare).withK(10) : null);
     } catch (IllegalArgumentException e) {

@@ -3,7 +3,6 @@ package org.pairpulse.ops.tools.drift;
 import java.io.IOException;
 import java.io.PrintWriter;
 import java.nio.file.Path;
-import java.time.Duration;
 import java.time.Instant;
 import java.util.ArrayList;
 import java.util.List;
@@ -23,6 +22,7 @@ import org.pairpulse.serve.drift.AlertEvent;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
 import org.pairpulse.ops.tools.bench.BenchExitCodes;
+import org.pairpulse.ops.tools.bench.DwellRefreshOption;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
@@ -53,9 +53,6 @@ import picocli.CommandLine.Spec;
         "RESULT drift changes=<n> detected=<d>/<n> direction_errors=<n> delay_ratio_vs_exact_median=<x>"
             + " delay_sim_minutes_median=<x> false_alerts_per_sim_day=<x> bundle_flaps=<n>"})
 public final class DriftBenchCommand implements Callable<Integer> {
-  /** As {@code bench shift}'s: an alert's dwell; 2 levels × 7 days is 1,344 refreshes of about 0.13 s. */
-  static final Duration DEFAULT_REFRESH = Duration.ofMinutes(15);
-
   @Spec
   CommandSpec spec;
 
@@ -81,9 +78,8 @@ public final class DriftBenchCommand implements Callable<Integer> {
       + " ${DEFAULT-VALUE}; small values for a quick look).")
   double trafficScale = 1.0;
 
-  @Option(names = "--refresh-every", paramLabel = "DURATION", converter = DurationText.class,
-      description = "Event time between refreshes; must divide a day (default: 15m).")
-  Duration refreshEvery = DEFAULT_REFRESH;
+  @Mixin
+  DwellRefreshOption refresh = new DwellRefreshOption();
 
   @Option(names = "--config", paramLabel = "FILE",
       description = "Settings file as for backtest (drift.*, engine.*, ...), applied over the defaults.")
@@ -223,7 +219,7 @@ public final class DriftBenchCommand implements Callable<Integer> {
     BacktestSettings settings = BacktestSettings.defaults().withSummaryEveryMillis(BacktestSettings.DAY_MILLIS);
     try {
       settings = SettingsFile.readOption(config, settings, spec.commandLine().getErr(), "bench drift");
-      return settings.withRefreshEveryMillis(refreshEvery.toMillis()).withEvaluation(null);
+      return settings.withRefreshEveryMillis(refresh.millis()).withEvaluation(null);
     } catch (IllegalArgumentException e) {
       throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
