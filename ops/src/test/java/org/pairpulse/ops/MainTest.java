@@ -3,26 +3,15 @@ package org.pairpulse.ops;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import java.io.PrintWriter;
-import java.io.StringWriter;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.CsvSource;
 import org.junit.jupiter.api.Test;
-import picocli.CommandLine;
+import org.pairpulse.ops.MainTestAccess.Run;
 
 /** The command line parses, helps, and rejects bad input with a clear message and exit code 2. */
 class MainTest {
-  /** What one run of the CLI printed and returned. */
-  record Run(int exitCode, String out, String err) {}
-
   static Run run(String... args) {
-    StringWriter out = new StringWriter();
-    StringWriter err = new StringWriter();
-    CommandLine commandLine = Main.commandLine();
-    commandLine.setOut(new PrintWriter(out, true));
-    commandLine.setErr(new PrintWriter(err, true));
-    int exitCode = commandLine.execute(args);
-    return new Run(exitCode, out.toString(), err.toString());
+    return MainTestAccess.run(args);
   }
 
   @Test
@@ -71,11 +60,7 @@ class MainTest {
       "bench sketch --drifting-share 2       | pairpulse bench sketch: --drifting-share must be in [0, 1], got 2.0",
       "bench sketch --catalog-items 30 --planted-pairs 400 | pairpulse bench sketch: planted pairs must be in 0..225"})
   void rejectsBadInputWithAClearMessageAndExitCode2(String commandLine, String expectedMessage) {
-    String[] args = commandLine.isBlank() ? new String[0] : commandLine.trim().split("\\s+");
-    Run run = run(args);
-    assertEquals(Main.EXIT_USAGE, run.exitCode(), run.err());
-    assertTrue(run.err().contains(expectedMessage), () -> "stderr was:\n" + run.err());
-    assertEquals("", run.out(), "usage errors go to stderr only");
+    MainTestAccess.assertUsageError(commandLine, expectedMessage);
   }
 
   @Test

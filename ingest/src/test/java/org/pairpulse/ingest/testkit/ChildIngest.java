@@ -9,6 +9,7 @@ import java.util.Map;
 import java.util.Properties;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ingest.kafka.Ingestor;
+import org.pairpulse.sketch.fixtures.ChildJvm;
 import org.pairpulse.sketch.time.EventClock;
 
 /**
@@ -25,43 +26,18 @@ public final class ChildIngest {
     }
     Map<String, Object> props = new HashMap<>();
     properties.forEach((k, v) -> props.put(k.toString(), v));
-    // the parent holds our stdin: when it ends (the test JVM died or was stopped), do not outlive it
-    Thread orphanWatch = new Thread(() -> {
-      try {
-        while (System.in.read() >= 0) {
-          // nothing is sent; only the end matters
-        }
-      } catch (IOException e) {
-        // treated like the end
-      }
-      Runtime.getRuntime().halt(3);
-    }, "orphan-watch");
-    orphanWatch.setDaemon(true);
-    orphanWatch.start();
+    ChildJvm.haltWhenParentGoes();
     Ingestor ingestor = new Ingestor(new IngestConfig(props), Workload.engineConfig(), new SimpleMeterRegistry(),
         EventClock.system()).start();
     System.out.println("started " + ingestor.instanceId());
-    long last = -1;
-    while (ingestor.isRunning()) {
-      long at = ingestor.positions().values().stream().mapToLong(Long::longValue).sum();
-      if (at != last) {
-        System.out.println("at " + at);
-        System.out.flush();
-        last = at;
-      }
-      Thread.sleep(2); // reporting cadence
-    }
+    ChildJvm.printPositions(() -> ingestor.positions().values().stream().mapToLong(Long::longValue).sum(),
+        ingestor::isRunning, 2);
     System.out.println("stopped " + ingestor.failure());
   }
 
   /** Starts a child JVM running this class with the test class path. */
   public static Process launch(java.nio.file.Path propsFile, java.nio.file.Path log) throws IOException {
-    String classPath = System.getProperty("surefire.test.class.path", System.getProperty("java.class.path"));
-    String javaBin = java.nio.file.Path.of(System.getProperty("java.home"), "bin", "java").toString();
-    ProcessBuilder builder = new ProcessBuilder(javaBin, "-Xmx384m", "-XX:+UseSerialGC", "-XX:TieredStopAtLevel=1",
-        "-cp", classPath, ChildIngest.class.getName(), propsFile.toString());
-    builder.redirectError(log.toFile());
-    return builder.start();
+    return ChildJvm.launch(ChildIngest.class, propsFile.toString(), log);
   }
 
   /** Writes ingest settings to a properties file. */

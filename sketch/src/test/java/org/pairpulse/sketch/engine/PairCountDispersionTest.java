@@ -59,10 +59,7 @@ class PairCountDispersionTest {
       halves[i % 2].addBasket(t, items);
       oracle.add(t, items);
     }
-    PairEngine merged = halves[0];
-    merged.merge(halves[1]);
-    merged.advanceTo(one.watermarkMillis());
-    for (PairEngine engine : new PairEngine[] {one, merged, Snapshots.read(Snapshots.write(one))}) {
+    for (PairEngine engine : ThreeWays.of(one, halves)) {
       PairTable table = engine.refresh(PairTables.Options.of(1, 0));
       int checked = 0;
       double largest = 1;

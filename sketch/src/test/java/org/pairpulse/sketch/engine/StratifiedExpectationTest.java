@@ -50,10 +50,7 @@ class StratifiedExpectationTest {
       BasketStream stream = BasketStream.pairedHalves(11, 300, 1.0, 8, 10);
       feed(new PairEngine[] {one}, new ExactOracle(), BasketStream.pairedHalves(11, 300, 1.0, 8, 10), 15_000);
       feed(halves, oracle, stream, 15_000);
-      PairEngine merged = halves[0];
-      merged.merge(halves[1]);
-      merged.advanceTo(one.watermarkMillis());
-      for (PairEngine engine : new PairEngine[] {one, merged, Snapshots.read(Snapshots.write(one))}) {
+      for (PairEngine engine : ThreeWays.of(one, halves)) {
         PairTable table = engine.refresh(PairTables.Options.of(1, 0));
         int checked = 0;
         for (HorizonSpec h : config.horizons()) {

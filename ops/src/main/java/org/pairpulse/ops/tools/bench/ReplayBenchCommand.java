@@ -15,6 +15,7 @@ import org.pairpulse.ops.analysis.backtest.BacktestRun;
 import org.pairpulse.ops.analysis.backtest.BacktestSettings;
 import org.pairpulse.ops.analysis.backtest.DurationText;
 import org.pairpulse.ops.analysis.backtest.SettingsFile;
+import org.pairpulse.ops.analysis.backtest.SimulatedDays;
 import org.pairpulse.ops.tools.scenario.ScenarioConfig;
 import org.pairpulse.ops.tools.scenario.ScenarioFiles;
 import org.pairpulse.ops.tools.scenario.ScenarioGenerator;
@@ -22,6 +23,7 @@ import org.pairpulse.serve.drift.AlertEvent;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
@@ -47,9 +49,7 @@ import picocli.CommandLine.Spec;
         "Replays a seeded scenario through backtest with a fine refresh and with a 24-hour refresh, in one run, and"
             + " compares their speed. Prints progress, then one line:",
         "RESULT replay baskets_per_s=<n> refresh_ms_p50=<x> refresh_ms_p99=<x> overhead_ratio=<x>",
-        "overhead_ratio = seconds with the 24-hour refresh / seconds with the fine refresh."},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+        "overhead_ratio = seconds with the 24-hour refresh / seconds with the fine refresh."})
 public final class ReplayBenchCommand implements Callable<Integer> {
   static final int DEFAULT_DAYS = 10;
   static final Duration COARSE_REFRESH = Duration.ofDays(1);
@@ -57,15 +57,14 @@ public final class ReplayBenchCommand implements Callable<Integer> {
   @Spec
   CommandSpec spec;
 
+  @Mixin
+  BenchExitCodes exitCodes;
+
   @Option(names = "--days", paramLabel = "N", description = "Simulated days (default: ${DEFAULT-VALUE}).")
   int days = DEFAULT_DAYS;
 
-  @Option(names = "--baskets-per-minute", paramLabel = "X", description = "Mean baskets per simulated minute"
-      + " (default: ${DEFAULT-VALUE}).")
-  double basketsPerMinute = ScenarioConfig.DEFAULT_BASKETS_PER_MINUTE;
-
-  @Option(names = "--seed", paramLabel = "N", description = "Scenario seed (default: ${DEFAULT-VALUE}).")
-  long seed = ScenarioConfig.DEFAULT_SEED;
+  @Mixin
+  ScenarioOptions scenarioOptions = new ScenarioOptions();
 
   @Option(names = "--refresh-every", paramLabel = "DURATION", converter = DurationText.class,
       description = "The fine refresh interval; must divide a day (default: 5m, the backtest's).")
@@ -86,7 +85,7 @@ public final class ReplayBenchCommand implements Callable<Integer> {
           "bench replay");
       fine = base.withRefreshEveryMillis(refreshEvery.toMillis());
       coarse = base.withRefreshEveryMillis(COARSE_REFRESH.toMillis());
-      scenario = ScenarioConfig.defaults().withSeed(seed).withDurationDays(days).withBasketsPerMinute(basketsPerMinute);
+      scenario = scenarioOptions.scenario(days);
     } catch (IllegalArgumentException e) {
       throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
@@ -94,7 +93,7 @@ public final class ReplayBenchCommand implements Callable<Integer> {
     try {
       long started = System.nanoTime();
       out.printf(Locale.ROOT, "bench replay: scenario of %d simulated days at %s baskets/min (seed %d)%n", days,
-          basketsPerMinute, seed);
+          scenarioOptions.basketsPerMinute, scenarioOptions.seed);
       out.flush();
       long written = ScenarioFiles.writeAll(new ScenarioGenerator(scenario), directory);
       Path file = directory.resolve(ScenarioFiles.CSV_FILE);
@@ -164,7 +163,7 @@ public final class ReplayBenchCommand implements Callable<Integer> {
     private double[] table = new double[1024];
     private double[] step = new double[1024];
     private int count;
-    private long day = Long.MIN_VALUE;
+    private final SimulatedDays days = new SimulatedDays();
     long startedNanos;
 
     RefreshTimes(PrintWriter out) {
@@ -184,9 +183,7 @@ public final class ReplayBenchCommand implements Callable<Integer> {
 
     @Override
     public void refreshed(long atMillis, PairTable pairs, FlooredTable floored, List<AlertEvent> events) {
-      long today = Math.floorDiv(atMillis, BacktestSettings.DAY_MILLIS);
-      if (today != day) {
-        day = today;
+      if (days.refreshed(atMillis, events)) {
         out.printf(Locale.ROOT, "    %s  table v%d, %,d tracked pairs; %.1f s%n", Instant.ofEpochMilli(atMillis),
             pairs.version(), pairs.pairCount(), seconds(startedNanos));
         out.flush();

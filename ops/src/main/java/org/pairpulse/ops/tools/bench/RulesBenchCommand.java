@@ -29,6 +29,7 @@ import org.pairpulse.sketch.stats.Measure;
 import org.pairpulse.sketch.stats.SizeClasses;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
@@ -61,9 +62,7 @@ import picocli.CommandLine.Spec;
         "Counts seeded streams of independent items with planted pairs (three basket-size shapes: small, mixed, heavy"
             + " tail) and scores the offer lists and suggestions against the planted truth. Prints progress, then one"
             + " line:",
-        "RESULT rules precision_at_20=<x> planted_recall=<x> spurious_share=<x> hit_at_10=<x> hit_at_10_popular=<x>"},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+        "RESULT rules precision_at_20=<x> planted_recall=<x> spurious_share=<x> hit_at_10=<x> hit_at_10_popular=<x>"})
 public final class RulesBenchCommand implements Callable<Integer> {
   static final long START_MILLIS = 1_780_000_000_000L - Math.floorMod(1_780_000_000_000L, 3_600_000L);
   /** The stream spans 20 hours: all of it inside the report's {@code day} window. */
@@ -71,6 +70,9 @@ public final class RulesBenchCommand implements Callable<Integer> {
 
   @Spec
   CommandSpec spec;
+
+  @Mixin
+  BenchExitCodes exitCodes;
 
   @Option(names = "--baskets", paramLabel = "N", description = "Baskets per shape (default: ${DEFAULT-VALUE}).")
   int baskets = 150_000;

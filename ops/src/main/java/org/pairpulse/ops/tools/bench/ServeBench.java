@@ -33,6 +33,7 @@ import org.pairpulse.sketch.fixtures.ZipfSampler;
 import org.pairpulse.sketch.table.PairTable;
 import org.pairpulse.sketch.table.PairTableHolder;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
@@ -69,12 +70,13 @@ import picocli.CommandLine.Spec;
             + " same load against the status endpoint as the floor.",
         "Prints progress, then one line:",
         "RESULT serve rps=<n> p50_us=<n> p99_us=<n> floor_p99_us=<n> ratio_p99=<x>",
-        "About two minutes with the defaults."},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+        "About two minutes with the defaults."})
 public final class ServeBench implements Callable<Integer> {
   @Spec
   CommandSpec spec;
+
+  @Mixin
+  BenchExitCodes exitCodes;
 
   @Option(names = "--catalog-items", paramLabel = "N", description = "Items in the catalog (default: ${DEFAULT-VALUE}).")
   int catalogItems = 10_000;

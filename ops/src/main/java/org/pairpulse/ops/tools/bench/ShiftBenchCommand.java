@@ -23,6 +23,7 @@ import org.pairpulse.ops.tools.drift.DriftScore;
 import org.pairpulse.ops.tools.drift.ExactDriftDetector;
 import org.pairpulse.ops.analysis.backtest.DurationText;
 import org.pairpulse.ops.analysis.backtest.SettingsFile;
+import org.pairpulse.ops.analysis.backtest.SimulatedDays;
 import org.pairpulse.ops.product.evaluation.EvaluationMethod;
 import org.pairpulse.ops.product.evaluation.EvaluationSettings;
 import org.pairpulse.ops.product.evaluation.Tally;
@@ -31,10 +32,10 @@ import org.pairpulse.ops.tools.scenario.ScenarioFiles;
 import org.pairpulse.ops.tools.scenario.ScenarioGenerator;
 import org.pairpulse.ops.tools.scenario.ScenarioGroundTruth;
 import org.pairpulse.serve.drift.AlertEvent;
-import org.pairpulse.serve.drift.AlertTransition;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
@@ -62,34 +63,24 @@ import picocli.CommandLine.Spec;
             + " the most popular items. Prints progress, then one line:",
         "RESULT shift detected=<k>/<m> delay_sim_minutes_median=<n> false_alerts_per_sim_day=<x> hit_at_10=<x>"
             + " hit_at_10_nightly=<x> hit_at_10_popular=<x>",
-        "Hit rates are over the baskets of the simulated day (24 h) after each planted change."},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+        "Hit rates are over the baskets of the simulated day (24 h) after each planted change."})
 public final class ShiftBenchCommand implements Callable<Integer> {
-  /**
-   * Refresh interval of the benchmark: as fine as an alert's dwell (15 min), coarse enough for 8 simulated days in
-   * under 5 minutes here (a refresh of the default engine costs about 0.15 s of CPU with 16,384 tracked pairs).
-   */
-  static final Duration DEFAULT_REFRESH = Duration.ofMinutes(15);
-
   @Spec
   CommandSpec spec;
+
+  @Mixin
+  BenchExitCodes exitCodes;
 
   @Option(names = "--days", paramLabel = "N", description = "Simulated days (default: ${DEFAULT-VALUE}; the planted"
       + " emerging pairs start on day 3 and the fading change is at day 5, so fewer than 6 days see only the emerging"
       + " ones).")
   int days = ScenarioConfig.DEFAULT_DURATION_DAYS;
 
-  @Option(names = "--baskets-per-minute", paramLabel = "X", description = "Mean baskets per simulated minute"
-      + " (default: ${DEFAULT-VALUE}).")
-  double basketsPerMinute = ScenarioConfig.DEFAULT_BASKETS_PER_MINUTE;
+  @Mixin
+  ScenarioOptions scenarioOptions = new ScenarioOptions();
 
-  @Option(names = "--seed", paramLabel = "N", description = "Scenario seed (default: ${DEFAULT-VALUE}).")
-  long seed = ScenarioConfig.DEFAULT_SEED;
-
-  @Option(names = "--refresh-every", paramLabel = "DURATION", converter = DurationText.class,
-      description = "Event time between refreshes; must divide a day (default: 15m).")
-  Duration refreshEvery = DEFAULT_REFRESH;
+  @Mixin
+  DwellRefreshOption refresh = new DwellRefreshOption();
 
   @Option(names = "--eval-share", paramLabel = "X", description = "Share of baskets evaluated (default: ${DEFAULT-VALUE}).")
   double evalShare = EvaluationSettings.DEFAULT_SHARE;
@@ -108,7 +99,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     BacktestSettings settings = settings();
     ScenarioConfig scenario;
     try {
-      scenario = ScenarioConfig.defaults().withSeed(seed).withDurationDays(days).withBasketsPerMinute(basketsPerMinute);
+      scenario = scenarioOptions.scenario(days);
     } catch (IllegalArgumentException e) {
       throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
@@ -117,7 +108,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     try {
       long started = System.nanoTime();
       out.printf(Locale.ROOT, "bench shift: scenario of %d simulated days at %s baskets/min (seed %d) into %s%n", days,
-          basketsPerMinute, seed, directory);
+          scenarioOptions.basketsPerMinute, scenarioOptions.seed, directory);
       out.flush();
       ScenarioGenerator generator = new ScenarioGenerator(scenario);
       long baskets = ScenarioFiles.writeAll(generator, directory);
@@ -149,7 +140,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     BacktestSettings settings = benchmarkSettings();
     try {
       settings = SettingsFile.readOption(config, settings, spec.commandLine().getErr(), "bench shift");
-      settings = settings.withRefreshEveryMillis(refreshEvery.toMillis());
+      settings = settings.withRefreshEveryMillis(refresh.millis());
       EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
       return settings.withEvaluation(evalShare > 0 ? evaluation.withShare(evalShare).withK(10) : null);
     } catch (IllegalArgumentException e) {
@@ -250,8 +241,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
   private static final class DailyProgress implements Backtest.Listener {
     private final PrintWriter out;
     private final long startedNanos;
-    private long day = Long.MIN_VALUE;
-    private long raised;
+    private final SimulatedDays days = new SimulatedDays();
 
     DailyProgress(PrintWriter out, long startedNanos) {
       this.out = out;
@@ -260,12 +250,9 @@ public final class ShiftBenchCommand implements Callable<Integer> {
 
     @Override
     public void refreshed(long atMillis, PairTable table, FlooredTable floored, List<AlertEvent> events) {
-      raised += events.stream().filter(e -> e.transition() == AlertTransition.RAISED).count();
-      long today = Math.floorDiv(atMillis, BacktestSettings.DAY_MILLIS);
-      if (today != day) {
-        day = today;
+      if (days.refreshed(atMillis, events)) {
         out.printf(Locale.ROOT, "  %s  table v%d: %,d tracked pairs, %,d published; %d alerts raised so far; %.1f s%n",
-            Instant.ofEpochMilli(atMillis), table.version(), table.pairCount(), floored.publishedPairs(), raised,
+            Instant.ofEpochMilli(atMillis), table.version(), table.pairCount(), floored.publishedPairs(), days.raised(),
             seconds(startedNanos));
         out.flush();
       }

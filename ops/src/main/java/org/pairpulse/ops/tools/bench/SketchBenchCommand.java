@@ -15,6 +15,7 @@ import org.pairpulse.sketch.bench.PairEngineBenchmark;
 import org.pairpulse.sketch.fixtures.ExactCounts;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
@@ -41,12 +42,13 @@ import picocli.CommandLine.Spec;
         "Prints progress, then one line:",
         "RESULT sketch pairs_per_s=<n> cms_ratio_vs_streamlib=<x> recall_at_100=<x> lift_rel_err_p95=<x>"
             + " state_bytes=<n> exact_bytes=<n>",
-        "About a minute with the defaults."},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+        "About a minute with the defaults."})
 public final class SketchBenchCommand implements Callable<Integer> {
   @Spec
   CommandSpec spec;
+
+  @Mixin
+  BenchExitCodes exitCodes;
 
   @Option(names = "--seed", paramLabel = "N", description = "Random seed of every generated stream (default: ${DEFAULT-VALUE}).")
   long seed = 42;

@@ -3,7 +3,6 @@ package org.pairpulse.ops.tools.drift;
 import java.io.IOException;
 import java.io.PrintWriter;
 import java.nio.file.Path;
-import java.time.Duration;
 import java.time.Instant;
 import java.util.ArrayList;
 import java.util.List;
@@ -18,11 +17,14 @@ import org.pairpulse.ops.analysis.backtest.BacktestSettings;
 import org.pairpulse.ops.analysis.backtest.DurationText;
 import org.pairpulse.ops.analysis.backtest.ReplayBasket;
 import org.pairpulse.ops.analysis.backtest.SettingsFile;
+import org.pairpulse.ops.analysis.backtest.SimulatedDays;
 import org.pairpulse.serve.drift.AlertEvent;
-import org.pairpulse.serve.drift.AlertTransition;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
+import org.pairpulse.ops.tools.bench.BenchExitCodes;
+import org.pairpulse.ops.tools.bench.DwellRefreshOption;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
@@ -49,15 +51,13 @@ import picocli.CommandLine.Spec;
             + " weekend traffic shift) through the backtest with default settings and through a reference detector on"
             + " exact counts; scores both against the planted truth. Prints progress, then one line:",
         "RESULT drift changes=<n> detected=<d>/<n> direction_errors=<n> delay_ratio_vs_exact_median=<x>"
-            + " delay_sim_minutes_median=<x> false_alerts_per_sim_day=<x> bundle_flaps=<n>"},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+            + " delay_sim_minutes_median=<x> false_alerts_per_sim_day=<x> bundle_flaps=<n>"})
 public final class DriftBenchCommand implements Callable<Integer> {
-  /** As {@code bench shift}'s: an alert's dwell; 2 levels × 7 days is 1,344 refreshes of about 0.13 s. */
-  static final Duration DEFAULT_REFRESH = Duration.ofMinutes(15);
-
   @Spec
   CommandSpec spec;
+
+  @Mixin
+  BenchExitCodes exitCodes;
 
   @Option(names = "--days", paramLabel = "N", description = "Simulated days per stream (default: ${DEFAULT-VALUE};"
       + " the changes lie on days 2 to 5).")
@@ -78,9 +78,8 @@ public final class DriftBenchCommand implements Callable<Integer> {
       + " ${DEFAULT-VALUE}; small values for a quick look).")
   double trafficScale = 1.0;
 
-  @Option(names = "--refresh-every", paramLabel = "DURATION", converter = DurationText.class,
-      description = "Event time between refreshes; must divide a day (default: 15m).")
-  Duration refreshEvery = DEFAULT_REFRESH;
+  @Mixin
+  DwellRefreshOption refresh = new DwellRefreshOption();
 
   @Option(names = "--config", paramLabel = "FILE",
       description = "Settings file as for backtest (drift.*, engine.*, ...), applied over the defaults.")
@@ -220,7 +219,7 @@ public final class DriftBenchCommand implements Callable<Integer> {
     BacktestSettings settings = BacktestSettings.defaults().withSummaryEveryMillis(BacktestSettings.DAY_MILLIS);
     try {
       settings = SettingsFile.readOption(config, settings, spec.commandLine().getErr(), "bench drift");
-      return settings.withRefreshEveryMillis(refreshEvery.toMillis()).withEvaluation(null);
+      return settings.withRefreshEveryMillis(refresh.millis()).withEvaluation(null);
     } catch (IllegalArgumentException e) {
       throw new ParameterException(spec.commandLine(), e.getMessage(), e);
     }
@@ -229,18 +228,14 @@ public final class DriftBenchCommand implements Callable<Integer> {
   /** Replays one stream through the backtest, with one progress line per simulated day. */
   private static BacktestResult replay(DriftStream stream, BacktestSettings settings, PrintWriter out, long started) {
     Backtest backtest = new Backtest(settings, new Backtest.Listener() {
-      private long day = Long.MIN_VALUE;
-      private long raised;
+      private final SimulatedDays days = new SimulatedDays();
 
       @Override
       public void refreshed(long atMillis, PairTable table, FlooredTable floored, List<AlertEvent> events) {
-        raised += events.stream().filter(e -> e.transition() == AlertTransition.RAISED).count();
-        long today = Math.floorDiv(atMillis, BacktestSettings.DAY_MILLIS);
-        if (today != day) {
-          day = today;
+        if (days.refreshed(atMillis, events)) {
           print(out, String.format(Locale.ROOT, "  %s %s  table v%d: %,d tracked pairs, %,d published; %d alerts"
               + " raised; %.1f s", stream.level().name(), Instant.ofEpochMilli(atMillis), table.version(),
-              table.pairCount(), floored.publishedPairs(), raised, seconds(started)));
+              table.pairCount(), floored.publishedPairs(), days.raised(), seconds(started)));
         }
       }
     }, null);

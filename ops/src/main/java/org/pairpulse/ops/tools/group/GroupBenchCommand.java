@@ -22,7 +22,9 @@ import org.pairpulse.ingest.broker.EmbeddedKafkaBroker;
 import org.pairpulse.ingest.kafka.GroupCoverage;
 import org.pairpulse.ops.product.pipeline.Pipeline;
 import org.pairpulse.ops.product.run.RunConfig;
+import org.pairpulse.ops.tools.bench.BenchExitCodes;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.Spec;
@@ -49,15 +51,16 @@ import picocli.CommandLine.Spec;
     description = {"Three instances in one consumer group over six partitions against one instance on the same input:"
         + " equal answers, each alert once, view lag, publication bytes and merge time. Prints progress, then one line:",
         "RESULT group instances=3 answers_equal=<0|1> alerts_exactly_once=<0|1> view_lag_ms_p99=<n>"
-            + " bytes_per_publication=<n> merge_ms_p99=<x>"},
-    exitCodeListHeading = "%nExit codes:%n",
-    exitCodeList = {"0:benchmark ran; RESULT printed", "1:the benchmark failed", "2:invalid options"})
+            + " bytes_per_publication=<n> merge_ms_p99=<x>"})
 public final class GroupBenchCommand implements Callable<Integer> {
   private static final String TOPIC = "bench-group.baskets";
   private static final int PARTITIONS = 6;
 
   @Spec
   CommandSpec spec;
+
+  @Mixin
+  BenchExitCodes exitCodes;
 
   @Option(names = "--baskets", paramLabel = "N", description = "Baskets in the stream (default: ${DEFAULT-VALUE}).")
   int baskets = 30_000;

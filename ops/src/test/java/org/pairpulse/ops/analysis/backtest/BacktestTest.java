@@ -8,8 +8,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import java.io.IOException;
-import java.io.PrintWriter;
-import java.io.StringWriter;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
@@ -23,6 +21,8 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.pairpulse.ops.Main;
+import org.pairpulse.ops.MainTestAccess;
+import org.pairpulse.ops.MainTestAccess.Run;
 import org.pairpulse.ops.product.evaluation.EvaluationSettings;
 import org.pairpulse.ops.product.evaluation.Trial;
 import org.pairpulse.ops.tools.scenario.ScenarioConfig;
@@ -30,7 +30,6 @@ import org.pairpulse.ops.tools.scenario.ScenarioFiles;
 import org.pairpulse.ops.tools.scenario.ScenarioGenerator;
 import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.sketch.engine.EngineConfig;
-import picocli.CommandLine;
 
 /** The replay: deterministic output, test-then-train order, the nightly baseline's daily rebuild. */
 class BacktestTest {
@@ -51,16 +50,8 @@ class BacktestTest {
         "engine.tracked.pair.capacity=512", "engine.tracked.item.capacity=512", "drift.min.dwell.ms=600000", ""));
   }
 
-  record Run(int exitCode, String out, String err) {}
-
   static Run cli(String... args) {
-    StringWriter out = new StringWriter();
-    StringWriter err = new StringWriter();
-    CommandLine commandLine = Main.commandLine();
-    commandLine.setOut(new PrintWriter(out, true));
-    commandLine.setErr(new PrintWriter(err, true));
-    int exitCode = commandLine.execute(args);
-    return new Run(exitCode, out.toString(), err.toString());
+    return MainTestAccess.run(args);
   }
 
   @Test

@@ -4,8 +4,6 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.io.IOException;
-import java.io.PrintWriter;
-import java.io.StringWriter;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
@@ -19,6 +17,7 @@ import org.pairpulse.ingest.segment.SegmentEngines;
 import org.pairpulse.ingest.segment.SegmentSettings;
 import org.junit.jupiter.api.io.TempDir;
 import org.pairpulse.ops.Main;
+import org.pairpulse.ops.MainTestAccess;
 import org.pairpulse.ops.analysis.backtest.BacktestSettings;
 import org.pairpulse.ops.analysis.backtest.ReplaySource;
 import org.pairpulse.ops.tools.scenario.ScenarioConfig;
@@ -27,7 +26,6 @@ import org.pairpulse.ops.tools.scenario.ScenarioGenerator;
 import org.pairpulse.sketch.engine.EngineConfig;
 import org.pairpulse.sketch.engine.PairEngine;
 import org.pairpulse.sketch.engine.Snapshots;
-import picocli.CommandLine;
 
 /** {@code pairpulse report} from a replayed file with segments, and from a snapshot of the same state. */
 class ReportCommandTest {
@@ -48,13 +46,8 @@ class ReportCommandTest {
   }
 
   static String[] run(String... args) {
-    StringWriter out = new StringWriter();
-    StringWriter err = new StringWriter();
-    CommandLine commandLine = Main.commandLine();
-    commandLine.setOut(new PrintWriter(out, true));
-    commandLine.setErr(new PrintWriter(err, true));
-    int exitCode = commandLine.execute(args);
-    return new String[] {Integer.toString(exitCode), out.toString(), err.toString()};
+    MainTestAccess.Run run = MainTestAccess.run(args);
+    return new String[] {Integer.toString(run.exitCode()), run.out(), run.err()};
   }
 
   /** {@code report --input} of the scenario file with segments by channel, floor 20, into {@code out}; exit 0. */

@@ -3,6 +3,7 @@ package org.pairpulse.ops.tools.bench;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
 import java.util.regex.Pattern;
@@ -19,11 +20,18 @@ class SketchBenchCommandTest {
   static final Pattern RESULT = Pattern.compile("^RESULT sketch pairs_per_s=\\d+ cms_ratio_vs_streamlib=\\d+(\\.\\d+)?"
       + " recall_at_100=\\d+(\\.\\d+)? lift_rel_err_p95=\\d+(\\.\\d+)? state_bytes=\\d+ exact_bytes=\\d+$");
 
+  /** {@code bench sketch} with one unforked JMH measurement iteration and no warm-up, then these options. */
+  private static MainTestAccess.Run inThisJvm(String... options) {
+    List<String> args = new ArrayList<>(List.of("bench", "sketch", "--forks", "0", "--warmup-iterations", "0",
+        "--measurement-iterations", "1"));
+    args.addAll(List.of(options));
+    return MainTestAccess.run(args.toArray(String[]::new));
+  }
+
   @Test
   void smallRunEndsWithOneResultLineInTheExactFormat() {
-    MainTestAccess.Run run = MainTestAccess.run("bench", "sketch", "--forks", "0", "--warmup-iterations", "0",
-        "--measurement-iterations", "1", "--iteration-millis", "200", "--stream-baskets", "20000",
-        "--catalog-items", "2000", "--pair-occurrences", "200000", "--planted-pairs", "150", "--seed", "7");
+    MainTestAccess.Run run = inThisJvm("--iteration-millis", "200", "--stream-baskets", "20000", "--catalog-items", "2000",
+        "--pair-occurrences", "200000", "--planted-pairs", "150", "--seed", "7");
     assertEquals(Main.EXIT_OK, run.exitCode(), run.err());
     List<String> lines = Arrays.asList(run.out().split("\\R"));
     String last = lines.get(lines.size() - 1);
@@ -38,9 +46,8 @@ class SketchBenchCommandTest {
 
   @Test
   void aFailingRunSaysWhyAndExitsWith1() {
-    MainTestAccess.Run run = MainTestAccess.run("bench", "sketch", "--forks", "0", "--warmup-iterations", "0",
-        "--measurement-iterations", "1", "--iteration-millis", "10", "--stream-baskets", "1000",
-        "--catalog-items", "2000", "--pair-occurrences", "20000", "--planted-pairs", "10", "--support-floor", "0.9");
+    MainTestAccess.Run run = inThisJvm("--iteration-millis", "10", "--stream-baskets", "1000", "--catalog-items", "2000",
+        "--pair-occurrences", "20000", "--planted-pairs", "10", "--support-floor", "0.9");
     assertEquals(Main.EXIT_FAILED, run.exitCode(), run.err());
     assertTrue(run.err().contains("pairpulse bench sketch: failed: no pair of horizon"), run.err());
     assertTrue(run.err().contains("lower --support-floor"), run.err());
