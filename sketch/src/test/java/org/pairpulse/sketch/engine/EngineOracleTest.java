@@ -102,7 +102,9 @@ class EngineOracleTest {
   }
 
   /**
-   * Space-Saving's guarantee (Metwally, Agrawal, El Abbadi 2005, Theorem on weighted increments) on the rank weights:
+   * Space-Saving's guarantee (Metwally, Agrawal, El Abbadi, "Efficient computation of frequent and top-k elements in
+   * data streams", ICDT 2005; extended to weighted increments as argued in TrackedTable's class comment) on the rank
+   * weights:
    * under the default fractional ranking every pair whose rank weight (1/(k − 1) per occurrence in a basket of k items,
    * recomputed by the oracle) exceeds W_rank / capacity is tracked; under the count ranking, every pair whose count
    * exceeds W / capacity.
