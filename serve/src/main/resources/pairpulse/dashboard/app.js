@@ -378,6 +378,15 @@
     });
   }
 
+  /** One row across a table's columns saying why the table is empty. */
+  function emptyRow(body, columns, text) {
+    var tr = el('tr');
+    var td = el('td', 'empty', text);
+    td.colSpan = columns;
+    tr.appendChild(td);
+    body.appendChild(tr);
+  }
+
   function loadTop() {
     return api('/api/v1/pairs/top', { horizon: $('top-horizon').value || 'day', count: 10 }).then(function (r) {
       var body = $('top-pairs');
@@ -395,13 +404,7 @@
         tr.addEventListener('click', function () { selectPair(p.a, p.b); });
         body.appendChild(tr);
       });
-      if (!r.pairs.length) {
-        var tr = el('tr');
-        var td = el('td', 'empty', 'No pair passes the cohort floor yet.');
-        td.colSpan = 6;
-        tr.appendChild(td);
-        body.appendChild(tr);
-      }
+      if (!r.pairs.length) { emptyRow(body, 6, 'No pair passes the cohort floor yet.'); }
       return r;
     });
   }
@@ -418,13 +421,7 @@
         tr.appendChild(el('td', 'num', fmt(p.signedRootG2, 1)));
         body.appendChild(tr);
       });
-      if (!r.pairs.length) {
-        var tr = el('tr');
-        var td = el('td', 'empty', 'No repelling pair.');
-        td.colSpan = 4;
-        tr.appendChild(td);
-        body.appendChild(tr);
-      }
+      if (!r.pairs.length) { emptyRow(body, 4, 'No repelling pair.'); }
     });
   }
 

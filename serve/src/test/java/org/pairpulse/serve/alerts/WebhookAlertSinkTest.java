@@ -127,23 +127,23 @@ class WebhookAlertSinkTest {
 
   @Test
   void givesUpAfterMaxAttemptsAndSkipsPermanentErrors() throws Exception {
-    URI url = receiver(sequence(500), 0);
-    sink = new WebhookAlertSink(new WebhookAlertSink.Settings(url, 3, Duration.ofMillis(20), Duration.ofMillis(40),
-        Duration.ofSeconds(5), 10), registry);
-    sink.publish(EVENT, CloudEvents.json(EVENT));
-    awaitIdle();
+    publishOnceWithThreeAttempts(receiver(sequence(500), 0));
     assertEquals(3, arrivalsNanos.size());
     assertEquals(1, count("failed"));
     receiver.stop(0);
     arrivalsNanos.clear();
-    url = receiver(sequence(400), 0); // a client error is not retried
     sink.close();
+    publishOnceWithThreeAttempts(receiver(sequence(400), 0)); // a client error is not retried
+    assertEquals(1, arrivalsNanos.size());
+    assertEquals(2, count("failed"));
+  }
+
+  /** A sink to {@code url} with 3 attempts (backoff 20 ms, capped at 40 ms) publishes one event; waits until idle. */
+  private void publishOnceWithThreeAttempts(URI url) throws Exception {
     sink = new WebhookAlertSink(new WebhookAlertSink.Settings(url, 3, Duration.ofMillis(20), Duration.ofMillis(40),
         Duration.ofSeconds(5), 10), registry);
     sink.publish(EVENT, CloudEvents.json(EVENT));
     awaitIdle();
-    assertEquals(1, arrivalsNanos.size());
-    assertEquals(2, count("failed"));
   }
 
   @Test

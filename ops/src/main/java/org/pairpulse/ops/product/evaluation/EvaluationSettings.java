@@ -1,5 +1,6 @@
 package org.pairpulse.ops.product.evaluation;
 
+import java.util.List;
 import java.util.Objects;
 import org.pairpulse.serve.suggest.SuggestionRanking;
 import org.pairpulse.serve.suggest.SuggestionRequest;
@@ -53,9 +54,13 @@ public record EvaluationSettings(double share, long seed, int k, String horizon,
     if (k < 1 || k > MAX_K) {
       throw new IllegalArgumentException("evaluation k must be in 1.." + MAX_K + ", got " + k);
     }
-    // the request checks the band
-    new SuggestionRequest(java.util.List.of("x"), horizon, measure, k, minConfidence, maxConfidence, 0, includeBundles,
-        ranking);
+    // the request checks the band and the ranking against the measure (the fields are not assigned yet)
+    new SuggestionRequest(List.of("x"), horizon, measure, k, minConfidence, maxConfidence, 0, includeBundles, ranking);
+  }
+
+  /** What the evaluation asks the suggester for a trial's basket: these settings, no support floor. */
+  public SuggestionRequest request(List<String> basket) {
+    return new SuggestionRequest(basket, horizon, measure, k, minConfidence, maxConfidence, 0.0, includeBundles, ranking);
   }
 
   /** The defaults of the table above. */

@@ -155,8 +155,7 @@ public final class Evaluator implements EvaluationStatus {
     String hidden = sorted.get((int) Long.remainderUnsigned(mix(hash), sorted.size()));
     List<String> query = new ArrayList<>(sorted);
     query.remove(hidden);
-    SuggestionRequest request = new SuggestionRequest(query, settings.horizon(), settings.measure(), settings.k(),
-        settings.minConfidence(), settings.maxConfidence(), 0.0, settings.includeBundles(), settings.ranking());
+    SuggestionRequest request = settings.request(query);
     int incrementalRank = rankOf(hidden, suggester.suggest(incremental, request));
     int nightlyRank = rankOf(hidden, suggester.suggest(nightly, request));
     int popularRank = popularRank(hidden, distinct, incremental);

@@ -24,10 +24,7 @@ import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Mixin;
-import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
-import picocli.CommandLine.ParameterException;
-import picocli.CommandLine.Spec;
 
 /**
  * {@code pairpulse bench replay}: what refreshes cost a replay. The seeded Kestrel Connect scenario (10 simulated
@@ -54,11 +51,8 @@ public final class ReplayBenchCommand implements Callable<Integer> {
   static final int DEFAULT_DAYS = 10;
   static final Duration COARSE_REFRESH = Duration.ofDays(1);
 
-  @Spec
-  CommandSpec spec;
-
   @Mixin
-  BenchExitCodes exitCodes;
+  BenchMixin bench;
 
   @Option(names = "--days", paramLabel = "N", description = "Simulated days (default: ${DEFAULT-VALUE}).")
   int days = DEFAULT_DAYS;
@@ -76,18 +70,18 @@ public final class ReplayBenchCommand implements Callable<Integer> {
 
   @Override
   public Integer call() throws Exception {
-    PrintWriter out = spec.commandLine().getOut();
+    PrintWriter out = bench.out();
     BacktestSettings fine;
     BacktestSettings coarse;
     ScenarioConfig scenario;
     try {
-      BacktestSettings base = SettingsFile.readOption(config, BacktestSettings.defaults(), spec.commandLine().getErr(),
+      BacktestSettings base = SettingsFile.readOption(config, BacktestSettings.defaults(), bench.err(),
           "bench replay");
       fine = base.withRefreshEveryMillis(refreshEvery.toMillis());
       coarse = base.withRefreshEveryMillis(COARSE_REFRESH.toMillis());
       scenario = scenarioOptions.scenario(days);
     } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
+      throw bench.usage(e.getMessage(), e);
     }
     Path directory = Files.createTempDirectory("pairpulse-replay-");
     try {

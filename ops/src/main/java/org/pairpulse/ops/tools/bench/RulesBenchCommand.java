@@ -30,10 +30,7 @@ import org.pairpulse.sketch.stats.SizeClasses;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Mixin;
-import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
-import picocli.CommandLine.ParameterException;
-import picocli.CommandLine.Spec;
 
 /**
  * {@code pairpulse bench rules}: rule quality against a planted truth. For each basket-size shape of
@@ -68,11 +65,8 @@ public final class RulesBenchCommand implements Callable<Integer> {
   /** The stream spans 20 hours: all of it inside the report's {@code day} window. */
   static final long SPAN_MILLIS = Duration.ofHours(20).toMillis();
 
-  @Spec
-  CommandSpec spec;
-
   @Mixin
-  BenchExitCodes exitCodes;
+  BenchMixin bench;
 
   @Option(names = "--baskets", paramLabel = "N", description = "Baskets per shape (default: ${DEFAULT-VALUE}).")
   int baskets = 150_000;
@@ -150,14 +144,14 @@ public final class RulesBenchCommand implements Callable<Integer> {
       try {
         org.pairpulse.sketch.engine.PairRanking.parse(pairRanking);
       } catch (IllegalArgumentException e) {
-        throw new ParameterException(spec.commandLine(), e.getMessage());
+        throw bench.usage(e.getMessage());
       }
     }
     if (baskets < 1_000 || items < 200 || planted < 0 || testBaskets < 0) {
-      throw new ParameterException(spec.commandLine(), "need --baskets >= 1000, --items >= 200, --planted >= 0,"
+      throw bench.usage("need --baskets >= 1000, --items >= 200, --planted >= 0,"
           + " --test-baskets >= 0");
     }
-    PrintWriter out = spec.commandLine().getOut();
+    PrintWriter out = bench.out();
     long started = System.nanoTime();
     out.printf(Locale.ROOT, "bench rules: %,d baskets per shape over %d items (Zipf 1.0), %d planted pairs, shapes %s%n",
         baskets, items, planted, shapes.stream().map(SizeShape::wireName).toList());

@@ -34,10 +34,7 @@ import org.pairpulse.sketch.table.PairTable;
 import org.pairpulse.sketch.table.PairTableHolder;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Mixin;
-import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
-import picocli.CommandLine.ParameterException;
-import picocli.CommandLine.Spec;
 
 /**
  * {@code pairpulse bench serve}: suggestion latency over HTTP against the server's own floor, while
@@ -72,11 +69,8 @@ import picocli.CommandLine.Spec;
         "RESULT serve rps=<n> p50_us=<n> p99_us=<n> floor_p99_us=<n> ratio_p99=<x>",
         "About two minutes with the defaults."})
 public final class ServeBench implements Callable<Integer> {
-  @Spec
-  CommandSpec spec;
-
   @Mixin
-  BenchExitCodes exitCodes;
+  BenchMixin bench;
 
   @Option(names = "--catalog-items", paramLabel = "N", description = "Items in the catalog (default: ${DEFAULT-VALUE}).")
   int catalogItems = 10_000;
@@ -128,7 +122,7 @@ public final class ServeBench implements Callable<Integer> {
   @Override
   public Integer call() throws Exception {
     validate();
-    PrintWriter out = spec.commandLine().getOut();
+    PrintWriter out = bench.out();
     long runStart = System.nanoTime();
     long deadline = runStart + TimeUnit.SECONDS.toNanos(maxSeconds);
     String[] names = Catalog.names(catalogItems);
@@ -238,7 +232,7 @@ public final class ServeBench implements Callable<Integer> {
   private void validate() {
     if (catalogItems < 2 * basketItems || basketItems < 1 || requests < 4 || clients < 1 || warmupRequests < 0
         || trackedPairs < 2 || refreshMillis < 100 || maxSeconds < 10 || preloadBaskets < 1) {
-      throw new ParameterException(spec.commandLine(), "options out of range (see --help)");
+      throw bench.usage("options out of range (see --help)");
     }
   }
 

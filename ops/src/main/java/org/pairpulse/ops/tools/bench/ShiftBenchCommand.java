@@ -36,10 +36,7 @@ import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Mixin;
-import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
-import picocli.CommandLine.ParameterException;
-import picocli.CommandLine.Spec;
 
 /**
  * {@code pairpulse bench shift}: the Kestrel Connect scenario (planted emerging and fading pairs, known start times)
@@ -65,11 +62,8 @@ import picocli.CommandLine.Spec;
             + " hit_at_10_nightly=<x> hit_at_10_popular=<x>",
         "Hit rates are over the baskets of the simulated day (24 h) after each planted change."})
 public final class ShiftBenchCommand implements Callable<Integer> {
-  @Spec
-  CommandSpec spec;
-
   @Mixin
-  BenchExitCodes exitCodes;
+  BenchMixin bench;
 
   @Option(names = "--days", paramLabel = "N", description = "Simulated days (default: ${DEFAULT-VALUE}; the planted"
       + " emerging pairs start on day 3 and the fading change is at day 5, so fewer than 6 days see only the emerging"
@@ -95,13 +89,13 @@ public final class ShiftBenchCommand implements Callable<Integer> {
 
   @Override
   public Integer call() throws Exception {
-    PrintWriter out = spec.commandLine().getOut();
+    PrintWriter out = bench.out();
     BacktestSettings settings = settings();
     ScenarioConfig scenario;
     try {
       scenario = scenarioOptions.scenario(days);
     } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
+      throw bench.usage(e.getMessage(), e);
     }
     boolean temporary = workDir == null;
     Path directory = temporary ? Files.createTempDirectory("pairpulse-shift-") : workDir;
@@ -139,12 +133,12 @@ public final class ShiftBenchCommand implements Callable<Integer> {
   BacktestSettings settings() throws IOException {
     BacktestSettings settings = benchmarkSettings();
     try {
-      settings = SettingsFile.readOption(config, settings, spec.commandLine().getErr(), "bench shift");
+      settings = SettingsFile.readOption(config, settings, bench.err(), "bench shift");
       settings = settings.withRefreshEveryMillis(refresh.millis());
       EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
       return settings.withEvaluation(evalShare > 0 ? evaluation.withShare(evalShare).withK(10) : null);
     } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
+      throw bench.usage(e.getMessage(), e);
     }
   }
 

@@ -16,10 +16,7 @@ import org.pairpulse.sketch.fixtures.ExactCounts;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Mixin;
-import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
-import picocli.CommandLine.ParameterException;
-import picocli.CommandLine.Spec;
 
 /**
  * {@code pairpulse bench sketch}: throughput, count-min comparison and accuracy of the sketch layer in one
@@ -44,11 +41,8 @@ import picocli.CommandLine.Spec;
             + " state_bytes=<n> exact_bytes=<n>",
         "About a minute with the defaults."})
 public final class SketchBenchCommand implements Callable<Integer> {
-  @Spec
-  CommandSpec spec;
-
   @Mixin
-  BenchExitCodes exitCodes;
+  BenchMixin bench;
 
   @Option(names = "--seed", paramLabel = "N", description = "Random seed of every generated stream (default: ${DEFAULT-VALUE}).")
   long seed = 42;
@@ -122,8 +116,8 @@ public final class SketchBenchCommand implements Callable<Integer> {
   @Override
   public Integer call() {
     validate();
-    PrintWriter out = spec.commandLine().getOut();
-    PrintWriter err = spec.commandLine().getErr();
+    PrintWriter out = bench.out();
+    PrintWriter err = bench.err();
     long started = System.nanoTime();
     EngineConfig config = EngineConfig.defaults();
     out.printf(Locale.ROOT, "bench sketch: java %s, %d cores, seed %d, engine config: %s%n", Runtime.version(),
@@ -231,36 +225,32 @@ public final class SketchBenchCommand implements Callable<Integer> {
     requireOpenUnit("--cms-delta", cmsDelta);
     requireOpenUnit("--support-floor", supportFloor);
     if (!(driftingShare >= 0 && driftingShare <= 1)) {
-      throw invalid("--drifting-share must be in [0, 1], got " + driftingShare);
+      throw bench.usage("--drifting-share must be in [0, 1], got " + driftingShare);
     }
     if (!(zipfExponent >= 0 && zipfExponent <= 10)) {
-      throw invalid("--zipf-exponent must be in [0, 10], got " + zipfExponent);
+      throw bench.usage("--zipf-exponent must be in [0, 10], got " + zipfExponent);
     }
     if (!forkHeap.matches("[0-9]+[kKmMgG]?")) {
-      throw invalid("--fork-heap must be a size such as 2g or 1536m, got '" + forkHeap + "'");
+      throw bench.usage("--fork-heap must be a size such as 2g or 1536m, got '" + forkHeap + "'");
     }
     try {
       new AccuracyStream(new AccuracyStream.Workload(seed, catalogItems, pairOccurrences, days, zipfExponent, plantedPairs,
           driftingShare));
     } catch (IllegalArgumentException e) {
-      throw invalid(e.getMessage());
+      throw bench.usage(e.getMessage());
     }
   }
 
   private void requireAtLeast(String option, long value, long min) {
     if (value < min) {
-      throw invalid(option + " must be >= " + min + ", got " + value);
+      throw bench.usage(option + " must be >= " + min + ", got " + value);
     }
   }
 
   private void requireOpenUnit(String option, double value) {
     if (!(value > 0 && value < 1)) {
-      throw invalid(option + " must be in (0, 1), got " + value);
+      throw bench.usage(option + " must be in (0, 1), got " + value);
     }
-  }
-
-  private ParameterException invalid(String message) {
-    return new ParameterException(spec.commandLine(), message);
   }
 
   private JmhRuns.Settings jmh() {

@@ -237,44 +237,45 @@ public final class DemoCommand implements Callable<Integer> {
   }
 
   DemoSettings settings() {
-    DemoSettings s = DemoSettings.defaults();
+    DemoSettings.Builder s = DemoSettings.builder();
     if (speed != null && speed.simDaySeconds != null) {
       if (!(speed.simDaySeconds >= 0.01 && speed.simDaySeconds <= 86_400)) {
         throw usage("--sim-day-seconds must be in 0.01..86400, got " + speed.simDaySeconds);
       }
-      s = s.withSpeed(DemoSettings.DAY_MILLIS / (speed.simDaySeconds * 1000));
+      s.speed(DemoSettings.DAY_MILLIS / (speed.simDaySeconds * 1000));
     } else if (speed != null && speed.simMinutesPerSecond != null) {
       if (!(speed.simMinutesPerSecond > 0 && speed.simMinutesPerSecond <= 100_000)) {
         throw usage("--speed must be in (0, 100000] simulated minutes per second, got " + speed.simMinutesPerSecond);
       }
-      s = s.withSpeed(speed.simMinutesPerSecond * 60_000 / 1000);
+      s.speed(speed.simMinutesPerSecond * 60_000 / 1000);
     }
-    s = s.withDuration(parseDuration(duration));
+    long simMillis = parseDuration(duration);
+    s.durationSimMillis(simMillis);
     long skip = fastForward.trim().equals("0") ? 0 : parseDuration("--fast-forward", fastForward);
-    if (skip >= s.durationSimMillis()) {
+    if (skip >= simMillis) {
       throw usage("--fast-forward must be shorter than --duration, got " + fastForward + " and " + duration);
     }
-    s = s.withFastForward(skip);
+    s.fastForwardSimMillis(skip);
     if (port < 0 || port > 65535) {
       throw usage("--port must be in 0..65535, got " + port);
     }
-    s = s.withPort(port);
+    s.port(port);
     if (seed != null) {
-      s = s.withSeed(seed);
+      s.seed(seed);
     }
     if (rate != null) {
       if (!(rate > 0 && rate <= ScenarioConfig.MAX_BASKETS_PER_MINUTE)) {
         throw usage("--rate must be in (0, " + (long) ScenarioConfig.MAX_BASKETS_PER_MINUTE + "], got " + rate);
       }
-      s = s.withBasketsPerMinute(rate);
+      s.basketsPerMinute(rate);
     }
     if (partitions != null) {
       if (partitions < 1 || partitions > 64) {
         throw usage("--partitions must be in 1..64, got " + partitions);
       }
-      s = s.withPartitions(partitions);
+      s.partitions(partitions);
     }
-    return s;
+    return s.build();
   }
 
   private long parseDuration(String text) {

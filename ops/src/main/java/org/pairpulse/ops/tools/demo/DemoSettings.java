@@ -83,8 +83,12 @@ public record DemoSettings(long seed, double speed, long durationSimMillis, Stri
 
   /** The defaults: seed of the scenario, a simulated day a minute, 6 simulated days, port 8470. */
   public static DemoSettings defaults() {
-    return new DemoSettings(ScenarioConfig.DEFAULT_SEED, DEFAULT_SPEED, DEFAULT_DURATION_SIM_MILLIS, "127.0.0.1",
-        DEFAULT_PORT, DEFAULT_BASKETS_PER_MINUTE, DEFAULT_PARTITIONS, defaultSimStart(), DEFAULT_REFRESH_INTERVAL_MILLIS, 0);
+    return builder().build();
+  }
+
+  /** A builder holding {@link #defaults()}. */
+  public static Builder builder() {
+    return new Builder();
   }
 
   /**
@@ -93,46 +97,6 @@ public record DemoSettings(long seed, double speed, long durationSimMillis, Stri
    */
   public static Instant defaultSimStart() {
     return LocalDate.now(ZoneOffset.UTC).minusDays(7).atStartOfDay(ZoneOffset.UTC).toInstant();
-  }
-
-  public DemoSettings withSpeed(double value) {
-    return new DemoSettings(seed, value, durationSimMillis, host, port, basketsPerMinute, partitions, simStart,
-        refreshIntervalMillis, fastForwardSimMillis);
-  }
-
-  public DemoSettings withDuration(long simMillis) {
-    return new DemoSettings(seed, speed, simMillis, host, port, basketsPerMinute, partitions, simStart,
-        refreshIntervalMillis, fastForwardSimMillis);
-  }
-
-  public DemoSettings withPort(int value) {
-    return new DemoSettings(seed, speed, durationSimMillis, host, value, basketsPerMinute, partitions, simStart,
-        refreshIntervalMillis, fastForwardSimMillis);
-  }
-
-  public DemoSettings withSeed(long value) {
-    return new DemoSettings(value, speed, durationSimMillis, host, port, basketsPerMinute, partitions, simStart,
-        refreshIntervalMillis, fastForwardSimMillis);
-  }
-
-  public DemoSettings withBasketsPerMinute(double value) {
-    return new DemoSettings(seed, speed, durationSimMillis, host, port, value, partitions, simStart,
-        refreshIntervalMillis, fastForwardSimMillis);
-  }
-
-  public DemoSettings withPartitions(int value) {
-    return new DemoSettings(seed, speed, durationSimMillis, host, port, basketsPerMinute, value, simStart,
-        refreshIntervalMillis, fastForwardSimMillis);
-  }
-
-  public DemoSettings withRefreshIntervalMillis(long value) {
-    return new DemoSettings(seed, speed, durationSimMillis, host, port, basketsPerMinute, partitions, simStart, value,
-        fastForwardSimMillis);
-  }
-
-  public DemoSettings withFastForward(long simMillis) {
-    return new DemoSettings(seed, speed, durationSimMillis, host, port, basketsPerMinute, partitions, simStart,
-        refreshIntervalMillis, simMillis);
   }
 
   /** Where the accelerated clock starts: day 0 plus the fast-forward. */
@@ -174,5 +138,68 @@ public record DemoSettings(long seed, double speed, long durationSimMillis, Stri
 
   public static EngineConfig engine() {
     return EngineConfig.builder().horizons(horizons()).trackedItemCapacity(4096).build();
+  }
+
+  /** Settings that start at the defaults; {@link #build()} checks them together. */
+  public static final class Builder {
+    private long seed = ScenarioConfig.DEFAULT_SEED;
+    private double speed = DEFAULT_SPEED;
+    private long durationSimMillis = DEFAULT_DURATION_SIM_MILLIS;
+    private final String host = "127.0.0.1";
+    private int port = DEFAULT_PORT;
+    private double basketsPerMinute = DEFAULT_BASKETS_PER_MINUTE;
+    private int partitions = DEFAULT_PARTITIONS;
+    private final Instant simStart = defaultSimStart();
+    private long refreshIntervalMillis = DEFAULT_REFRESH_INTERVAL_MILLIS;
+    private long fastForwardSimMillis;
+
+    private Builder() {}
+
+    public Builder seed(long value) {
+      this.seed = value;
+      return this;
+    }
+
+    /** Simulated milliseconds per wall-clock millisecond. */
+    public Builder speed(double value) {
+      this.speed = value;
+      return this;
+    }
+
+    public Builder durationSimMillis(long value) {
+      this.durationSimMillis = value;
+      return this;
+    }
+
+    public Builder port(int value) {
+      this.port = value;
+      return this;
+    }
+
+    public Builder basketsPerMinute(double value) {
+      this.basketsPerMinute = value;
+      return this;
+    }
+
+    public Builder partitions(int value) {
+      this.partitions = value;
+      return this;
+    }
+
+    public Builder refreshIntervalMillis(long value) {
+      this.refreshIntervalMillis = value;
+      return this;
+    }
+
+    public Builder fastForwardSimMillis(long value) {
+      this.fastForwardSimMillis = value;
+      return this;
+    }
+
+    /** @throws IllegalArgumentException when a setting is out of its range (see the record's checks) */
+    public DemoSettings build() {
+      return new DemoSettings(seed, speed, durationSimMillis, host, port, basketsPerMinute, partitions, simStart,
+          refreshIntervalMillis, fastForwardSimMillis);
+    }
   }
 }

@@ -21,14 +21,11 @@ import org.pairpulse.ops.analysis.backtest.SimulatedDays;
 import org.pairpulse.serve.drift.AlertEvent;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.sketch.table.PairTable;
-import org.pairpulse.ops.tools.bench.BenchExitCodes;
+import org.pairpulse.ops.tools.bench.BenchMixin;
 import org.pairpulse.ops.tools.bench.DwellRefreshOption;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Mixin;
-import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
-import picocli.CommandLine.ParameterException;
-import picocli.CommandLine.Spec;
 
 /**
  * {@code pairpulse bench drift}: the drift family ({@link DriftFamily}: every {@link DriftShape} on one stream per
@@ -53,11 +50,8 @@ import picocli.CommandLine.Spec;
         "RESULT drift changes=<n> detected=<d>/<n> direction_errors=<n> delay_ratio_vs_exact_median=<x>"
             + " delay_sim_minutes_median=<x> false_alerts_per_sim_day=<x> bundle_flaps=<n>"})
 public final class DriftBenchCommand implements Callable<Integer> {
-  @Spec
-  CommandSpec spec;
-
   @Mixin
-  BenchExitCodes exitCodes;
+  BenchMixin bench;
 
   @Option(names = "--days", paramLabel = "N", description = "Simulated days per stream (default: ${DEFAULT-VALUE};"
       + " the changes lie on days 2 to 5).")
@@ -97,11 +91,11 @@ public final class DriftBenchCommand implements Callable<Integer> {
 
   @Override
   public Integer call() throws Exception {
-    PrintWriter out = spec.commandLine().getOut();
+    PrintWriter out = bench.out();
     BacktestSettings settings = settings();
     List<DriftStream> streams = streams();
     if (threads < 1) {
-      throw new ParameterException(spec.commandLine(), "--threads must be >= 1, got " + threads);
+      throw bench.usage("--threads must be >= 1, got " + threads);
     }
     long started = System.nanoTime();
     double refreshMinutes = settings.refreshEveryMillis() / 60_000.0;
@@ -211,17 +205,17 @@ public final class DriftBenchCommand implements Callable<Integer> {
       }
       return DriftFamily.streams(seedList, traffic, days);
     } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
+      throw bench.usage(e.getMessage(), e);
     }
   }
 
   BacktestSettings settings() throws IOException {
     BacktestSettings settings = BacktestSettings.defaults().withSummaryEveryMillis(BacktestSettings.DAY_MILLIS);
     try {
-      settings = SettingsFile.readOption(config, settings, spec.commandLine().getErr(), "bench drift");
+      settings = SettingsFile.readOption(config, settings, bench.err(), "bench drift");
       return settings.withRefreshEveryMillis(refresh.millis()).withEvaluation(null);
     } catch (IllegalArgumentException e) {
-      throw new ParameterException(spec.commandLine(), e.getMessage(), e);
+      throw bench.usage(e.getMessage(), e);
     }
   }
 

@@ -22,12 +22,10 @@ import org.pairpulse.ingest.broker.EmbeddedKafkaBroker;
 import org.pairpulse.ingest.kafka.GroupCoverage;
 import org.pairpulse.ops.product.pipeline.Pipeline;
 import org.pairpulse.ops.product.run.RunConfig;
-import org.pairpulse.ops.tools.bench.BenchExitCodes;
+import org.pairpulse.ops.tools.bench.BenchMixin;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Mixin;
-import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
-import picocli.CommandLine.Spec;
 
 /**
  * {@code pairpulse bench group}: three instances of {@code run} in one consumer group over six partitions of an
@@ -56,11 +54,8 @@ public final class GroupBenchCommand implements Callable<Integer> {
   private static final String TOPIC = "bench-group.baskets";
   private static final int PARTITIONS = 6;
 
-  @Spec
-  CommandSpec spec;
-
   @Mixin
-  BenchExitCodes exitCodes;
+  BenchMixin bench;
 
   @Option(names = "--baskets", paramLabel = "N", description = "Baskets in the stream (default: ${DEFAULT-VALUE}).")
   int baskets = 30_000;
@@ -77,10 +72,9 @@ public final class GroupBenchCommand implements Callable<Integer> {
 
   @Override
   public Integer call() throws Exception {
-    PrintWriter out = spec.commandLine().getOut();
+    PrintWriter out = bench.out();
     if (baskets < steps || steps < 4 || publishMillis < 100 || refreshMillis < 10) {
-      throw new picocli.CommandLine.ParameterException(spec.commandLine(),
-          "need --baskets >= --steps >= 4, --publish-ms >= 100, --refresh-ms >= 10");
+      throw bench.usage("need --baskets >= --steps >= 4, --publish-ms >= 100, --refresh-ms >= 10");
     }
     Path dir = Files.createTempDirectory("pairpulse-bench-group");
     GroupWorkload w = new GroupWorkload(23, baskets, 120, 4, 12, System.currentTimeMillis() - 3_600_000L);

@@ -215,11 +215,28 @@ class RunConfigTest {
 
   @Test
   void theReadmeTableListsEveryKeyAsDefined() throws IOException {
+    assertReadmeTable("run-config-table", RunConfig.markdownTable(), "README-ops-run.md's key table is stale; regenerate it"
+        + " with mvn -pl ops test -Dtest=RunConfigTest#theReadmeTableListsEveryKeyAsDefined -Dpairpulse.writeDocs=true");
+  }
+
+  /** The renaming table (earlier spelling to key) is the parts' own, every part a settings file reads included. */
+  @Test
+  void theReadmeRenamingTableListsEveryEarlierSpelling() throws IOException {
+    String table = ConfigParts.renamingTable(SettingsFile.PARTS.renamed());
+    assertReadmeTable("renamed-keys-table", table,
+        "README-ops-run.md's renaming table is stale; regenerate it with -Dpairpulse.writeDocs=true");
+    assertEquals(48, SettingsFile.PARTS.renamed().size(), "every camel-case key of before: " + table);
+  }
+
+  /**
+   * README-ops-run.md holds {@code table} between the markers {@code <!-- marker:begin -->} and
+   * {@code <!-- marker:end -->}; with {@code -Dpairpulse.writeDocs=true} it is written there first.
+   */
+  private static void assertReadmeTable(String marker, String table, String stale) throws IOException {
     Path readme = AlertRules.opsDir().resolve("README-ops-run.md");
     String text = Files.readString(readme, StandardCharsets.UTF_8);
-    String begin = "<!-- run-config-table:begin -->\n";
-    String end = "<!-- run-config-table:end -->";
-    String table = RunConfig.markdownTable();
+    String begin = "<!-- " + marker + ":begin -->\n";
+    String end = "<!-- " + marker + ":end -->";
     if (Boolean.getBoolean("pairpulse.writeDocs")) {
       int from = text.indexOf(begin) + begin.length();
       text = text.substring(0, from) + table + text.substring(text.indexOf(end));
@@ -227,28 +244,8 @@ class RunConfigTest {
     }
     int from = text.indexOf(begin);
     int to = text.indexOf(end);
-    assertTrue(from >= 0 && to > from, "README-ops-run.md has no table markers");
-    assertEquals(table, text.substring(from + begin.length(), to),
-        "README-ops-run.md's key table is stale; regenerate it with"
-            + " mvn -pl ops test -Dtest=RunConfigTest#theReadmeTableListsEveryKeyAsDefined -Dpairpulse.writeDocs=true");
-  }
-
-  /** The renaming table (earlier spelling to key) is the parts' own, every part a settings file reads included. */
-  @Test
-  void theReadmeRenamingTableListsEveryEarlierSpelling() throws IOException {
-    Path readme = AlertRules.opsDir().resolve("README-ops-run.md");
-    String text = Files.readString(readme, StandardCharsets.UTF_8);
-    String begin = "<!-- renamed-keys-table:begin -->\n";
-    String end = "<!-- renamed-keys-table:end -->";
-    String table = ConfigParts.renamingTable(SettingsFile.PARTS.renamed());
-    if (Boolean.getBoolean("pairpulse.writeDocs")) {
-      int from = text.indexOf(begin) + begin.length();
-      text = text.substring(0, from) + table + text.substring(text.indexOf(end));
-      Files.writeString(readme, text, StandardCharsets.UTF_8);
-    }
-    assertEquals(table, text.substring(text.indexOf(begin) + begin.length(), text.indexOf(end)),
-        "README-ops-run.md's renaming table is stale; regenerate it with -Dpairpulse.writeDocs=true");
-    assertEquals(48, SettingsFile.PARTS.renamed().size(), "every camel-case key of before: " + table);
+    assertTrue(from >= 0 && to > from, "README-ops-run.md has no " + marker + " markers");
+    assertEquals(table, text.substring(from + begin.length(), to), stale);
   }
 
   @Test

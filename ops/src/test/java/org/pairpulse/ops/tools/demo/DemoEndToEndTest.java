@@ -65,13 +65,14 @@ class DemoEndToEndTest {
 
   @BeforeAll
   void start() {
-    DemoSettings settings = DemoSettings.defaults()
-        .withSpeed(DemoSettings.DAY_MILLIS / 20_000.0)
-        .withDuration(4 * DemoSettings.DAY_MILLIS + DemoSettings.DAY_MILLIS / 4)
-        .withFastForward(3 * DemoSettings.DAY_MILLIS + DemoSettings.DAY_MILLIS / 2)
-        .withBasketsPerMinute(20)
-        .withPort(0)
-        .withRefreshIntervalMillis(500);
+    DemoSettings settings = DemoSettings.builder()
+        .speed(DemoSettings.DAY_MILLIS / 20_000.0)
+        .durationSimMillis(4 * DemoSettings.DAY_MILLIS + DemoSettings.DAY_MILLIS / 4)
+        .fastForwardSimMillis(3 * DemoSettings.DAY_MILLIS + DemoSettings.DAY_MILLIS / 2)
+        .basketsPerMinute(20)
+        .port(0)
+        .refreshIntervalMillis(500)
+        .build();
     demo = Demo.start(settings);
     base = demo.server().uri();
   }
