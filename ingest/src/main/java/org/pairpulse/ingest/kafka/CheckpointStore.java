@@ -58,6 +58,11 @@ interface CheckpointStore extends AutoCloseable {
     return consumer.committed(partitions);
   }
 
+  /** The instance's state-topic reader, which other readers of the state topic share (state-topic store only). */
+  default Optional<SharedStateReader> stateReader() {
+    return Optional.empty();
+  }
+
   /** The newest checkpoint of {@code tp}; {@code committed} is its committed offset, or null. */
   Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed);
 

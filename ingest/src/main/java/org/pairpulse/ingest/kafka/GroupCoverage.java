@@ -4,7 +4,9 @@ import java.util.List;
 import org.apache.kafka.common.TopicPartition;
 
 /**
- * How much of the group's state one served table holds (group view, {@link GroupView}).
+ * How much of the group's state one served table holds (group view, {@link GroupView}), as ingest sees it: partitions
+ * by name, and what was read. ops maps it to serve's {@code GroupStatus.Coverage}, which says what is merged and
+ * whether the table is partial.
  *
  * @param partitions input partitions of the group's topics
  * @param live partitions this instance owns and counts itself
@@ -23,15 +25,5 @@ public record GroupCoverage(int partitions, int live, int remote, int empty, Lis
   public GroupCoverage {
     missing = List.copyOf(missing);
     stale = List.copyOf(stale);
-  }
-
-  /** Partitions whose state the table holds (live, remote or empty), stale ones included. */
-  public int merged() {
-    return live + remote + empty;
-  }
-
-  /** True when a partition's state is missing or stale: the table is not the whole group's. */
-  public boolean partial() {
-    return !missing.isEmpty() || !stale.isEmpty();
   }
 }

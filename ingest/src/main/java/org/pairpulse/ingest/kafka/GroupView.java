@@ -57,7 +57,9 @@ import org.slf4j.LoggerFactory;
  * checkpoint not renewed, or an owned partition still catching up after a restore).
  *
  * <h2>Threading</h2>
- * One thread of its own owns the state-topic reader and the admin client (log end offsets every second).
+ * One thread of its own reads the state topic, taking turns on the instance's one state-topic reader with the
+ * checkpoint restores ({@link SharedStateReader}: after a restore's turn it puts back its own assignment and
+ * positions), and asks the admin client for log end offsets every second.
  * {@link #remote} and {@link #coverage} may be called from any thread; a decoded engine is never changed afterwards.
  */
 public final class GroupView implements AutoCloseable {
@@ -69,7 +71,9 @@ public final class GroupView implements AutoCloseable {
   private final List<String> topics;
   private final EngineConfig engineConfig;
   private final long staleAfterMillis;
-  private final Consumer<byte[], byte[]> reader;
+  private final SharedStateReader.Lease reader;
+  /** Where this view's reading of each state partition stands after its last turn (view thread only). */
+  private final Map<TopicPartition, Long> statePositions = new HashMap<>();
   private final Admin admin;
   private final LongSupplier wallClock;
   private final java.util.function.Supplier<Set<TopicPartition>> owned;
@@ -102,14 +106,14 @@ public final class GroupView implements AutoCloseable {
   /**
    * Starts reading.
    *
-   * @param reader a {@code read_committed} consumer without a group (closed with the view)
+   * @param reader the view's lease on the instance's state-topic reader (not closed by the view)
    * @param admin an admin client (not closed by the view)
    * @param staleAfterMillis how long a remote partition's checkpoint may lag its records before it counts as stale
    * @param owned the partitions counted here now: a new checkpoint of another partition is decoded at once, on this
    *     view's thread (an owned one only if it stops being owned)
    */
   GroupView(String stateTopic, String group, List<String> topics, EngineConfig engineConfig, long staleAfterMillis,
-      Consumer<byte[], byte[]> reader, Admin admin, LongSupplier wallClock,
+      SharedStateReader.Lease reader, Admin admin, LongSupplier wallClock,
       java.util.function.Supplier<Set<TopicPartition>> owned) {
     this.stateTopic = stateTopic;
     this.group = group;
@@ -131,12 +135,24 @@ public final class GroupView implements AutoCloseable {
 
   private void run() {
     try {
-      assignFromCommitted();
+      Map<TopicPartition, Long> starts = startOffsets();
+      reader.use((consumer, lent) -> {
+        assign(consumer, starts);
+        savePositions(consumer);
+        return null;
+      });
       long lastLogEnds = 0;
       while (running) {
-        for (ConsumerRecord<byte[], byte[]> r : reader.poll(Duration.ofMillis(200))) {
-          accept(r);
-        }
+        reader.use((consumer, lent) -> {
+          if (lent) {
+            putBackPositions(consumer);
+          }
+          for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
+            accept(r);
+          }
+          savePositions(consumer);
+          return null;
+        });
         long now = wallClock.getAsLong();
         if (now - lastLogEnds >= LOG_END_EVERY_MILLIS) {
           lastLogEnds = now;
@@ -149,53 +165,71 @@ public final class GroupView implements AutoCloseable {
       if (running) {
         LOG.error("the group view stopped reading the state topic {}; remote partitions will show as stale", stateTopic, e);
       }
-    } finally {
-      reader.close(org.apache.kafka.clients.consumer.CloseOptions.timeout(Duration.ofSeconds(5)));
     }
   }
 
-  /** Assigns every state partition, each from the oldest checkpoint the group's committed offsets point at. */
-  private void assignFromCommitted() {
+  private void savePositions(Consumer<byte[], byte[]> consumer) {
+    for (TopicPartition source : consumer.assignment()) {
+      statePositions.put(source, consumer.position(source));
+    }
+  }
+
+  /** A restore used the reader since this view's last turn: assign the state partitions again where they stood. */
+  private void putBackPositions(Consumer<byte[], byte[]> consumer) {
+    consumer.assign(statePositions.keySet());
+    statePositions.forEach(consumer::seek);
+  }
+
+  /**
+   * Where the view starts reading each state partition: the oldest checkpoint the group's committed offsets point at
+   * there, or −1 for its beginning (asked of the admin client, outside the reader's turns).
+   */
+  private Map<TopicPartition, Long> startOffsets() {
     try {
       int statePartitions = admin.describeTopics(List.of(stateTopic)).allTopicNames().get(60, TimeUnit.SECONDS)
           .get(stateTopic).partitions().size();
-      Map<TopicPartition, OffsetAndMetadata> committed = admin.listConsumerGroupOffsets(group)
-          .partitionsToOffsetAndMetadata().get(60, TimeUnit.SECONDS);
+      java.util.Collection<TopicDescription> described = admin.describeTopics(topics).allTopicNames()
+          .get(60, TimeUnit.SECONDS).values();
+      List<TopicPartition> inputs = new ArrayList<>();
+      described.forEach(topic -> topic.partitions().forEach(p -> inputs.add(new TopicPartition(topic.name(),
+          p.partition()))));
+      Map<TopicPartition, OffsetAndMetadata> committed = StableOffsets.committed(admin, group, inputs);
       Map<Integer, Long> from = new HashMap<>();
       boolean[] unknown = new boolean[statePartitions];
-      for (TopicDescription topic : admin.describeTopics(topics).allTopicNames().get(60, TimeUnit.SECONDS).values()) {
-        topic.partitions().forEach(p -> {
-          TopicPartition tp = new TopicPartition(topic.name(), p.partition());
-          logEnds.putIfAbsent(tp, -1L);
-          OffsetAndMetadata c = committed.get(tp);
-          int sp = tp.partition() % statePartitions;
-          String[] parts = c == null || c.metadata() == null ? new String[0] : c.metadata().split(" ");
-          if (parts.length == 5 && parts[0].equals(StateTopicStore.METADATA_PREFIX)) {
-            from.merge(Integer.parseInt(parts[1]), Long.parseLong(parts[2]), Math::min);
-          } else {
-            unknown[sp] = true;
-          }
-        });
-      }
-      List<TopicPartition> assigned = new ArrayList<>();
-      for (int sp = 0; sp < statePartitions; sp++) {
-        assigned.add(new TopicPartition(stateTopic, sp));
-      }
-      reader.assign(assigned);
-      for (int sp = 0; sp < statePartitions; sp++) {
-        TopicPartition source = new TopicPartition(stateTopic, sp);
-        if (unknown[sp] || !from.containsKey(sp)) {
-          reader.seekToBeginning(List.of(source));
+      for (TopicPartition tp : inputs) {
+        logEnds.putIfAbsent(tp, -1L);
+        OffsetAndMetadata c = committed.get(tp);
+        int sp = tp.partition() % statePartitions;
+        String[] parts = c == null || c.metadata() == null ? new String[0] : c.metadata().split(" ");
+        if (parts.length == 5 && parts[0].equals(StateTopicStore.METADATA_PREFIX)) {
+          from.merge(Integer.parseInt(parts[1]), Long.parseLong(parts[2]), Math::min);
         } else {
-          reader.seek(source, from.get(sp));
+          unknown[sp] = true;
         }
       }
+      Map<TopicPartition, Long> starts = new HashMap<>();
+      for (int sp = 0; sp < statePartitions; sp++) {
+        starts.put(new TopicPartition(stateTopic, sp), unknown[sp] || !from.containsKey(sp) ? -1L : from.get(sp));
+      }
+      return starts;
     } catch (InterruptedException e) {
       Thread.currentThread().interrupt();
       throw new IllegalStateException("interrupted while starting the group view", e);
     } catch (java.util.concurrent.ExecutionException | java.util.concurrent.TimeoutException e) {
       throw new IllegalStateException("cannot start the group view on " + stateTopic + ": " + e.getMessage(), e);
     }
+  }
+
+  /** Assigns every state partition of {@code starts}, each from its start (−1: its beginning). */
+  private static void assign(Consumer<byte[], byte[]> reader, Map<TopicPartition, Long> starts) {
+    reader.assign(starts.keySet());
+    starts.forEach((source, from) -> {
+      if (from < 0) {
+        reader.seekToBeginning(List.of(source));
+      } else {
+        reader.seek(source, from);
+      }
+    });
   }
 
   /** Chunks being put together per input partition (reader thread only). */
@@ -403,8 +437,7 @@ public final class GroupView implements AutoCloseable {
 
   @Override
   public void close() {
-    running = false;
-    reader.wakeup();
+    running = false; // the view's turn polls at most 200 ms; a wakeup could end a restore's turn instead
     try {
       thread.join(TimeUnit.SECONDS.toMillis(10));
     } catch (InterruptedException e) {

@@ -110,7 +110,7 @@ public final class Ingestor implements AutoCloseable {
   // poll thread only
   private Consumer<byte[], byte[]> consumer;
   private Producer<byte[], byte[]> producer;
-  private CheckpointStore store;
+  private volatile CheckpointStore store;
   private EngineLanes lanes;
   private RecordRouter router;
   private long basketsSinceCheckpoint;
@@ -176,6 +176,15 @@ public final class Ingestor implements AutoCloseable {
   public Ingestor basketTap(BasketSink sink) {
     this.tap = sink;
     return this;
+  }
+
+  /**
+   * A new lease on this instance's one state-topic reader ({@code read_committed}, no group), for other readers of
+   * compacted state in the same cluster (group mode, once started); empty without the state-topic store.
+   */
+  public Optional<SharedStateReader.Lease> stateReaderLease() {
+    CheckpointStore open = store;
+    return open == null ? Optional.empty() : open.stateReader().map(SharedStateReader::lease);
   }
 
   /** Closes the ingestor cleanly (checkpoint, commit, close) when the JVM is asked to stop (SIGTERM, Ctrl-C). */
@@ -333,7 +342,8 @@ public final class Ingestor implements AutoCloseable {
         new DeadLetters(producer, config.getString(IngestConfig.DEAD_LETTER_TOPIC), metrics), metrics);
     store = CheckpointStore.open(config, layout, producer, clients, commitsToFail);
     if (config.groupViewEnabled()) {
-      published.openGroupView(config, clients, engineConfig, clock::millis, this::assignment);
+      published.openGroupView(config, clients, engineConfig, clock::millis, this::assignment,
+          store.stateReader().orElseThrow(() -> new IllegalStateException("the group view needs the state-topic store")));
     }
     consumer = new KafkaConsumer<>(clients.groupConsumer());
     slots = new PartitionSlots(consumer, store, lanes, config.frontSettings(), segmentSettings, metrics);
@@ -471,10 +481,10 @@ public final class Ingestor implements AutoCloseable {
       }
       closeQuietly("the producer", () -> producer.close(Duration.ofSeconds(10)));
     }
+    published.close(); // before the store: the group view shares the store's state-topic reader
     if (store != null) {
       store.close();
     }
-    published.close();
     if (lanes != null) {
       lanes.close();
     }

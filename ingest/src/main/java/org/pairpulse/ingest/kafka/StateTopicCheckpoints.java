@@ -5,7 +5,6 @@ import java.util.List;
 import java.util.Optional;
 import java.util.concurrent.atomic.AtomicInteger;
 import org.apache.kafka.clients.admin.Admin;
-import org.apache.kafka.clients.consumer.CloseOptions;
 import org.apache.kafka.clients.consumer.CommitFailedException;
 import org.apache.kafka.clients.consumer.Consumer;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
@@ -38,7 +37,7 @@ final class StateTopicCheckpoints implements CheckpointStore {
   private static final long TRANSACTION_ABORT_SLACK_MS = 30_000;
 
   private final Producer<byte[], byte[]> producer;
-  private final Consumer<byte[], byte[]> stateReader;
+  private final SharedStateReader stateReader;
   private final StateTopicStore chunks;
   private final KafkaClientProperties clients;
   /** Test hook: so many coming commits fail as if a rebalance had made the group generation stale. */
@@ -53,16 +52,16 @@ final class StateTopicCheckpoints implements CheckpointStore {
     this.commitsToFail = commitsToFail;
     producer.initTransactions();
     producer.beginTransaction();
-    this.stateReader = new KafkaConsumer<>(clients.stateReader("state"));
+    this.stateReader = new SharedStateReader(new KafkaConsumer<>(clients.stateReader("state")));
     // a restore may wait for a dead instance's open transaction to be aborted (transaction.timeout.ms)
     long restoreTimeoutMs = Math.max(Math.max(MIN_RESTORE_TIMEOUT_MS, config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS)),
         config.transactionTimeoutMs() + TRANSACTION_ABORT_SLACK_MS);
     try {
       this.chunks = new StateTopicStore(config.getString(IngestConfig.STATE_TOPIC), config.groupId(),
-          layout.statePartitions(), layout.chunkBytes(), producer, stateReader, Duration.ofMillis(restoreTimeoutMs),
+          layout.statePartitions(), layout.chunkBytes(), producer, stateReader.lease(), Duration.ofMillis(restoreTimeoutMs),
           this::stateLogEnd);
     } catch (RuntimeException e) {
-      stateReader.close(CloseOptions.timeout(Duration.ofSeconds(5)));
+      stateReader.close(Duration.ofSeconds(5));
       throw e;
     }
   }
@@ -134,8 +133,13 @@ final class StateTopicCheckpoints implements CheckpointStore {
   }
 
   @Override
+  public Optional<SharedStateReader> stateReader() {
+    return Optional.of(stateReader);
+  }
+
+  @Override
   public void close() {
-    stateReader.close(CloseOptions.timeout(Duration.ofSeconds(5)));
+    stateReader.close(Duration.ofSeconds(5));
     if (stateAdmin != null) {
       stateAdmin.close(Duration.ofSeconds(5));
     }

@@ -77,20 +77,20 @@ final class StateTopicStore {
   private final int statePartitions;
   private final int chunkBytes;
   private final Producer<byte[], byte[]> producer;
-  private final Consumer<byte[], byte[]> reader;
+  private final SharedStateReader.Lease reader;
   private final Duration timeout;
   private final ToLongFunction<TopicPartition> logEnd;
   /** Chunks of the last checkpoint written or read, per input partition (for tombstones). */
   private final Map<TopicPartition, Integer> lastChunkCount = new HashMap<>();
 
   /**
-   * @param reader a {@code read_committed} consumer without a group
+   * @param reader this store's lease on the instance's state-topic reader
    * @param timeout longest wait for a checkpoint hidden behind an open transaction (see above)
    * @param logEnd the log end offset (high watermark, {@code read_uncommitted}) of a state partition, or −1
    *     when it cannot be told
    */
   StateTopicStore(String stateTopic, String group, int statePartitions, int chunkBytes, Producer<byte[], byte[]> producer,
-      Consumer<byte[], byte[]> reader, Duration timeout, ToLongFunction<TopicPartition> logEnd) {
+      SharedStateReader.Lease reader, Duration timeout, ToLongFunction<TopicPartition> logEnd) {
     if (chunkBytes < 1024) {
       throw new IllegalArgumentException("state chunk must be at least 1 KiB, got " + chunkBytes);
     }
@@ -183,6 +183,10 @@ final class StateTopicStore {
 
   /** The partition's checkpoint: through the commit metadata if given, else by scanning. */
   Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed) {
+    return reader.use((consumer, lent) -> load(consumer, tp, committed));
+  }
+
+  private Optional<PartitionCheckpoint> load(Consumer<byte[], byte[]> reader, TopicPartition tp, OffsetAndMetadata committed) {
     Optional<PartitionCheckpoint> found = Optional.empty();
     if (committed != null && committed.metadata() != null && committed.metadata().startsWith(METADATA_PREFIX + " ")) {
       String[] parts = committed.metadata().split(" ");
@@ -191,7 +195,7 @@ final class StateTopicStore {
         long first = Long.parseLong(parts[2]);
         int count = Integer.parseInt(parts[3]);
         long checkpointId = Long.parseLong(parts[4]);
-        found = readAt(tp, statePartition, first, count, checkpointId);
+        found = readAt(reader, tp, statePartition, first, count, checkpointId);
         if (found.isEmpty()) {
           LOG.warn("checkpoint of {} not found where its commit metadata points ({}); scanning the state topic", tp,
               committed.metadata());
@@ -204,7 +208,7 @@ final class StateTopicStore {
       }
     }
     if (found.isEmpty()) {
-      found = scan(tp);
+      found = scan(reader, tp);
     }
     if (found.isPresent() && committed != null && found.get().nextOffset() != committed.offset()) {
       LOG.warn("checkpoint of {} covers up to offset {}, the group committed {}; resuming from the checkpoint", tp,
@@ -219,7 +223,8 @@ final class StateTopicStore {
     return (int) Math.max(1, (cp.encodedBytes() + payload - 1) / payload);
   }
 
-  private Optional<PartitionCheckpoint> readAt(TopicPartition tp, int statePartition, long first, int count, long id) {
+  private Optional<PartitionCheckpoint> readAt(Consumer<byte[], byte[]> reader, TopicPartition tp, int statePartition,
+      long first, int count, long id) {
     TopicPartition source = new TopicPartition(stateTopic, statePartition);
     reader.assign(List.of(source));
     reader.seek(source, first);
@@ -230,10 +235,10 @@ final class StateTopicStore {
     byte[] key0 = keyOf(tp, 0);
     byte[] prefix = new byte[key0.length - 4];
     System.arraycopy(key0, 0, prefix, 0, prefix.length);
-    long stable = endOffset(source);
+    long stable = endOffset(reader, source);
     while (true) {
       if (reader.position(source) >= stable) {
-        stable = endOffset(source);
+        stable = endOffset(reader, source);
         if (reader.position(source) >= stable) {
           long end = logEnd.applyAsLong(source);
           if (end >= 0 && stable >= end) {
@@ -275,11 +280,11 @@ final class StateTopicStore {
   }
 
   /** Reads the whole state partition and keeps the newest complete checkpoint of {@code tp}. */
-  private Optional<PartitionCheckpoint> scan(TopicPartition tp) {
+  private Optional<PartitionCheckpoint> scan(Consumer<byte[], byte[]> reader, TopicPartition tp) {
     TopicPartition source = new TopicPartition(stateTopic, statePartitionOf(tp));
     reader.assign(List.of(source));
     reader.seekToBeginning(List.of(source));
-    long end = endOffset(source);
+    long end = endOffset(reader, source);
     byte[] key0 = keyOf(tp, 0);
     byte[] prefix = new byte[key0.length - 4];
     System.arraycopy(key0, 0, prefix, 0, prefix.length);
@@ -309,7 +314,7 @@ final class StateTopicStore {
     return Optional.empty();
   }
 
-  private long endOffset(TopicPartition source) {
+  private long endOffset(Consumer<byte[], byte[]> reader, TopicPartition source) {
     return reader.endOffsets(List.of(source), timeout).get(source);
   }
 

@@ -15,7 +15,6 @@ import java.util.concurrent.ConcurrentSkipListMap;
 import java.util.function.LongSupplier;
 import java.util.function.Supplier;
 import org.apache.kafka.clients.admin.Admin;
-import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.common.TopicPartition;
 import org.pairpulse.ingest.metrics.IngestMetrics;
 import org.pairpulse.ingest.segment.SegmentSettings;
@@ -63,10 +62,10 @@ final class TablePublisher {
    * the view partial.
    */
   void openGroupView(IngestConfig config, KafkaClientProperties clients, EngineConfig engineConfig, LongSupplier clock,
-      Supplier<Set<TopicPartition>> owned) {
+      Supplier<Set<TopicPartition>> owned, SharedStateReader stateReader) {
     viewAdmin = Admin.create(clients.admin("admin"));
     groupView = new GroupView(config.getString(IngestConfig.STATE_TOPIC), config.groupId(), config.topics(),
-        engineConfig, config.groupViewStaleMs(), new KafkaConsumer<>(clients.stateReader("view")), viewAdmin, clock, owned).start();
+        engineConfig, config.groupViewStaleMs(), stateReader.lease(), viewAdmin, clock, owned).start();
   }
 
   /** True while the previous refresh has not published yet (a refresh is not started on top of it). */

@@ -31,6 +31,7 @@ import org.pairpulse.ingest.testkit.ChildIngest;
 import org.pairpulse.ingest.testkit.SharedBroker;
 import org.pairpulse.ingest.testkit.TestIngest;
 import org.pairpulse.ingest.testkit.Workload;
+import org.pairpulse.sketch.engine.Snapshots;
 import org.pairpulse.sketch.time.EventClock;
 
 /**
@@ -157,6 +158,9 @@ class GroupTest {
         "g-" + topic, List.of(topic), Map.of());
     assertEquals(6, state.size(), () -> "a checkpoint per partition; found " + state.keySet() + "; child log: "
         + CrashRestartTest.tail(dir.resolve("c.log")));
+    Map<TopicPartition, Long> ends = broker.endOffsets(topic);
+    state.forEach((tp, cp) -> System.out.printf("state of %s: checkpoint %d, next offset %d of %d, %d baskets%n", tp,
+        cp.checkpointId(), cp.nextOffset(), ends.get(tp), Snapshots.read(cp.engine()).stats().baskets()));
     w.assertExact(StateTopicReader.merge(Workload.engineConfig(), state));
     w.assertExactSegments(StateTopicReader.mergeSegments(state));
     Map<DeadLetterReason, Long> byReason = new EnumMap<>(DeadLetterReason.class);

@@ -77,14 +77,14 @@ class StateTopicStoreTest {
     ScheduledExecutorService timer = Executors.newSingleThreadScheduledExecutor();
     try (KafkaProducer<byte[], byte[]> zombie = transactional(broker, "hidden-zombie");
         KafkaProducer<byte[], byte[]> live = transactional(broker, "hidden-live");
-        KafkaConsumer<byte[], byte[]> reader = broker.reader();
+        SharedStateReader reader = new SharedStateReader(broker.reader());
         Admin admin = broker.admin()) {
       // the killed instance: a transaction left open on the state partition
       zombie.beginTransaction();
       zombie.send(new ProducerRecord<>(stateTopic, 0, "half".getBytes(StandardCharsets.UTF_8), new byte[] {1})).get();
 
       // another instance commits a checkpoint (3 chunks) and the offsets pointing at it, after it
-      StateTopicStore store = new StateTopicStore(stateTopic, group, 1, 4096, live, reader, Duration.ofSeconds(120),
+      StateTopicStore store = new StateTopicStore(stateTopic, group, 1, 4096, live, reader.lease(), Duration.ofSeconds(120),
           source -> StateTopicReader.logEndOffset(admin, source));
       live.beginTransaction();
       StateTopicStore.Written w = store.write(List.of(written));
@@ -106,7 +106,7 @@ class StateTopicStoreTest {
       assertNotNull(committed, "the committed offsets of " + group);
       assertEquals(42, committed.offset());
       assertTrue(committed.metadata().startsWith("pp1 0 1 3 1"), committed.metadata());
-      assertEquals(0L, reader.endOffsets(List.of(statePartition)).get(statePartition),
+      assertEquals(0L, reader.lease().<Long>use((c, lent) -> c.endOffsets(List.of(statePartition)).get(statePartition)),
           "precondition: the open transaction hides everything after it from read_committed readers");
 
       // the coordinator would abort the zombie after its transaction timeout; here the test does

@@ -6,9 +6,8 @@ import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 import java.util.function.Supplier;
-import org.apache.kafka.clients.consumer.ConsumerConfig;
+import org.apache.kafka.clients.consumer.Consumer;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
-import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.Producer;
 import org.apache.kafka.clients.producer.ProducerConfig;
@@ -16,10 +15,10 @@ import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.KafkaException;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.errors.ProducerFencedException;
-import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ingest.kafka.KafkaClientProperties;
+import org.pairpulse.ingest.kafka.SharedStateReader;
 import org.pairpulse.serve.alerts.AlertLeadership;
 import org.pairpulse.serve.alerts.CloudEvents;
 import org.pairpulse.serve.drift.AlertEvent;
@@ -50,7 +49,8 @@ final class GroupAlerts implements AlertLeadership {
   private static final Logger LOG = LoggerFactory.getLogger(GroupAlerts.class);
 
   private final Map<String, Object> producerProps;
-  private final Map<String, Object> consumerProps;
+  private final Supplier<SharedStateReader.Lease> stateReaders;
+  private SharedStateReader.Lease stateReader; // taken at the first take-over (the ingestor has started then)
   private final Supplier<java.util.Set<TopicPartition>> owned;
   private final TopicPartition designated;
   private final String alertTopic;
@@ -66,11 +66,14 @@ final class GroupAlerts implements AlertLeadership {
    * @param designated the partition whose owner leads
    * @param alertTopic the alerts topic; empty: events go to no topic (the state is published all the same)
    * @param stateTopic the compacted alert-state topic (one partition)
+   * @param stateReaders gives a lease on the instance's one state-topic reader ({@code read_committed}, no group),
+   *     which reads the alert state at a take-over; asked once, at the first take-over
    * @param registry where the deliveries to the alerts topic are counted ({@code pairpulse_alert_deliveries_total}
    *     with {@code sink="kafka"}, as the one-instance topic sink counts them)
    */
   GroupAlerts(IngestConfig ingest, String group, Supplier<java.util.Set<TopicPartition>> owned,
-      TopicPartition designated, String alertTopic, String stateTopic, io.micrometer.core.instrument.MeterRegistry registry) {
+      TopicPartition designated, String alertTopic, String stateTopic, Supplier<SharedStateReader.Lease> stateReaders,
+      io.micrometer.core.instrument.MeterRegistry registry) {
     Map<String, Object> p = KafkaClientProperties.forClient(ingest, KafkaClientProperties.Kind.PRODUCER);
     p.put(ProducerConfig.CLIENT_ID_CONFIG, "pairpulse-alerts");
     p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, "pairpulse-" + group + "-alerts");
@@ -78,13 +81,7 @@ final class GroupAlerts implements AlertLeadership {
     p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
     p.put(ProducerConfig.MAX_BLOCK_MS_CONFIG, 60_000);
     this.producerProps = p;
-    Map<String, Object> c = KafkaClientProperties.forClient(ingest, KafkaClientProperties.Kind.CONSUMER);
-    c.remove(ConsumerConfig.GROUP_ID_CONFIG);
-    c.remove(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG);
-    c.put(ConsumerConfig.CLIENT_ID_CONFIG, "pairpulse-alert-state");
-    c.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
-    c.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
-    this.consumerProps = c;
+    this.stateReaders = stateReaders;
     this.owned = owned;
     this.designated = designated;
     this.alertTopic = alertTopic;
@@ -127,22 +124,26 @@ final class GroupAlerts implements AlertLeadership {
 
   /** The alert state committed last, read to the end of the alert-state topic's partition. */
   private Optional<byte[]> readState() {
+    if (stateReader == null) {
+      stateReader = stateReaders.get();
+    }
+    return stateReader.use((reader, lent) -> readState(reader));
+  }
+
+  private Optional<byte[]> readState(Consumer<byte[], byte[]> reader) {
     TopicPartition source = new TopicPartition(stateTopic, 0);
     byte[] found = null;
-    try (KafkaConsumer<byte[], byte[]> reader = new KafkaConsumer<>(consumerProps, new ByteArrayDeserializer(),
-        new ByteArrayDeserializer())) {
-      reader.assign(List.of(source));
-      reader.seekToBeginning(List.of(source));
-      long end = reader.endOffsets(List.of(source), Duration.ofSeconds(60)).get(source);
-      long deadline = System.nanoTime() + Duration.ofSeconds(60).toNanos();
-      while (reader.position(source) < end) {
-        if (System.nanoTime() > deadline) {
-          throw new KafkaException("timed out reading the alert state from " + stateTopic);
-        }
-        for (ConsumerRecord<byte[], byte[]> r : reader.poll(Duration.ofMillis(200))) {
-          if (java.util.Arrays.equals(r.key(), stateKey)) {
-            found = r.value();
-          }
+    reader.assign(List.of(source));
+    reader.seekToBeginning(List.of(source));
+    long end = reader.endOffsets(List.of(source), Duration.ofSeconds(60)).get(source);
+    long deadline = System.nanoTime() + Duration.ofSeconds(60).toNanos();
+    while (reader.position(source) < end) {
+      if (System.nanoTime() > deadline) {
+        throw new KafkaException("timed out reading the alert state from " + stateTopic);
+      }
+      for (ConsumerRecord<byte[], byte[]> r : reader.poll(Duration.ofMillis(200))) {
+        if (java.util.Arrays.equals(r.key(), stateKey)) {
+          found = r.value();
         }
       }
     }

@@ -216,6 +216,7 @@ public final class Pipeline implements AutoCloseable {
     if (ingestor.groupViewEnabled()) {
       groupAlerts = new GroupAlerts(ingestConfig, ingestConfig.groupId(), ingestor::assignment,
           GroupAlerts.designated(ingestConfig.topics()), settings.alertTopic(), alertStateTopic(ingestConfig),
+          () -> ingestor.stateReaderLease().orElseThrow(() -> new IllegalStateException("ingest has not started")),
           registry);
       GroupAlerts leader = groupAlerts;
       builder.alertLeadership(groupAlerts).group(new GroupStatus() {

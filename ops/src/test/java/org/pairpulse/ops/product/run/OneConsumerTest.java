@@ -37,10 +37,13 @@ import org.pairpulse.ops.product.pipeline.Pipeline;
  * {@code kafka.consumer:type=app-info,id=<client id>} MBean when it is built (Kafka's {@code AppInfoParser}); the test listens to the platform
  * MBean server's registrations over the instance's whole life (start, ingest, evaluation trials, close), so a
  * consumer opened only briefly is counted too. Single-node mode (local checkpoints), as {@code run} starts it
- * from a configuration file.
+ * from a configuration file. In group mode (state-topic checkpoints, the group view and the group's alert leadership
+ * on) the instance adds exactly one reader of compacted state, which the checkpoint restores, the group view and the
+ * alert take-over share ({@code SharedStateReader}).
  */
 class OneConsumerTest {
   private static final String TOPIC = "one.consumer.baskets";
+  private static final String STATE_TOPIC = "one.consumer.state";
 
   @TempDir
   Path dir;
@@ -48,53 +51,90 @@ class OneConsumerTest {
   @Test
   void anInstanceOfRunOpensOneConsumerWithTheLiveEvaluationOn() throws Exception {
     try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder().build().start()) {
-      broker.createTopic(TOPIC, 2);
-      Path file = dir.resolve("pairpulse.properties");
-      Files.writeString(file, String.join("\n",
-          IngestConfig.BOOTSTRAP_SERVERS + "=" + broker.bootstrapServers(),
-          IngestConfig.TOPICS + "=" + TOPIC,
-          IngestConfig.GROUP_ID + "=one-consumer",
+      List<String> opened = runAndCountConsumers(broker, List.of(
           IngestConfig.CHECKPOINT_STORE + "=local",
-          IngestConfig.CHECKPOINT_DIR + "=" + dir.resolve("checkpoints"),
-          IngestConfig.REFRESH_INTERVAL_MS + "=200",
-          "serve.port=0",
-          "serve.cohort.floor=0",
-          org.pairpulse.ops.product.evaluation.EvaluationKeys.SHARE + "=0.5", ""), StandardCharsets.UTF_8);
-      Pipeline.Settings settings = RunConfig.load(file).pipelineSettings();
-      assertTrue(settings.evaluation() != null && settings.evaluation().share() == 0.5, "the live evaluation is on");
-
-      List<String> opened = Collections.synchronizedList(new ArrayList<>());
-      MBeanServer mbeans = ManagementFactory.getPlatformMBeanServer();
-      NotificationListener consumers = (Notification n, Object handback) -> {
-        if (n instanceof MBeanServerNotification registration
-            && MBeanServerNotification.REGISTRATION_NOTIFICATION.equals(registration.getType())
-            && isConsumer(registration.getMBeanName())) {
-          opened.add(registration.getMBeanName().getKeyProperty("id"));
-        }
-      };
-      Set<ObjectName> before = mbeans.queryNames(new ObjectName("kafka.consumer:type=app-info,*"), null);
-      mbeans.addNotificationListener(MBeanServerDelegate.DELEGATE_NAME, consumers, null, null);
-      try {
-        long trials;
-        try (Pipeline pipeline = Pipeline.start(settings)) {
-          LiveEvaluation evaluation = pipeline.evaluation().orElseThrow();
-          long now = System.currentTimeMillis();
-          produce(broker.bootstrapServers(), 0, 200, now - Duration.ofMinutes(30).toMillis());
-          waitFor(() -> pipeline.server().view("all").table().horizon("day").map(h -> h.baskets()).orElse(0.0) >= 200,
-              "a table of the first 200 baskets");
-          // later baskets than the table's watermark: the tap tests the sampled ones
-          produce(broker.bootstrapServers(), 200, 200, now);
-          waitFor(() -> pipeline.ingestHealth().basketsTotal() >= 400, "ingest counted 400 baskets");
-          trials = evaluation.trials();
-          assertNull(evaluation.failure());
-          assertEquals(1, live(mbeans, before), "consumers open while the instance runs: " + opened);
-        }
-        assertTrue(trials > 0, "the live evaluation tested baskets from ingest's path");
-      } finally {
-        mbeans.removeNotificationListener(MBeanServerDelegate.DELEGATE_NAME, consumers);
-      }
+          IngestConfig.CHECKPOINT_DIR + "=" + dir.resolve("checkpoints")), 1, pipeline -> { });
       assertEquals(1, opened.size(), "consumers opened by one instance of run: " + opened);
     }
+  }
+
+  @Test
+  void inGroupModeTheRestoresTheGroupViewAndTheAlertTakeOverShareOneStateReader() throws Exception {
+    try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder().build().start()) {
+      List<String> opened = runAndCountConsumers(broker, List.of(
+          IngestConfig.CHECKPOINT_STORE + "=kafka",
+          IngestConfig.STATE_TOPIC + "=" + STATE_TOPIC,
+          IngestConfig.GROUP_VIEW + "=true"), 2, pipeline -> {
+            // the leader took over the group's alerts: it opened its transactional producer, then read the alert state
+            ObjectName alertsProducer = new ObjectName("kafka.producer:type=app-info,id=pairpulse-alerts");
+            waitFor(() -> ManagementFactory.getPlatformMBeanServer().isRegistered(alertsProducer),
+                "the take-over of the group's alerts");
+            Thread.sleep(1000); // its read of the alert state follows the producer's start
+          });
+      assertEquals(2, opened.size(), "consumers opened by one instance of run in group mode (the group's consumer and "
+          + "the one state-topic reader): " + opened);
+      assertEquals(1, opened.stream().filter(id -> id.endsWith("-state")).count(), "one state-topic reader: " + opened);
+    }
+  }
+
+  /**
+   * Runs one instance of {@code run} with the live evaluation on over 400 baskets, then {@code during}; returns the
+   * client ids of every consumer it opened over its life, and checks that {@code expectedLive} were open at once.
+   */
+  private List<String> runAndCountConsumers(EmbeddedKafkaBroker broker, List<String> modeLines, int expectedLive,
+      Phase during) throws Exception {
+    broker.createTopic(TOPIC, 2);
+    Path file = dir.resolve("pairpulse.properties");
+    List<String> lines = new ArrayList<>(List.of(
+        IngestConfig.BOOTSTRAP_SERVERS + "=" + broker.bootstrapServers(),
+        IngestConfig.TOPICS + "=" + TOPIC,
+        IngestConfig.GROUP_ID + "=one-consumer",
+        IngestConfig.REFRESH_INTERVAL_MS + "=200",
+        "serve.port=0",
+        "serve.cohort.floor=0",
+        org.pairpulse.ops.product.evaluation.EvaluationKeys.SHARE + "=0.5"));
+    lines.addAll(modeLines);
+    Files.writeString(file, String.join("\n", lines) + "\n", StandardCharsets.UTF_8);
+    Pipeline.Settings settings = RunConfig.load(file).pipelineSettings();
+    assertTrue(settings.evaluation() != null && settings.evaluation().share() == 0.5, "the live evaluation is on");
+
+    List<String> opened = Collections.synchronizedList(new ArrayList<>());
+    MBeanServer mbeans = ManagementFactory.getPlatformMBeanServer();
+    NotificationListener consumers = (Notification n, Object handback) -> {
+      if (n instanceof MBeanServerNotification registration
+          && MBeanServerNotification.REGISTRATION_NOTIFICATION.equals(registration.getType())
+          && isConsumer(registration.getMBeanName())) {
+        opened.add(registration.getMBeanName().getKeyProperty("id"));
+      }
+    };
+    Set<ObjectName> before = mbeans.queryNames(new ObjectName("kafka.consumer:type=app-info,*"), null);
+    mbeans.addNotificationListener(MBeanServerDelegate.DELEGATE_NAME, consumers, null, null);
+    try {
+      long trials;
+      try (Pipeline pipeline = Pipeline.start(settings)) {
+        LiveEvaluation evaluation = pipeline.evaluation().orElseThrow();
+        long now = System.currentTimeMillis();
+        produce(broker.bootstrapServers(), 0, 200, now - Duration.ofMinutes(30).toMillis());
+        waitFor(() -> pipeline.server().view("all").table().horizon("day").map(h -> h.baskets()).orElse(0.0) >= 200,
+            "a table of the first 200 baskets");
+        // later baskets than the table's watermark: the tap tests the sampled ones
+        produce(broker.bootstrapServers(), 200, 200, now);
+        waitFor(() -> pipeline.ingestHealth().basketsTotal() >= 400, "ingest counted 400 baskets");
+        during.run(pipeline);
+        trials = evaluation.trials();
+        assertNull(evaluation.failure());
+        assertEquals(expectedLive, live(mbeans, before), "consumers open while the instance runs: " + opened);
+      }
+      assertTrue(trials > 0, "the live evaluation tested baskets from ingest's path");
+    } finally {
+      mbeans.removeNotificationListener(MBeanServerDelegate.DELEGATE_NAME, consumers);
+    }
+    return List.copyOf(opened);
+  }
+
+  /** What the test does while the instance runs. */
+  private interface Phase {
+    void run(Pipeline pipeline) throws Exception;
   }
 
   private static boolean isConsumer(ObjectName name) {

@@ -34,6 +34,7 @@ import org.junit.jupiter.api.Order;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.TestInstance;
 import org.junit.jupiter.api.TestMethodOrder;
+import org.pairpulse.ingest.kafka.StableOffsets;
 import org.pairpulse.ops.monitoring.AlertRules;
 import org.pairpulse.ops.tools.scenario.PlantedKind;
 import org.pairpulse.ops.tools.scenario.PlantedPair;
@@ -198,8 +199,10 @@ class DemoEndToEndTest {
     assertNull(demo.pipeline().failure(), "ingest failed");
     assertEquals(IngestHealth.State.STOPPED, demo.pipeline().ingestHealth().state());
     try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, demo.bootstrapServers()))) {
-      Map<TopicPartition, OffsetAndMetadata> committed = admin.listConsumerGroupOffsets(Demo.GROUP)
-          .partitionsToOffsetAndMetadata().get(30, TimeUnit.SECONDS);
+      // the commits are transactional: ask for stable offsets (a plain fetch may still answer the previous ones)
+      Map<TopicPartition, OffsetAndMetadata> committed = StableOffsets.committed(admin, Demo.GROUP,
+          admin.listConsumerGroupOffsets(Demo.GROUP).partitionsToOffsetAndMetadata().get(30, TimeUnit.SECONDS).keySet(),
+          java.time.Duration.ofSeconds(30));
       Map<TopicPartition, OffsetSpec> latest = new HashMap<>();
       committed.keySet().forEach(tp -> latest.put(tp, OffsetSpec.latest()));
       assertFalse(committed.isEmpty(), "nothing committed");
