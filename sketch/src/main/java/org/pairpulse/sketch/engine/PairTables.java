@@ -74,9 +74,6 @@ public final class PairTables {
     // the horizon names so that it is not offered for ranking or suggestions
     HorizonState tracking = engine.horizons[engine.trackingHorizon];
     tables.put(tracking.spec.name(), horizonTable(engine, tracking, shared, memory));
-    if (memory != null) {
-      memory.lastTables = tables.values().toArray(new HorizonTable[0]);
-    }
     return PairTable.ofRows(options.version(), options.publishedAtMillis(), engine.watermarkMillis,
         options.sortBy(), tables, names);
   }
@@ -109,23 +106,9 @@ public final class PairTables {
       untracked(engine, state, buckets, itemByBucket, buckets.bucketA[slot], pairs.hashA[slot]);
       untracked(engine, state, buckets, itemByBucket, buckets.bucketB[slot], pairs.hashB[slot]);
     }
-    int[] hint = null;
-    if (memory != null) {
-      HorizonTable last = memory.lastTables == null ? null : memory.lastTables[tableIndex(engine, state)];
-      int[] known = last == null ? null : last.orderIfSorted();
-      if (known != null) {
-        memory.lastOrder[state.index] = known;
-      }
-      hint = memory.lastOrder[state.index];
-    }
     long halfLife = state.isWindow() ? 0L : state.spec.halfLifeMillis();
-    return HorizonTable.ofRows(state.spec.name(), baskets, halfLife,
-        new SnapshotRows(shared, state.spec.name(), baskets, countAB, itemByBucket, strata, classesByBucket, hint));
-  }
-
-  /** The position of {@code state}'s table in {@link RefreshMemory#lastTables}: published horizons, then tracking. */
-  private static int tableIndex(PairEngine engine, HorizonState state) {
-    return state.index < engine.publishedHorizons ? state.index : engine.publishedHorizons;
+    return HorizonTable.ofRows(state.spec.name(), baskets, halfLife, new SnapshotRows(shared, state.spec.name(),
+        baskets, countAB, itemByBucket, strata, classesByBucket, memory == null ? null : memory.lastOrder[state.index]));
   }
 
   /** An untracked item's count in a horizon, read from the sketches once per bucket. */
@@ -237,10 +220,11 @@ public final class PairTables {
     private final Estimate[] itemByBucket;
     private final SizeStrata strata;
     private final SizeStrata.ItemClasses[] classesByBucket;
-    private final int[] hint;
+    /** The newest order a reader of this horizon computed, in any table of this engine; null: none (the oracle). */
+    private final RefreshMemory.LastOrder lastOrder;
 
     SnapshotRows(Shared shared, String horizon, double baskets, Estimate[] countAB, Estimate[] itemByBucket,
-        SizeStrata strata, SizeStrata.ItemClasses[] classesByBucket, int[] hint) {
+        SizeStrata strata, SizeStrata.ItemClasses[] classesByBucket, RefreshMemory.LastOrder lastOrder) {
       this.shared = shared;
       this.horizon = horizon;
       this.baskets = baskets;
@@ -248,7 +232,7 @@ public final class PairTables {
       this.itemByBucket = itemByBucket;
       this.strata = strata;
       this.classesByBucket = classesByBucket;
-      this.hint = hint;
+      this.lastOrder = lastOrder;
     }
 
     @Override
@@ -341,7 +325,14 @@ public final class PairTables {
 
     @Override
     public int[] orderHint() {
-      return hint;
+      return lastOrder == null ? null : lastOrder.slots;
+    }
+
+    @Override
+    public void sorted(int[] order) {
+      if (lastOrder != null) {
+        lastOrder.slots = order;
+      }
     }
   }
 

@@ -72,6 +72,9 @@ public final class HorizonTable {
 
     /** Present rows in an order close to the table's (a hint that makes the sort cheap), or null. */
     int[] orderHint();
+
+    /** Told the order once the horizon is sorted (so that the next table's sort can start from it). */
+    default void sorted(int[] order) {}
   }
 
   private final String name;
@@ -228,11 +231,6 @@ public final class HorizonTable {
     return orderShared().clone();
   }
 
-  /** The present rows best first if a reader has sorted this horizon already, else null (shared: do not change). */
-  public int[] orderIfSorted() {
-    return order;
-  }
-
   private int[] orderShared() {
     int[] o = order;
     if (o == null) {
@@ -241,6 +239,7 @@ public final class HorizonTable {
         if (o == null) {
           o = sortedRows();
           order = o;
+          rows.sorted(o);
         }
       }
     }
