@@ -152,6 +152,14 @@ final class SuggestIndex {
 
   private record Key(int limit) {}
 
+  /** Builds every horizon the table lists now (a server warms the index off the request path). */
+  SuggestIndex buildAll() {
+    for (String h : table.horizonNames()) {
+      horizon(h);
+    }
+    return this;
+  }
+
   /** A horizon's rows, built on first read (null for a horizon the table does not list). */
   Horizon horizon(String name) {
     if (!table.horizonNames().contains(name)) {
