@@ -10,6 +10,7 @@ import java.util.Optional;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.floor.PairKey;
 import org.pairpulse.sketch.stats.PairCounts;
+import org.pairpulse.sketch.table.HorizonTable;
 import org.pairpulse.sketch.table.PairStats;
 
 /**
@@ -28,8 +29,9 @@ import org.pairpulse.sketch.table.PairStats;
  * size now or before, the bundle confidences) read the recent horizon at every scale. An alert enters when any
  * scale enters and stays active while any holds.
  *
- * <p>Cost: one pass over the published pairs per table version (a hash lookup and a few logarithms
- * each), and one over the tracked pairs for the short scale. Thread-safety: {@link #observe} from one thread;
+ * <p>Cost: one pass over the table's rows per version that reads counts only (the floor, then a screen of a few
+ * logarithms per scale, {@link DriftFinding#mayEnter}); only the pairs the screen lets through compute their measures
+ * and findings, in the recent horizon's order. The short scales' pass reads the rows' counts too. Thread-safety: {@link #observe} from one thread;
  * {@link #report()} from any.
  */
 public final class DriftMonitor {
@@ -181,14 +183,19 @@ public final class DriftMonitor {
 
   /** The reference period's counts of a pair, with the recent decay taken out where {@code factors} say so. */
   private static PairCounts referenceCounts(PairStats recent, PairStats reference, Factors factors) {
+    return referenceCounts(recent.counts(), recent.itemA(), reference.counts(), reference.itemA(), factors);
+  }
+
+  private static PairCounts referenceCounts(PairCounts recent, String recentItemA, PairCounts reference,
+      String referenceItemA, Factors factors) {
     if (!factors.excludeRecent()) {
-      return reference.counts();
+      return reference;
     }
-    PairCounts shorter = recent.counts();
-    if (!recent.itemA().equals(reference.itemA())) { // the same pair listed the other way round
+    PairCounts shorter = recent;
+    if (!recentItemA.equals(referenceItemA)) { // the same pair listed the other way round
       shorter = new PairCounts(shorter.baskets(), shorter.countB(), shorter.countA(), shorter.countAB());
     }
-    return DriftStatistics.excluding(reference.counts(), shorter);
+    return DriftStatistics.excluding(reference, shorter);
   }
 
   /** Observes one table version at {@code nowMillis}; returns the alert events it caused. */
@@ -202,19 +209,44 @@ public final class DriftMonitor {
     }
     int compared = 0;
     Factors factors = factors(table);
-    for (PairStats recent : table.pairs(settings.recentHorizon())) {
-      Optional<PairStats> reference = table.pair(recent.itemA(), recent.itemB(), factors.referenceHorizon());
-      if (reference.isEmpty()) {
+    HorizonTable recentRows = table.table().horizon(settings.recentHorizon()).orElse(null);
+    HorizonTable referenceRows = table.table().horizon(factors.referenceHorizon()).orElse(null);
+    List<Candidate> candidates = new ArrayList<>();
+    int rowCount = recentRows == null || referenceRows == null ? 0 : recentRows.rowCount();
+    for (int row = 0; row < rowCount; row++) {
+      // counts first: the floor and the screens read no measures, so only a pair that may enter computes them
+      if (!table.publishes(settings.recentHorizon(), row) || !table.publishes(factors.referenceHorizon(), row)) {
         continue;
       }
       compared++;
-      PairCounts counts = referenceCounts(recent, reference.get(), factors);
-      if (DriftFinding.mayEnter(recent.counts(), counts, factors.recent(), factors.reference(), tested)) {
-        addIfEntering(entering, DriftFinding.of(recent, recent.counts(), factors.recentHalfLife(), reference.get(),
+      PairCounts recentCounts = rowCounts(recentRows, row);
+      PairCounts screenReference = referenceCounts(recentCounts, recentRows.itemA(row),
+          rowCounts(referenceRows, row), referenceRows.itemA(row), factors);
+      boolean atRecent = DriftFinding.mayEnter(recentCounts, screenReference, factors.recent(), factors.reference(),
+          tested);
+      List<ShortScale> atShort = null;
+      for (ShortScale scale : shortScales) {
+        if (shortMayEnter(scale, row, recentRows.itemA(row), screenReference, factors)) {
+          atShort = atShort == null ? new ArrayList<>() : atShort;
+          atShort.add(scale);
+        }
+      }
+      if (atRecent || atShort != null) {
+        candidates.add(new Candidate(row, atRecent, atShort == null ? List.of() : atShort));
+      }
+    }
+    // in the table's order of the recent horizon, as a pass over its sorted pairs would meet them
+    candidates.sort((x, y) -> recentRows.compareRows(x.row(), y.row()));
+    for (Candidate candidate : candidates) {
+      PairStats recent = recentRows.row(candidate.row());
+      PairStats reference = referenceRows.row(candidate.row());
+      PairCounts counts = referenceCounts(recent, reference, factors);
+      if (candidate.atRecent()) {
+        addIfEntering(entering, DriftFinding.of(recent, recent.counts(), factors.recentHalfLife(), reference,
             counts, factors.recent(), factors.reference(), tested));
       }
-      for (ShortScale scale : shortScales) {
-        DriftFinding atShort = shortFinding(scale, recent, reference.get(), counts, factors, true);
+      for (ShortScale scale : candidate.atShort()) {
+        DriftFinding atShort = shortFinding(scale, recent, reference, counts, factors, true);
         if (atShort != null) {
           addIfEntering(entering, atShort);
         }
@@ -224,6 +256,28 @@ public final class DriftMonitor {
         (pair, kind) -> finding(table, pair, factors, kind));
     report = buildReport(table.version(), nowMillis, compared);
     return events;
+  }
+
+  /** A row screened in: whether the recent scale may enter, and which short scales may. */
+  private record Candidate(int row, boolean atRecent, List<ShortScale> atShort) {}
+
+  /** A row's counts in a horizon (without the size-adjusted E, which no screen reads). */
+  private static PairCounts rowCounts(HorizonTable horizon, int row) {
+    return new PairCounts(horizon.baskets(), horizon.countA(row), horizon.countB(row), horizon.countAB(row));
+  }
+
+  /** {@link #shortFinding}'s screen on a row's counts: whether the short scale's finding may enter. */
+  private boolean shortMayEnter(ShortScale scale, int row, String itemA, PairCounts referenceCounts, Factors factors) {
+    if (!(scale.halfLifeMillis() < factors.recentHalfLife())) {
+      return false;
+    }
+    PairCounts counts = scale.countsOfRow(row, itemA);
+    if (counts == null) {
+      return false;
+    }
+    double factor = DriftStatistics.effectiveCountFactor(scale.halfLifeMillis(),
+        Math.min(factors.age(), scale.ageOfRow(row)));
+    return DriftFinding.mayEnter(counts, referenceCounts, factor, factors.reference(), tested);
   }
 
   private void addIfEntering(List<DriftFinding> entering, DriftFinding finding) {

@@ -1,7 +1,6 @@
 package org.pairpulse.serve.drift;
 
 import java.util.HashMap;
-import java.util.Iterator;
 import java.util.Map;
 import java.util.Objects;
 import org.pairpulse.serve.floor.PairKey;
@@ -40,14 +39,22 @@ final class ShortScale {
   private final long halfLifeMillis;
   private final String recentHorizon;
   private final Map<PairKey, Cells> cells = new HashMap<>();
+  /** The cells of the newest table's rows (null where the row's pair is not in the recent horizon). */
+  private Cells[] byRow = new Cells[0];
+  /** Passes made ({@link #advance}); a cell seen at the last one holds it. */
+  private long passes;
   private long lastWatermarkMillis = Long.MIN_VALUE;
   private double lastRecentBaskets;
 
   /** One pair's state, oriented as its {@link PairKey} (a = first). */
   private static final class Cells {
+    PairKey key;
+    /** The pair as its row lists it at the last pass. */
+    String itemA;
+    String itemB;
+    long seenPass;
     long startMillis;
     long trackedSinceMillis;
-    long seenVersion;
     double recentA;
     double recentB;
     double recentAB;
@@ -71,7 +78,9 @@ final class ShortScale {
 
   /**
    * Advances every tracked pair of {@code table} to its watermark. Pairs that left the table are forgotten; a table
-   * that does not hold the recent horizon as a decay, or whose watermark did not advance, changes nothing.
+   * that does not hold the recent horizon as a decay, or whose watermark did not advance, changes nothing. A pass
+   * reads the rows' counts (no measures) and looks a pair up by name only when its row holds another pair than at
+   * the last pass.
    */
   void advance(PairTable table) {
     HorizonTable recent = table.horizon(recentHorizon).orElse(null);
@@ -86,20 +95,30 @@ final class ShortScale {
     double weighting = first ? 1 : mass(watermark - lastWatermarkMillis, halfLifeMillis)
         / mass(watermark - lastWatermarkMillis, recent.halfLifeMillis());
     double basketsIn = weighting * Math.max(0, recent.baskets() - lastRecentBaskets * recentKeep);
-    long version = table.version();
-    for (PairStats stats : recent.pairs()) {
-      PairKey key = PairKey.of(stats.itemA(), stats.itemB());
-      boolean aFirst = stats.itemA().equals(key.first());
-      PairCounts counts = stats.counts();
-      double a = (aFirst ? counts.countA() : counts.countB()).value();
-      double b = (aFirst ? counts.countB() : counts.countA()).value();
-      double ab = counts.countAB().value();
-      Cells c = cells.get(key);
-      if (c == null || c.trackedSinceMillis != stats.trackedSinceMillis() || first) {
+    int rows = recent.rowCount();
+    Cells[] previous = byRow;
+    Cells[] next = new Cells[rows];
+    for (int row = 0; row < rows; row++) {
+      if (!recent.present(row)) {
+        continue;
+      }
+      String itemA = recent.itemA(row);
+      String itemB = recent.itemB(row);
+      long since = recent.trackedSinceMillis(row);
+      Cells c = row < previous.length ? previous[row] : null;
+      if (c == null || c.trackedSinceMillis != since || !c.itemA.equals(itemA) || !c.itemB.equals(itemB)) {
+        c = cells.get(PairKey.of(itemA, itemB)); // the pair may have moved to another row
+      }
+      boolean aFirst = itemA.compareTo(itemB) <= 0;
+      double a = (aFirst ? recent.countA(row) : recent.countB(row)).value();
+      double b = (aFirst ? recent.countB(row) : recent.countA(row)).value();
+      double ab = recent.countAB(row).value();
+      if (c == null || c.trackedSinceMillis != since || first) {
         c = new Cells();
+        c.key = PairKey.of(itemA, itemB);
         c.startMillis = watermark;
-        c.trackedSinceMillis = stats.trackedSinceMillis();
-        cells.put(key, c);
+        c.trackedSinceMillis = since;
+        cells.put(c.key, c);
       } else {
         c.baskets = c.baskets * shortKeep + basketsIn;
         c.countA = c.countA * shortKeep + weighting * Math.max(0, a - c.recentA * recentKeep);
@@ -109,13 +128,22 @@ final class ShortScale {
       c.recentA = a;
       c.recentB = b;
       c.recentAB = ab;
-      c.seenVersion = version;
+      c.itemA = itemA;
+      c.itemB = itemB;
+      next[row] = c;
     }
-    for (Iterator<Cells> it = cells.values().iterator(); it.hasNext(); ) {
-      if (it.next().seenVersion != version) {
-        it.remove(); // left the tracked table: its counts start over if it comes back
+    passes++;
+    for (Cells c : next) {
+      if (c != null) {
+        c.seenPass = passes;
       }
     }
+    for (Cells c : previous) { // pairs that left the table: their counts start over if they come back
+      if (c != null && c.seenPass != passes && cells.get(c.key) == c) {
+        cells.remove(c.key);
+      }
+    }
+    byRow = next;
     lastWatermarkMillis = watermark;
     lastRecentBaskets = recent.baskets();
   }
@@ -136,17 +164,35 @@ final class ShortScale {
     if (c == null) {
       return null;
     }
-    boolean aFirst = stats.itemA().equals(key.first());
-    double a = Math.min(c.countA, c.baskets);
-    double b = Math.min(c.countB, c.baskets);
-    double ab = Math.min(c.countAB, Math.min(a, b));
-    return aFirst ? PairCounts.exact(c.baskets, a, b, ab) : PairCounts.exact(c.baskets, b, a, ab);
+    return oriented(c, stats.itemA().equals(key.first()));
   }
 
   /** Event time the short counts of {@code stats}' pair cover (0 when unknown). */
   long ageMillis(PairStats stats) {
     Cells c = cells.get(PairKey.of(stats.itemA(), stats.itemB()));
     return c == null || lastWatermarkMillis == Long.MIN_VALUE ? 0 : lastWatermarkMillis - c.startMillis;
+  }
+
+  /**
+   * The short decay's counts of row {@code row} of the newest table advanced, oriented as the row ({@code itemA} its
+   * first item), or null when the row was not seen.
+   */
+  PairCounts countsOfRow(int row, String itemA) {
+    Cells c = row < byRow.length ? byRow[row] : null;
+    return c == null ? null : oriented(c, itemA.equals(c.key.first()));
+  }
+
+  /** Event time the short counts of row {@code row} cover (0 when unknown). */
+  long ageOfRow(int row) {
+    Cells c = row < byRow.length ? byRow[row] : null;
+    return c == null || lastWatermarkMillis == Long.MIN_VALUE ? 0 : lastWatermarkMillis - c.startMillis;
+  }
+
+  private static PairCounts oriented(Cells c, boolean aFirst) {
+    double a = Math.min(c.countA, c.baskets);
+    double b = Math.min(c.countB, c.baskets);
+    double ab = Math.min(c.countAB, Math.min(a, b));
+    return aFirst ? PairCounts.exact(c.baskets, a, b, ab) : PairCounts.exact(c.baskets, b, a, ab);
   }
 
   /** Pairs held (the memory). */

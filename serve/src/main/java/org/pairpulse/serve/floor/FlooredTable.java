@@ -3,12 +3,12 @@ package org.pairpulse.serve.floor;
 import java.util.ArrayList;
 import java.util.Collections;
 import java.util.HashMap;
-import java.util.IdentityHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Objects;
 import java.util.Optional;
-import java.util.Set;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.atomic.AtomicReferenceArray;
 import org.pairpulse.sketch.horizon.HorizonSpec;
 import org.pairpulse.sketch.stats.Estimate;
 import org.pairpulse.sketch.table.HorizonTable;
@@ -19,32 +19,31 @@ import org.pairpulse.sketch.table.PairTable;
  * A {@link PairTable} with every statistic under the {@link CohortFloor} removed: the only view of
  * a pair table that serve publishes. Immutable and safe to share between threads, like the table.
  *
- * <p>Built once per table version, linear in the number of tracked pairs (a join over the horizons by the
- * table's pair rows, or by item names for a table without rows; a horizon where nothing is held back reuses the
- * table's own lists); lookups are hash lookups or list reads. Lists keep the table's order (best first by {@link PairTable#sortMeasure()}).
+ * <p>Computed on read, like the table: a pair's horizons are joined by the table's rows, the floor's rule reads
+ * counts only ({@link #publishes}), and each list (a horizon's pairs, an item's neighbours, a horizon's items) is
+ * filtered from the table's when a reader first asks for it, then kept for this version. Lists keep the table's order
+ * (best first by {@link PairTable#sortMeasure()}).
  */
 public final class FlooredTable {
   private final PairTable table;
   private final CohortFloor floor;
   private final List<String> horizonNames;
-  /** Horizons in {@link #horizonNames}; the held lists may add the table's tracking decay after them. */
+  /** Horizons in {@link #horizonNames}; the held ones may add the table's tracking decay after them. */
   private final int publishedCount;
   private final Map<String, Integer> horizonIndex;
+  private final HorizonTable[] held;
   private final String evidenceHorizon;
-  private final List<List<PairStats>> pairs;
-  private final List<Map<String, List<PairStats>>> neighbours;
-  private final List<Map<String, Estimate>> items;
   private final double[] baskets;
-  private final Map<PairKey, Entry> byPair;
-  private final int suppressedPairs;
   /** Per horizon index, the index of the horizon whose counts are its distinct-basket evidence. */
   private final int[] evidenceOf;
   /** Per horizon index, the window horizons whose lower bounds are its evidence (see {@link #passes}). */
   private final int[][] evidenceWindows;
+  private final AtomicReferenceArray<List<PairStats>> pairs;
+  private final List<Map<String, List<PairStats>>> neighbours;
+  private final AtomicReferenceArray<Map<String, Estimate>> items;
+  /** {published pairs, suppressed pairs} summed over the published horizons, counted on first read. */
+  private volatile int[] tally;
   private final java.util.concurrent.ConcurrentHashMap<Object, Object> derived = new java.util.concurrent.ConcurrentHashMap<>();
-
-  /** A pair's statistics in each horizon (null where absent from that horizon). */
-  private record Entry(PairStats[] stats) {}
 
   private FlooredTable(PairTable table, CohortFloor floor) {
     this.table = table;
@@ -57,119 +56,119 @@ public final class FlooredTable {
     this.publishedCount = horizonNames.size();
     int horizonCount = heldNames.size();
     Map<String, Integer> index = new HashMap<>();
+    this.held = new HorizonTable[horizonCount];
     for (int h = 0; h < horizonCount; h++) {
       index.put(heldNames.get(h), h);
+      held[h] = table.horizon(heldNames.get(h)).orElseThrow();
     }
     this.horizonIndex = Map.copyOf(index);
     this.evidenceHorizon = longestWindow(horizonNames, floor);
     int evidence = evidenceHorizon == null ? -1 : index.get(evidenceHorizon);
     this.evidenceOf = new int[horizonCount];
     this.evidenceWindows = new int[horizonCount][];
+    this.baskets = new double[horizonCount];
     for (int h = 0; h < horizonCount; h++) {
       evidenceOf[h] = floor.isWindow(heldNames.get(h)) || evidence < 0 ? h : evidence;
       evidenceWindows[h] = containedWindows(heldNames, evidenceOf[h], floor);
+      baskets[h] = floor.passes(held[evidenceOf[h]].baskets()) ? held[h].baskets() : Double.NaN;
     }
-
-    // the join: every pair's statistics over the horizons (pair lookups, decay evidence); by row when the table
-    // has rows (a refresh's), else by item names
-    List<PairTable.PairRows> rows = new ArrayList<>(horizonCount);
-    for (String name : heldNames) {
-      table.pairRows(name).ifPresent(rows::add);
-    }
-    boolean byRow = rows.size() == horizonCount;
-    Map<PairKey, Entry> all = new HashMap<>(Math.max(16, table.pairCount() * 2));
-    Entry[] entryOfRow = null;
-    if (byRow) {
-      int rowCount = horizonCount == 0 ? 0 : rows.get(0).rows().size();
-      entryOfRow = new Entry[rowCount];
-      for (int r = 0; r < rowCount; r++) {
-        Entry entry = null;
-        for (int h = 0; h < horizonCount; h++) {
-          PairStats stats = rows.get(h).rows().get(r);
-          if (stats != null) {
-            if (entry == null) {
-              entry = new Entry(new PairStats[horizonCount]);
-              all.put(PairKey.of(stats.itemA(), stats.itemB()), entry);
-            }
-            entry.stats()[h] = stats;
-          }
-        }
-        entryOfRow[r] = entry;
-      }
-    } else {
-      for (int h = 0; h < horizonCount; h++) {
-        for (PairStats stats : table.pairs(heldNames.get(h))) {
-          PairKey key = PairKey.of(stats.itemA(), stats.itemB());
-          Entry entry = all.get(key);
-          if (entry == null) {
-            entry = new Entry(new PairStats[horizonCount]);
-            all.put(key, entry);
-          }
-          entry.stats()[h] = stats;
-        }
-      }
-    }
-    this.byPair = all;
-
-    // per horizon: what passes, in the table's order; lists are reused as they are when nothing is held back
-    this.pairs = new ArrayList<>(horizonCount);
+    this.pairs = new AtomicReferenceArray<>(horizonCount);
+    this.items = new AtomicReferenceArray<>(horizonCount);
     this.neighbours = new ArrayList<>(horizonCount);
-    this.items = new ArrayList<>(horizonCount);
-    this.baskets = new double[horizonCount];
-    int suppressed = 0;
     for (int h = 0; h < horizonCount; h++) {
-      String name = heldNames.get(h);
-      HorizonTable horizonTable = table.horizon(name).orElseThrow();
-      List<PairStats> list = horizonTable.pairs();
-      Set<PairStats> rejected = Collections.newSetFromMap(new IdentityHashMap<>(list.size()));
-      List<PairStats> shown = new ArrayList<>(list.size());
-      int[] order = byRow ? rows.get(h).order() : null;
-      for (int i = 0; i < list.size(); i++) {
-        PairStats stats = list.get(i);
-        Entry entry = byRow ? entryOfRow[order[i]] : all.get(PairKey.of(stats.itemA(), stats.itemB()));
-        if (passes(entry, h)) {
-          shown.add(stats);
-        } else {
-          rejected.add(stats);
+      neighbours.add(new ConcurrentHashMap<>());
+    }
+  }
+
+  /**
+   * Whether row {@code row} of the table is published in {@code horizon}: present there, and its evidence passes the
+   * floor (counts only: no measures are computed). False for an unknown horizon.
+   */
+  public boolean publishes(String horizon, int row) {
+    Integer h = horizonIndex.get(horizon);
+    return h != null && held[h].present(row) && passes(row, h);
+  }
+
+  /** The floored pairs of horizon h in the table's order. */
+  private List<PairStats> floored(int h) {
+    List<PairStats> list = pairs.get(h);
+    if (list == null) {
+      int[] order = held[h].order();
+      List<PairStats> shown = new ArrayList<>(order.length);
+      for (int row : order) {
+        if (passes(row, h)) {
+          shown.add(held[h].row(row));
         }
       }
-      suppressed += h < publishedCount ? rejected.size() : 0;
-      if (rejected.isEmpty()) {
-        pairs.add(list);
-        neighbours.add(horizonTable.neighbours());
-      } else {
-        pairs.add(Collections.unmodifiableList(shown));
-        Map<String, List<PairStats>> byItem = new HashMap<>(horizonTable.neighbours().size() * 2);
-        for (Map.Entry<String, List<PairStats>> row : horizonTable.neighbours().entrySet()) {
-          List<PairStats> kept = new ArrayList<>(row.getValue().size());
-          for (PairStats stats : row.getValue()) {
-            if (!rejected.contains(stats)) {
-              kept.add(stats);
-            }
-          }
-          if (!kept.isEmpty()) {
-            byItem.put(row.getKey(), kept.size() == row.getValue().size() ? row.getValue()
-                : Collections.unmodifiableList(kept));
-          }
-        }
-        neighbours.add(byItem);
+      List<PairStats> all = held[h].pairs();
+      list = shown.size() == all.size() ? all : Collections.unmodifiableList(shown);
+      pairs.compareAndSet(h, null, list);
+      list = pairs.get(h);
+    }
+    return list;
+  }
+
+  private List<PairStats> flooredNeighbours(int h, String item) {
+    int[] rows = held[h].neighbourRows(item);
+    List<PairStats> kept = new ArrayList<>(rows.length);
+    for (int row : rows) {
+      if (passes(row, h)) {
+        kept.add(held[h].row(row));
       }
-      HorizonTable proofTable = table.horizon(heldNames.get(evidenceOf[h])).orElseThrow();
+    }
+    return kept.isEmpty() ? List.of() : Collections.unmodifiableList(kept);
+  }
+
+  private Map<String, Estimate> flooredItems(int h) {
+    Map<String, Estimate> map = items.get(h);
+    if (map == null) {
       Map<String, Estimate> itemCounts = new HashMap<>();
-      for (Map.Entry<String, Estimate> item : horizonTable.itemCounts().entrySet()) {
+      List<Map<String, Estimate>> proofs = proofItems(h);
+      for (Map.Entry<String, Estimate> item : held[h].itemCounts().entrySet()) {
         double lower = Double.NaN;
-        for (int w : evidenceWindows[h]) {
-          Estimate proof = table.horizon(heldNames.get(w)).orElseThrow().itemCounts().get(item.getKey());
+        for (Map<String, Estimate> proofMap : proofs) {
+          Estimate proof = proofMap.get(item.getKey());
           lower = proof == null ? lower : Double.isNaN(lower) ? proof.lower() : Math.max(lower, proof.lower());
         }
         if (!Double.isNaN(lower) && floor.passes(lower)) {
           itemCounts.put(item.getKey(), item.getValue());
         }
       }
-      items.add(itemCounts);
-      baskets[h] = floor.passes(proofTable.baskets()) ? horizonTable.baskets() : Double.NaN;
+      items.compareAndSet(h, null, itemCounts);
+      map = items.get(h);
     }
-    this.suppressedPairs = suppressed;
+    return map;
+  }
+
+  private List<Map<String, Estimate>> proofItems(int h) {
+    List<Map<String, Estimate>> proofs = new ArrayList<>(evidenceWindows[h].length);
+    for (int w : evidenceWindows[h]) {
+      proofs.add(held[w].itemCounts());
+    }
+    return proofs;
+  }
+
+  /** {published, suppressed} over the published horizons: a pass over the rows' counts. */
+  private int[] tally() {
+    int[] t = tally;
+    if (t == null) {
+      int published = 0;
+      int suppressed = 0;
+      for (int h = 0; h < publishedCount; h++) {
+        for (int row = 0; row < held[h].rowCount(); row++) {
+          if (held[h].present(row)) {
+            if (passes(row, h)) {
+              published++;
+            } else {
+              suppressed++;
+            }
+          }
+        }
+      }
+      t = new int[] {published, suppressed};
+      tally = t;
+    }
+    return t;
   }
 
   /**
@@ -180,21 +179,21 @@ public final class FlooredTable {
    * error (ε·W of a day) in its lower bound while the hourly panes of a short window hold exact counts after
    * the first hour.
    */
-  private boolean passes(Entry entry, int h) {
-    if (entry == null) {
-      return false;
-    }
+  private boolean passes(int row, int h) {
     double ab = Double.NaN;
     double a = Double.NaN;
     double b = Double.NaN;
     for (int w : evidenceWindows[h]) {
-      PairStats proof = entry.stats()[w];
-      if (proof == null) {
+      HorizonTable proof = held[w];
+      if (!proof.present(row)) {
         continue;
       }
-      ab = Double.isNaN(ab) ? proof.counts().countAB().lower() : Math.max(ab, proof.counts().countAB().lower());
-      a = Double.isNaN(a) ? proof.counts().countA().lower() : Math.max(a, proof.counts().countA().lower());
-      b = Double.isNaN(b) ? proof.counts().countB().lower() : Math.max(b, proof.counts().countB().lower());
+      double proofAB = proof.countAB(row).lower();
+      double proofA = proof.countA(row).lower();
+      double proofB = proof.countB(row).lower();
+      ab = Double.isNaN(ab) ? proofAB : Math.max(ab, proofAB);
+      a = Double.isNaN(a) ? proofA : Math.max(a, proofA);
+      b = Double.isNaN(b) ? proofB : Math.max(b, proofB);
     }
     return !Double.isNaN(ab) && floor.passes(ab) && floor.passes(a) && floor.passes(b);
   }
@@ -268,13 +267,13 @@ public final class FlooredTable {
   /** Published pairs of a horizon, best first; empty for an unknown horizon. */
   public List<PairStats> pairs(String horizon) {
     Integer h = horizonIndex.get(horizon);
-    return h == null ? List.of() : pairs.get(h);
+    return h == null ? List.of() : floored(h);
   }
 
   /** Published neighbours of {@code item} in a horizon, best first; empty when unknown or suppressed. */
   public List<PairStats> neighbours(String item, String horizon) {
     Integer h = horizonIndex.get(horizon);
-    return h == null ? List.of() : neighbours.get(h).getOrDefault(item, List.of());
+    return h == null ? List.of() : neighbours.get(h).computeIfAbsent(item, i -> flooredNeighbours(h, i));
   }
 
   /** The pair {a, b} in a horizon, if tracked and published. */
@@ -283,23 +282,23 @@ public final class FlooredTable {
     if (h == null || a.equals(b)) {
       return Optional.empty();
     }
-    Entry entry = byPair.get(PairKey.of(a, b));
-    if (entry == null || entry.stats()[h] == null || !passes(entry, h)) {
+    int row = held[h].rowOf(a, b);
+    if (row < 0 || !held[h].present(row) || !passes(row, h)) {
       return Optional.empty();
     }
-    return Optional.of(entry.stats()[h]);
+    return Optional.of(held[h].row(row));
   }
 
   /** n_a of a tracked, published item in a horizon. */
   public Optional<Estimate> itemCount(String item, String horizon) {
     Integer h = horizonIndex.get(horizon);
-    return h == null ? Optional.empty() : Optional.ofNullable(items.get(h).get(item));
+    return h == null ? Optional.empty() : Optional.ofNullable(flooredItems(h).get(item));
   }
 
   /** Published items of a horizon with their n_a (unordered). */
   public Map<String, Estimate> items(String horizon) {
     Integer h = horizonIndex.get(horizon);
-    return h == null ? Map.of() : Collections.unmodifiableMap(items.get(h));
+    return h == null ? Map.of() : Collections.unmodifiableMap(flooredItems(h));
   }
 
   /** N of a horizon, or NaN when the horizon is unknown or N is under the floor. */
@@ -315,11 +314,7 @@ public final class FlooredTable {
 
   /** Published pairs summed over horizons. */
   public int publishedPairs() {
-    int sum = 0;
-    for (int h = 0; h < publishedCount; h++) {
-      sum += pairs.get(h).size();
-    }
-    return sum;
+    return tally()[0];
   }
 
   /**
@@ -342,6 +337,6 @@ public final class FlooredTable {
 
   /** Pair-horizon statistics held back by the floor. */
   public int suppressedPairs() {
-    return suppressedPairs;
+    return tally()[1];
   }
 }

@@ -1,11 +1,11 @@
 package org.pairpulse.serve.floor;
 
 import java.util.Collections;
-import java.util.HashMap;
 import java.util.IdentityHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Set;
+import java.util.concurrent.ConcurrentHashMap;
 import org.pairpulse.sketch.stats.Multiplicity;
 import org.pairpulse.sketch.table.PairStats;
 
@@ -22,10 +22,13 @@ import org.pairpulse.sketch.table.PairStats;
  * the benchmark ({@code bench rules}) measures the share of listed pairs that are not real on streams of independent
  * items.
  *
- * <p>Built once per table version and rate ({@link FlooredTable#derived}); immutable.
+ * <p>Built once per table version and rate ({@link FlooredTable#derived}), each horizon on first read; immutable
+ * as seen from outside.
  */
 public final class OfferScreen {
-  private final Map<String, Horizon> horizons = new HashMap<>();
+  private final FlooredTable table;
+  private final double falseDiscoveryRate;
+  private final Map<String, Horizon> horizons = new ConcurrentHashMap<>();
 
   /**
    * One horizon's screen.
@@ -43,21 +46,25 @@ public final class OfferScreen {
   }
 
   private OfferScreen(FlooredTable table, double falseDiscoveryRate) {
-    for (String name : table.horizonNames()) {
-      List<PairStats> pairs = table.pairs(name);
-      double[] p = new double[pairs.size()];
-      for (int i = 0; i < p.length; i++) {
-        p[i] = pairs.get(i).measures().associationPValue();
-      }
-      boolean[] pass = Multiplicity.benjaminiHochberg(p, falseDiscoveryRate);
-      Set<PairStats> significant = Collections.newSetFromMap(new IdentityHashMap<>());
-      for (int i = 0; i < p.length; i++) {
-        if (pass[i]) {
-          significant.add(pairs.get(i));
-        }
-      }
-      horizons.put(name, new Horizon(p.length, significant.size(), Collections.unmodifiableSet(significant)));
+    this.table = table;
+    this.falseDiscoveryRate = falseDiscoveryRate;
+  }
+
+  /** The screen of one horizon: every published pair's p-value (the horizon's measures), one step. */
+  private Horizon screen(String name) {
+    List<PairStats> pairs = table.pairs(name);
+    double[] p = new double[pairs.size()];
+    for (int i = 0; i < p.length; i++) {
+      p[i] = pairs.get(i).measures().associationPValue();
     }
+    boolean[] pass = Multiplicity.benjaminiHochberg(p, falseDiscoveryRate);
+    Set<PairStats> significant = Collections.newSetFromMap(new IdentityHashMap<>());
+    for (int i = 0; i < p.length; i++) {
+      if (pass[i]) {
+        significant.add(pairs.get(i));
+      }
+    }
+    return new Horizon(p.length, significant.size(), Collections.unmodifiableSet(significant));
   }
 
   /** The screen of {@code table} at the default rate, built on first use and shared. */
@@ -74,6 +81,9 @@ public final class OfferScreen {
 
   /** The screen of a horizon (empty for an unknown one). */
   public Horizon horizon(String name) {
-    return horizons.getOrDefault(name, Horizon.EMPTY);
+    if (!table.horizonNames().contains(name)) {
+      return Horizon.EMPTY;
+    }
+    return horizons.computeIfAbsent(name, this::screen);
   }
 }

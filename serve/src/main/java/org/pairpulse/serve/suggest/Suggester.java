@@ -94,11 +94,12 @@ public final class Suggester {
   }
 
   /**
-   * Warms the per-version index of {@code table} (the server calls this off the request path when a
-   * new table arrives, so the first request of a version does not pay for it).
+   * Warms the per-version index of {@code table}, every horizon (the server calls this off the request
+   * path when a new table arrives, so the first request of a version does not pay for it). Without it, a
+   * horizon is built when a request first reads it (a backtest reads one).
    */
   public void prepare(FlooredTable table) {
-    SuggestIndex.of(table, maxNeighboursPerItem);
+    SuggestIndex.of(table, maxNeighboursPerItem).buildAll();
   }
 
   /** Per-thread scratch: an open-addressing map from candidate id to its tally, cleared after use. */

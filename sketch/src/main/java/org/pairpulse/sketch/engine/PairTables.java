@@ -3,7 +3,6 @@ package org.pairpulse.sketch.engine;
 import com.carrotsearch.hppc.LongIntHashMap;
 import java.util.ArrayList;
 import java.util.Arrays;
-import java.util.Collections;
 import java.util.HashMap;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -55,106 +54,286 @@ public final class PairTables {
   }
 
   /**
-   * The refresh. With {@code memory} (the engine's own, between refreshes) the closed panes of windows are read
-   * from {@link ClosedPaneSums} and each horizon's sort starts from the previous table's order; with null
-   * everything is read from the state and sorted from scratch: the slow oracle the tests compare against. The two
-   * give equal tables, bit for bit.
+   * The refresh: reads every count the table holds from the state (N, n_a, n_ab with bounds, the size strata) and
+   * nothing more; measures, sorts and neighbour lists are computed when a reader asks ({@link HorizonTable}). With
+   * {@code memory} (the engine's own, between refreshes) the closed panes of windows are read from
+   * {@link ClosedPaneSums} and a horizon's sort starts from the last known order; with null everything is read from
+   * the state and sorted from scratch: the slow oracle the tests compare against. The two give equal tables, bit for
+   * bit, whatever a reader asks.
    */
   static PairTable build(PairEngine engine, Options options, RefreshMemory memory) {
     Map<String, HorizonTable> tables = new LinkedHashMap<>();
-    Map<String, PairStats[]> rows = new HashMap<>();
-    Map<String, int[]> orders = new HashMap<>();
-    ItemBuckets buckets = ItemBuckets.of(engine.pairs, engine.items);
+    Shared shared = new Shared(engine, options);
     List<String> names = new ArrayList<>();
     for (int h = 0; h < engine.publishedHorizons; h++) {
       HorizonState state = engine.horizons[h];
-      tables.put(state.spec.name(), horizonTable(engine, state, options, memory, buckets, rows, orders));
+      tables.put(state.spec.name(), horizonTable(engine, state, shared, memory));
       names.add(state.spec.name());
     }
     // the tracking decay: drift's reference period (a long decay read from the wide decay sketches), kept out of
     // the horizon names so that it is not offered for ranking or suggestions
     HorizonState tracking = engine.horizons[engine.trackingHorizon];
-    tables.put(tracking.spec.name(), horizonTable(engine, tracking, options, memory, buckets, rows, orders));
-    return new PairTable(options.version(), options.publishedAtMillis(), engine.watermarkMillis,
-        options.sortBy(), tables, names, rows, orders);
+    tables.put(tracking.spec.name(), horizonTable(engine, tracking, shared, memory));
+    return PairTable.ofRows(options.version(), options.publishedAtMillis(), engine.watermarkMillis,
+        options.sortBy(), tables, names);
   }
 
-  /** One horizon's table; its pairs by row (the tracked slot) go into {@code rows}, their order into {@code orders}. */
-  private static HorizonTable horizonTable(PairEngine engine, HorizonState state, Options options,
-      RefreshMemory memory, ItemBuckets buckets, Map<String, PairStats[]> rows, Map<String, int[]> orders) {
+  /** One horizon's table: its counts, read now; the rest on read. */
+  private static HorizonTable horizonTable(PairEngine engine, HorizonState state, Shared shared, RefreshMemory memory) {
     double baskets = Counts.baskets(engine, state);
     double[] scratch = new double[3];
     TrackedTable items = engine.items;
-    Estimate[] itemBySlot = new Estimate[items.size()];
-    Map<String, Estimate> itemCounts = new HashMap<>(items.size() * 2);
+    ItemBuckets buckets = shared.buckets;
+    Estimate[] itemByBucket = new Estimate[buckets.count];
     SizeStrata strata = SizeStrata.of(engine, state);
-    SizeStrata.ItemClasses[] classesBySlot = strata == null ? null : new SizeStrata.ItemClasses[items.size()];
+    SizeStrata.ItemClasses[] classesByBucket = strata == null ? null : new SizeStrata.ItemClasses[buckets.count];
     for (int slot = 0; slot < items.size(); slot++) {
       Estimate count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch);
-      itemBySlot[slot] = count;
-      itemCounts.put(items.labelA[slot], count);
+      itemByBucket[slot] = count;
       if (strata != null) {
-        classesBySlot[slot] = strata.item(Counts.knownByClass(engine, state, slot), count);
+        classesByBucket[slot] = strata.item(Counts.knownByClass(engine, state, slot), count);
       }
     }
     TrackedTable pairs = engine.pairs;
-    PairStats[] bySlot = new PairStats[pairs.size()];
-    double[] keyBySlot = new double[pairs.size()];
-    int published = 0;
+    Estimate[] countAB = new Estimate[pairs.size()];
+    double minPairCount = shared.options.minPairCount();
     for (int slot = 0; slot < pairs.size(); slot++) {
-      Estimate countAB = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch);
-      if (countAB.upper() < options.minPairCount() || countAB.upper() <= 0) {
+      Estimate count = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch);
+      if (count.upper() < minPairCount || count.upper() <= 0) {
         continue;
       }
-      int slotA = buckets.trackedA(slot);
-      int slotB = buckets.trackedB(slot);
-      Estimate countA = slotA >= 0 ? itemBySlot[slotA] : Counts.sketched(engine, state.itemSketch, state, pairs.hashA[slot]);
-      Estimate countB = slotB >= 0 ? itemBySlot[slotB] : Counts.sketched(engine, state.itemSketch, state, pairs.hashB[slot]);
-      PairCounts counts = new PairCounts(baskets, countA, countB, countAB);
-      if (strata != null) {
-        SizeStrata.Expectation expectation = strata.expected(
-            slotA >= 0 ? classesBySlot[slotA] : strata.untracked(countA),
-            slotB >= 0 ? classesBySlot[slotB] : strata.untracked(countB));
-        counts = counts.withStratifiedExpected(expectation.expected(), expectation.dispersion());
-      }
-      PairStats stats = new PairStats(pairs.labelA[slot], pairs.labelB[slot], state.spec.name(), counts,
-          PairMeasures.of(counts, options.settings()), pairs.admittedAtMillis[slot]);
-      bySlot[slot] = stats;
-      keyBySlot[slot] = orderKey(options.sortBy(), stats);
-      published++;
+      countAB[slot] = count;
+      untracked(engine, state, buckets, itemByBucket, buckets.bucketA[slot], pairs.hashA[slot]);
+      untracked(engine, state, buckets, itemByBucket, buckets.bucketB[slot], pairs.hashB[slot]);
     }
-    int[] order = sortBest(bySlot, keyBySlot, published, memory == null ? null : memory.lastOrder[state.index]);
-    if (memory != null) {
-      memory.lastOrder[state.index] = order;
+    long halfLife = state.isWindow() ? 0L : state.spec.halfLifeMillis();
+    return HorizonTable.ofRows(state.spec.name(), baskets, halfLife, new SnapshotRows(shared, state.spec.name(),
+        baskets, countAB, itemByBucket, strata, classesByBucket, memory == null ? null : memory.lastOrder[state.index]));
+  }
+
+  /** An untracked item's count in a horizon, read from the sketches once per bucket. */
+  private static void untracked(PairEngine engine, HorizonState state, ItemBuckets buckets, Estimate[] byBucket,
+      int bucket, long hash) {
+    if (bucket >= buckets.tracked && byBucket[bucket] == null) {
+      byBucket[bucket] = Counts.sketched(engine, state.itemSketch, state, hash);
     }
-    rows.put(state.spec.name(), bySlot);
-    orders.put(state.spec.name(), order);
-    PairStats[] sorted = new PairStats[order.length];
-    for (int i = 0; i < order.length; i++) {
-      sorted[i] = bySlot[order[i]];
-    }
-    return new HorizonTable(state.spec.name(), baskets, Arrays.asList(sorted), neighbours(buckets, order, sorted),
-        itemCounts, state.isWindow() ? 0L : state.spec.halfLifeMillis());
   }
 
   /**
-   * Each item's published pairs in table order: counted per item bucket, then filled, in two passes over the
-   * sorted pairs, one map entry per item.
+   * What a refresh's horizons share, copied from the state at the refresh: each row's (tracked slot's) items, their
+   * buckets and admission time, the tracked items' names; and, built on first read, the index from item names to
+   * rows.
    */
-  private static Map<String, List<PairStats>> neighbours(ItemBuckets buckets, int[] order, PairStats[] sorted) {
-    int[] sizes = new int[buckets.count];
-    for (int slot : order) {
-      sizes[buckets.bucketA[slot]]++;
-      sizes[buckets.bucketB[slot]]++;
+  static final class Shared {
+    final Options options;
+    final ItemBuckets buckets;
+    final String[] labelA;
+    final String[] labelB;
+    final long[] admittedAtMillis;
+    final String[] itemNames;
+    private volatile RowIndex index;
+
+    Shared(PairEngine engine, Options options) {
+      this.options = options;
+      TrackedTable pairs = engine.pairs;
+      this.buckets = ItemBuckets.of(pairs, engine.items);
+      this.labelA = Arrays.copyOf(pairs.labelA, pairs.size());
+      this.labelB = Arrays.copyOf(pairs.labelB, pairs.size());
+      this.admittedAtMillis = Arrays.copyOf(pairs.admittedAtMillis, pairs.size());
+      this.itemNames = Arrays.copyOf(engine.items.labelA, engine.items.size());
     }
-    PairStats[][] lists = new PairStats[buckets.count][];
-    int[] filled = new int[buckets.count];
-    Map<String, List<PairStats>> neighbours = new HashMap<>(buckets.count * 2);
-    for (int i = 0; i < order.length; i++) { // sorted order: each list is sorted too
-      add(lists, sizes, filled, buckets.bucketA[order[i]], sorted[i], sorted[i].itemA(), neighbours);
-      add(lists, sizes, filled, buckets.bucketB[order[i]], sorted[i], sorted[i].itemB(), neighbours);
+
+    RowIndex index() {
+      RowIndex i = index;
+      if (i == null) {
+        synchronized (this) {
+          i = index;
+          if (i == null) {
+            i = new RowIndex(this);
+            index = i;
+          }
+        }
+      }
+      return i;
     }
-    return neighbours;
+  }
+
+  /** Item name to bucket, and each bucket's rows (compressed sparse rows). */
+  static final class RowIndex {
+    private final Map<String, Integer> bucketOf;
+    private final int[] start;
+    private final int[] rows;
+
+    RowIndex(Shared shared) {
+      ItemBuckets buckets = shared.buckets;
+      int rowCount = shared.labelA.length;
+      bucketOf = new HashMap<>(buckets.count * 2);
+      start = new int[buckets.count + 1];
+      for (int r = 0; r < rowCount; r++) {
+        bucketOf.putIfAbsent(shared.labelA[r], buckets.bucketA[r]);
+        bucketOf.putIfAbsent(shared.labelB[r], buckets.bucketB[r]);
+        start[buckets.bucketA[r] + 1]++;
+        start[buckets.bucketB[r] + 1]++;
+      }
+      for (int b = 0; b < buckets.count; b++) {
+        start[b + 1] += start[b];
+      }
+      rows = new int[start[buckets.count]];
+      int[] filled = start.clone();
+      for (int r = 0; r < rowCount; r++) {
+        rows[filled[buckets.bucketA[r]]++] = r;
+        rows[filled[buckets.bucketB[r]]++] = r;
+      }
+    }
+
+    int[] rowsOf(String item) {
+      Integer bucket = bucketOf.get(item);
+      return bucket == null ? new int[0] : Arrays.copyOfRange(rows, start[bucket], start[bucket + 1]);
+    }
+
+    int rowOf(Shared shared, String a, String b) {
+      Integer bucket = bucketOf.get(a);
+      if (bucket == null) {
+        return -1;
+      }
+      for (int i = start[bucket]; i < start[bucket + 1]; i++) {
+        int r = rows[i];
+        if ((shared.labelA[r].equals(a) && shared.labelB[r].equals(b))
+            || (shared.labelA[r].equals(b) && shared.labelB[r].equals(a))) {
+          return r;
+        }
+      }
+      return -1;
+    }
+  }
+
+  /**
+   * One horizon of a refresh: the counts read at the refresh, and how a row's statistics follow from them (the
+   * size-adjusted E, then the measures): the computation a refresh used to run for every pair, now run for the pairs
+   * a reader asks for.
+   */
+  private static final class SnapshotRows implements HorizonTable.Rows {
+    private final Shared shared;
+    private final String horizon;
+    private final double baskets;
+    private final Estimate[] countAB;
+    private final Estimate[] itemByBucket;
+    private final SizeStrata strata;
+    private final SizeStrata.ItemClasses[] classesByBucket;
+    /** The newest order a reader of this horizon computed, in any table of this engine; null: none (the oracle). */
+    private final RefreshMemory.LastOrder lastOrder;
+
+    SnapshotRows(Shared shared, String horizon, double baskets, Estimate[] countAB, Estimate[] itemByBucket,
+        SizeStrata strata, SizeStrata.ItemClasses[] classesByBucket, RefreshMemory.LastOrder lastOrder) {
+      this.shared = shared;
+      this.horizon = horizon;
+      this.baskets = baskets;
+      this.countAB = countAB;
+      this.itemByBucket = itemByBucket;
+      this.strata = strata;
+      this.classesByBucket = classesByBucket;
+      this.lastOrder = lastOrder;
+    }
+
+    @Override
+    public int rowCount() {
+      return countAB.length;
+    }
+
+    @Override
+    public boolean present(int row) {
+      return countAB[row] != null;
+    }
+
+    @Override
+    public Estimate countAB(int row) {
+      return countAB[row];
+    }
+
+    @Override
+    public Estimate countA(int row) {
+      return itemByBucket[shared.buckets.bucketA[row]];
+    }
+
+    @Override
+    public Estimate countB(int row) {
+      return itemByBucket[shared.buckets.bucketB[row]];
+    }
+
+    @Override
+    public PairStats stats(int row) {
+      int bucketA = shared.buckets.bucketA[row];
+      int bucketB = shared.buckets.bucketB[row];
+      Estimate countA = itemByBucket[bucketA];
+      Estimate countB = itemByBucket[bucketB];
+      PairCounts counts = new PairCounts(baskets, countA, countB, countAB[row]);
+      if (strata != null) {
+        SizeStrata.Expectation expectation = strata.expected(
+            bucketA < shared.buckets.tracked ? classesByBucket[bucketA] : strata.untracked(countA),
+            bucketB < shared.buckets.tracked ? classesByBucket[bucketB] : strata.untracked(countB));
+        counts = counts.withStratifiedExpected(expectation.expected(), expectation.dispersion());
+      }
+      return new PairStats(shared.labelA[row], shared.labelB[row], horizon, counts,
+          PairMeasures.of(counts, shared.options.settings()), shared.admittedAtMillis[row]);
+    }
+
+    /** Best first by the sort measure (NaN last), ties by item names: strict, as rows hold distinct pairs. */
+    @Override
+    public int compare(int rowX, PairStats x, int rowY, PairStats y) {
+      Measure sortBy = shared.options.sortBy();
+      int byKey = Double.compare(orderKey(sortBy, y), orderKey(sortBy, x));
+      if (byKey != 0) {
+        return byKey;
+      }
+      int byA = x.itemA().compareTo(y.itemA());
+      return byA != 0 ? byA : x.itemB().compareTo(y.itemB());
+    }
+
+    @Override
+    public String itemA(int row) {
+      return shared.labelA[row];
+    }
+
+    @Override
+    public String itemB(int row) {
+      return shared.labelB[row];
+    }
+
+    @Override
+    public long trackedSinceMillis(int row) {
+      return shared.admittedAtMillis[row];
+    }
+
+    @Override
+    public int[] rowsOf(String item) {
+      return shared.index().rowsOf(item);
+    }
+
+    @Override
+    public int rowOf(String itemA, String itemB) {
+      return shared.index().rowOf(shared, itemA, itemB);
+    }
+
+    @Override
+    public Map<String, Estimate> itemCounts() {
+      Map<String, Estimate> counts = new HashMap<>(shared.itemNames.length * 2);
+      for (int slot = 0; slot < shared.itemNames.length; slot++) {
+        counts.put(shared.itemNames[slot], itemByBucket[slot]);
+      }
+      return counts;
+    }
+
+    @Override
+    public int[] orderHint() {
+      return lastOrder == null ? null : lastOrder.slots;
+    }
+
+    @Override
+    public void sorted(int[] order) {
+      if (lastOrder != null) {
+        lastOrder.slots = order;
+      }
+    }
   }
 
   /**
@@ -204,53 +383,6 @@ public final class PairTables {
     int trackedB(int slot) {
       return bucketB[slot] < tracked ? bucketB[slot] : -1;
     }
-  }
-
-  private static void add(PairStats[][] lists, int[] sizes, int[] filled, int bucket, PairStats stats, String item,
-      Map<String, List<PairStats>> neighbours) {
-    if (lists[bucket] == null) {
-      lists[bucket] = new PairStats[sizes[bucket]];
-      neighbours.put(item, Collections.unmodifiableList(Arrays.asList(lists[bucket])));
-    }
-    lists[bucket][filled[bucket]++] = stats;
-  }
-
-  /**
-   * The slots of the {@code published} non-null pairs, best first by {@code key} (NaN last, as
-   * {@link #orderKey}), ties by item names. The order is strict, so the result does not depend on where the sort
-   * starts; starting from the previous table's order ({@code previous}, or null) makes it nearly sorted already, and
-   * the merge sort (adaptive) runs in about one comparison per pair.
-   */
-  private static int[] sortBest(PairStats[] bySlot, double[] key, int published, int[] previous) {
-    Integer[] order = new Integer[published];
-    boolean[] placed = new boolean[bySlot.length];
-    int n = 0;
-    if (previous != null) {
-      for (int slot : previous) {
-        if (slot < bySlot.length && bySlot[slot] != null) {
-          order[n++] = slot;
-          placed[slot] = true;
-        }
-      }
-    }
-    for (int slot = 0; slot < bySlot.length; slot++) {
-      if (bySlot[slot] != null && !placed[slot]) {
-        order[n++] = slot;
-      }
-    }
-    Arrays.sort(order, (x, y) -> {
-      int byKey = Double.compare(key[y], key[x]);
-      if (byKey != 0) {
-        return byKey;
-      }
-      int byA = bySlot[x].itemA().compareTo(bySlot[y].itemA());
-      return byA != 0 ? byA : bySlot[x].itemB().compareTo(bySlot[y].itemB());
-    });
-    int[] slots = new int[published];
-    for (int i = 0; i < published; i++) {
-      slots[i] = order[i];
-    }
-    return slots;
   }
 
   /** NaN sorts last. */

@@ -1,7 +1,5 @@
 package org.pairpulse.sketch.table;
 
-import java.util.Arrays;
-import java.util.Collections;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
@@ -10,7 +8,8 @@ import org.pairpulse.sketch.stats.Measure;
 
 /**
  * The immutable result of a refresh: statistics of every tracked pair per horizon, plus each item's
- * neighbours sorted by the table's measure. Safe to share between threads; never changes.
+ * neighbours sorted by the table's measure. Safe to share between threads; never changes. A refresh's table holds
+ * counts and computes measures, sorts and neighbour lists on read ({@link HorizonTable}).
  */
 public final class PairTable {
   private static final PairTable EMPTY = new PairTable(0, 0, Long.MIN_VALUE, Measure.SHRUNK_LIFT, Map.of(), List.of());
@@ -24,11 +23,11 @@ public final class PairTable {
   private final Measure sortMeasure;
   private final Map<String, HorizonTable> horizons;
   private final List<String> horizonNames;
-  /** Per horizon, its pairs by row (null where absent) and its rows best first; null when not known. */
-  private final Map<String, PairStats[]> pairsByRow;
-  private final Map<String, int[]> rowOrder;
 
   /**
+   * A table from lists: the horizons' pairs get rows by a join on item names (one row per unordered pair), so that
+   * every reader reads every table by row.
+   *
    * @param version increasing publication number (0 only for the empty table)
    * @param publishedAtMillis wall-clock time of the refresh
    * @param watermarkMillis event time the counts are as of
@@ -38,41 +37,57 @@ public final class PairTable {
    */
   public PairTable(long version, long publishedAtMillis, long watermarkMillis, Measure sortMeasure,
       Map<String, HorizonTable> horizons, List<String> horizonNames) {
-    this(version, publishedAtMillis, watermarkMillis, sortMeasure, horizons, horizonNames, null, null);
+    this(version, publishedAtMillis, watermarkMillis, sortMeasure, ListRows.join(horizons), horizonNames, true);
   }
 
-  /**
-   * A table whose pairs also have rows: one row per pair, shared by every horizon (a refresh's tracked slots), so
-   * that a reader joins a pair's horizons by row instead of by item names ({@link #pairRows}).
-   *
-   * @param pairsByRow per horizon (every key of {@code horizons}), its pairs by row, null where the pair is absent
-   *     from that horizon; all of one length. Taken over, not copied: the caller must not change them.
-   * @param rowOrder per horizon, the rows of {@link #pairs} in its order. Taken over, not copied.
-   */
-  public PairTable(long version, long publishedAtMillis, long watermarkMillis, Measure sortMeasure,
-      Map<String, HorizonTable> horizons, List<String> horizonNames, Map<String, PairStats[]> pairsByRow,
-      Map<String, int[]> rowOrder) {
+  private PairTable(long version, long publishedAtMillis, long watermarkMillis, Measure sortMeasure,
+      Map<String, HorizonTable> horizons, List<String> horizonNames, boolean withRows) {
     this.version = version;
     this.publishedAtMillis = publishedAtMillis;
     this.watermarkMillis = watermarkMillis;
     this.sortMeasure = sortMeasure;
     this.horizons = Map.copyOf(horizons);
     this.horizonNames = List.copyOf(horizonNames);
-    this.pairsByRow = pairsByRow == null ? null : Map.copyOf(pairsByRow);
-    this.rowOrder = rowOrder == null ? null : Map.copyOf(rowOrder);
+    for (HorizonTable horizon : this.horizons.values()) {
+      if (!horizon.hasRows()) {
+        throw new IllegalArgumentException("horizon '" + horizon.name() + "' has no rows");
+      }
+    }
   }
 
   /**
-   * The rows of a horizon's pairs, if this table has them: {@code rows().get(r)} is the pair of row r in the
-   * horizon (null when absent there; the same r is the same pair in every horizon), and {@code order()[i]} is
-   * the row of {@code pairs(horizon).get(i)}. A copy of the order; the list is a read-only view.
+   * A refresh's table: horizons read by row ({@link HorizonTable#ofRows}), every horizon with the same rows (the
+   * tracked slots), so that a reader joins a pair's horizons by row.
+   */
+  public static PairTable ofRows(long version, long publishedAtMillis, long watermarkMillis, Measure sortMeasure,
+      Map<String, HorizonTable> horizons, List<String> horizonNames) {
+    return new PairTable(version, publishedAtMillis, watermarkMillis, sortMeasure, horizons, horizonNames, true);
+  }
+
+  /**
+   * The rows of a horizon's pairs: {@code rows().get(r)} is the pair of row r in the horizon (null when absent
+   * there; the same r is the same pair in every horizon), and {@code order()[i]} is the row of
+   * {@code pairs(horizon).get(i)}. Reading the list computes the statistics it returns; the order sorts the
+   * horizon. Empty for an unknown horizon.
    */
   public Optional<PairRows> pairRows(String horizon) {
-    if (pairsByRow == null || !pairsByRow.containsKey(horizon)) {
+    HorizonTable table = horizons.get(horizon);
+    if (table == null) {
       return Optional.empty();
     }
-    return Optional.of(new PairRows(Collections.unmodifiableList(Arrays.asList(pairsByRow.get(horizon))),
-        rowOrder.get(horizon).clone()));
+    List<PairStats> rows = new java.util.AbstractList<>() {
+      @Override
+      public PairStats get(int index) {
+        java.util.Objects.checkIndex(index, table.rowCount());
+        return table.row(index);
+      }
+
+      @Override
+      public int size() {
+        return table.rowCount();
+      }
+    };
+    return Optional.of(new PairRows(rows, table.order()));
   }
 
   /**
@@ -132,12 +147,12 @@ public final class PairTable {
 
   /** The pair {a, b} in a horizon, if tracked. */
   public Optional<PairStats> pair(String itemA, String itemB, String horizon) {
-    for (PairStats stats : neighbours(itemA, horizon)) {
-      if (stats.other(itemA).equals(itemB)) {
-        return Optional.of(stats);
-      }
+    HorizonTable table = horizons.get(horizon);
+    if (table == null || itemA.equals(itemB)) {
+      return Optional.empty();
     }
-    return Optional.empty();
+    int row = table.rowOf(itemA, itemB);
+    return row < 0 ? Optional.empty() : Optional.ofNullable(table.row(row));
   }
 
   /** n_a of a tracked item in a horizon. */
@@ -148,6 +163,14 @@ public final class PairTable {
 
   /** Tracked pairs published (the same in every horizon). */
   public int pairCount() {
-    return horizonNames.isEmpty() ? 0 : pairs(horizonNames.get(0)).size();
+    if (horizonNames.isEmpty()) {
+      return 0;
+    }
+    HorizonTable first = horizons.get(horizonNames.get(0));
+    int count = 0;
+    for (int r = 0; r < first.rowCount(); r++) {
+      count += first.present(r) ? 1 : 0;
+    }
+    return count;
   }
 }

@@ -5,6 +5,11 @@ import java.util.ArrayList;
 import java.util.List;
 import java.util.Objects;
 import java.util.Set;
+import java.util.concurrent.ExecutorService;
+import java.util.concurrent.Executors;
+import java.util.concurrent.Semaphore;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicReference;
 import org.pairpulse.ops.product.evaluation.Evaluator;
 import org.pairpulse.ops.product.evaluation.NightlyRebuild;
 import org.pairpulse.ops.product.evaluation.Trial;
@@ -19,7 +24,6 @@ import org.pairpulse.sketch.engine.PairTables;
 import org.pairpulse.sketch.stats.Measure;
 import org.pairpulse.sketch.stats.MeasureSettings;
 import org.pairpulse.sketch.table.PairTable;
-import org.pairpulse.sketch.time.ManualClock;
 
 /**
  * A replay of baskets through the production parts on event time, without a broker: the engine
@@ -30,7 +34,7 @@ import org.pairpulse.sketch.time.ManualClock;
  * <ol>
  *   <li>If t reached a new refresh boundary b = ⌊t / refreshEvery⌋ · refreshEvery: the engine is advanced to b,
  *       a pair table is built (version + 1), floored, observed by the drift monitor with the alert clock at b
- *       (a {@link ManualClock} driven by the replay: dwell and cooldown run on event time), offered to the
+ *       (the boundary: dwell and cooldown run on event time), offered to the
  *       nightly rebuild, and summarised if a summary boundary was passed. A gap of several intervals without
  *       baskets gives one refresh, at the newest boundary.</li>
  *   <li>If the basket is sampled, it is evaluated against the newest table and the nightly one.</li>
@@ -38,6 +42,14 @@ import org.pairpulse.sketch.time.ManualClock;
  * </ol>
  * {@link #finish} refreshes once more at the boundary after the last basket. Everything depends only on the
  * baskets and the settings, so a replay is deterministic.
+ *
+ * <h2>Two threads</h2>
+ * A pipelined backtest ({@link #Backtest(BacktestSettings, Listener, MeterRegistry, Set, boolean)}) counts and
+ * builds tables on the feeding thread and hands what only reads them (a basket's evaluation against the table it
+ * would have met, the drift monitor's pass, the summaries, every listener call) to one reader thread, in the order a
+ * single thread would run them. The tables are immutable and the engine is not read there, so the result is the
+ * same, byte for byte ({@code ReadAheadTest}); the feeding thread may run ahead by at most
+ * {@value #TASKS_AHEAD} tasks. Listeners are then called on the reader thread (one thread, in order).
  *
  * <p>Not thread-safe: one thread feeds it.
  */
@@ -57,11 +69,17 @@ public final class Backtest {
     default void refreshCost(long tableNanos, long stepNanos) {}
   }
 
+  /** Reader tasks the feeding thread may be ahead by (each holds at most a basket or a table). */
+  static final int TASKS_AHEAD = 4096;
+
   private final BacktestSettings settings;
   private final Listener listener;
+  /** The reader thread of a pipelined backtest, or null (everything on the feeding thread). */
+  private final ExecutorService reader;
+  private final Semaphore ahead = new Semaphore(TASKS_AHEAD);
+  private final AtomicReference<Throwable> readerFailure = new AtomicReference<>();
   private final PairEngine engine;
   private final CohortFloor floor;
-  private final ManualClock alertClock = new ManualClock(0);
   private final DriftMonitor drift;
   private final Evaluator evaluator;
   private final NightlyRebuild nightly;
@@ -92,6 +110,20 @@ public final class Backtest {
    *     hidden item forms one of these pairs with a query item (the planted changes of a scenario)
    */
   public Backtest(BacktestSettings settings, Listener listener, MeterRegistry registry, Set<PairKey> focusPairs) {
+    this(settings, listener, registry, focusPairs, false);
+  }
+
+  /**
+   * @param pipelined whether what reads the tables runs on a reader thread of its own (see the class comment); the
+   *     same result either way
+   */
+  public Backtest(BacktestSettings settings, Listener listener, MeterRegistry registry, Set<PairKey> focusPairs,
+      boolean pipelined) {
+    this.reader = pipelined ? Executors.newSingleThreadExecutor(runnable -> {
+      Thread thread = new Thread(runnable, "pairpulse-backtest-reader");
+      thread.setDaemon(true);
+      return thread;
+    }) : null;
     this.settings = Objects.requireNonNull(settings, "settings");
     this.listener = listener != null ? listener : new Listener() {};
     this.engine = new PairEngine(settings.engine());
@@ -130,7 +162,9 @@ public final class Backtest {
       refreshAt(boundary, true);
     }
     if (evaluator != null) {
-      evaluator.evaluate(basket.id(), t, basket.items(), current, nightly.current());
+      FlooredTable incremental = current;
+      FlooredTable nightlyTable = nightly.current();
+      read(() -> evaluator.evaluate(basket.id(), t, basket.items(), incremental, nightlyTable));
     }
     engine.addBasket(t, basket.items());
     baskets++;
@@ -142,23 +176,79 @@ public final class Backtest {
     long started = System.nanoTime();
     lastBoundary = boundary;
     engine.advanceTo(boundary);
-    alertClock.set(boundary);
     PairTable table = engine.refresh(new PairTables.Options(++version, boundary, MeasureSettings.defaults(),
         Measure.SHRUNK_LIFT, 0.0));
     long tableNanos = System.nanoTime() - started;
-    current = FlooredTable.of(table, floor);
-    List<AlertEvent> events = drift.observe(current, alertClock.millis());
-    alerts.addAll(events);
+    FlooredTable floored = FlooredTable.of(table, floor);
+    current = floored;
     if (offerNightly) {
-      nightly.offer(boundary, current);
+      nightly.offer(boundary, floored);
     }
     long summaryPeriod = Math.floorDiv(boundary, settings.summaryEveryMillis());
-    if (summaryPeriod > lastSummaryPeriod) {
+    boolean summarise = summaryPeriod > lastSummaryPeriod;
+    if (summarise) {
       lastSummaryPeriod = summaryPeriod;
-      summaries.add(TableSummary.of(current, boundary, settings.summaryTop()));
     }
-    listener.refreshCost(tableNanos, System.nanoTime() - started);
-    listener.refreshed(boundary, table, current, events);
+    long fedNanos = System.nanoTime() - started;
+    read(() -> {
+      long readStarted = System.nanoTime();
+      // the alert clock is the boundary: dwell and cooldown run on event time
+      List<AlertEvent> events = drift.observe(floored, boundary);
+      alerts.addAll(events);
+      if (summarise) {
+        summaries.add(TableSummary.of(floored, boundary, settings.summaryTop()));
+      }
+      listener.refreshCost(tableNanos, fedNanos + System.nanoTime() - readStarted);
+      listener.refreshed(boundary, table, floored, events);
+    });
+  }
+
+  /** Runs {@code task} on the reader thread after the tasks before it, or here when not pipelined. */
+  private void read(Runnable task) {
+    if (reader == null) {
+      task.run();
+      return;
+    }
+    rethrowReaderFailure();
+    ahead.acquireUninterruptibly();
+    reader.execute(() -> {
+      try {
+        if (readerFailure.get() == null) {
+          task.run();
+        }
+      } catch (RuntimeException | Error e) {
+        readerFailure.compareAndSet(null, e);
+      } finally {
+        ahead.release();
+      }
+    });
+  }
+
+  /** Waits for the reader thread's tasks (a pipelined backtest) and throws what one of them threw. */
+  private void drainReader() {
+    if (reader == null) {
+      return;
+    }
+    reader.shutdown();
+    try {
+      while (!reader.awaitTermination(1, TimeUnit.SECONDS)) {
+        // keeps waiting: the tasks are bounded
+      }
+    } catch (InterruptedException e) {
+      Thread.currentThread().interrupt();
+      throw new IllegalStateException("interrupted while the backtest's reader finished", e);
+    }
+    rethrowReaderFailure();
+  }
+
+  private void rethrowReaderFailure() {
+    Throwable failure = readerFailure.get();
+    if (failure instanceof RuntimeException e) {
+      throw e;
+    }
+    if (failure instanceof Error e) {
+      throw e;
+    }
   }
 
   /** Refreshes at the boundary after the last basket and returns the result. */
@@ -169,10 +259,13 @@ public final class Backtest {
         long end = Math.floorDiv(lastEventMillis, settings.refreshEveryMillis()) * settings.refreshEveryMillis()
             + settings.refreshEveryMillis();
         refreshAt(end, false); // no basket follows: the nightly baseline has nothing left to answer
+        drainReader();
         TableSummary last = summaries.get(summaries.size() - 1);
         if (last.atMillis() != end) {
           summaries.add(TableSummary.of(current, end, settings.summaryTop()));
         }
+      } else {
+        drainReader();
       }
     }
     return new BacktestResult(settings, baskets, baskets == 0 ? 0 : firstEventMillis,

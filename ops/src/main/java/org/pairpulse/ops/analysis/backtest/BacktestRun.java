@@ -52,7 +52,9 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
 
   /**
    * Replays {@code file}; {@code readAhead}: the file is read and decoded on a second thread
-   * ({@link ReplaySource#readAhead}; the same baskets in the same order, so the same result), else on the caller's.
+   * ({@link ReplaySource#readAhead}; the same baskets in the same order) and what reads the tables (evaluation, drift,
+   * summaries) runs on a third ({@link Backtest}, pipelined), so the same result on more cores; else all on the
+   * caller's thread.
    */
   public static BacktestRun run(Path file, BacktestSettings settings, ScenarioGroundTruth truth, ReadProgress progress,
       Backtest.Listener listener, MeterRegistry registry, boolean readAhead) throws IOException {
@@ -64,7 +66,7 @@ public record BacktestRun(String inputName, FileSource.Result input, BacktestRes
         }
       }
     }
-    Backtest backtest = new Backtest(settings, listener, registry, focus);
+    Backtest backtest = new Backtest(settings, listener, registry, focus, readAhead);
     ReplaySource source = new ReplaySource(settings.limits(), settings.front());
     FileSource.Result input = readAhead ? source.readAhead(file, progress, backtest::accept)
         : source.read(file, progress, backtest::accept);

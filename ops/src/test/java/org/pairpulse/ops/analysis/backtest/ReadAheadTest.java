@@ -21,9 +21,10 @@ import org.pairpulse.ops.tools.scenario.ScenarioFiles;
 import org.pairpulse.ops.tools.scenario.ScenarioGenerator;
 
 /**
- * A replay that reads and decodes on a second thread ({@link ReplaySource#readAhead}) against one that reads on its
- * own thread: the same baskets in the same order and a byte-identical {@code backtest.json}, for line items (CSV)
- * and whole baskets (JSON lines); an exception of the replaying side stops the reading one and reaches the caller.
+ * A replay that reads and decodes on a second thread ({@link ReplaySource#readAhead}) and reads its tables on a third
+ * (a pipelined {@link Backtest}: evaluation, drift, summaries) against one that does everything on its own thread: the
+ * same baskets in the same order and a byte-identical {@code backtest.json}, for line items (CSV) and whole baskets
+ * (JSON lines); an exception of the replaying side stops the reading one and reaches the caller.
  */
 class ReadAheadTest {
   @TempDir
@@ -78,5 +79,29 @@ class ReadAheadTest {
             }));
     assertEquals("stop at " + failAt, thrown.getMessage());
     assertEquals(failAt, seen.get(), "nothing reaches the sink after its exception");
+  }
+
+  @org.junit.jupiter.api.Test
+  void anExceptionOnTheTableReadingThreadReachesTheCaller() throws IOException {
+    BacktestSettings settings = BacktestSettings.defaults().withEngine(BacktestTest.SMALL)
+        .withRefreshEveryMillis(BacktestTest.MINUTE * 30);
+    AtomicInteger refreshes = new AtomicInteger();
+    Backtest.Listener failing = new Backtest.Listener() {
+      @Override
+      public void refreshed(long atMillis, org.pairpulse.sketch.table.PairTable table,
+          org.pairpulse.serve.floor.FlooredTable floored, List<org.pairpulse.serve.drift.AlertEvent> events) {
+        if (refreshes.incrementAndGet() == 3) {
+          throw new IllegalStateException("reader stops at 3");
+        }
+      }
+    };
+    Backtest backtest = new Backtest(settings, failing, null, java.util.Set.of(), true);
+    IllegalStateException thrown = assertThrows(IllegalStateException.class, () -> {
+      new ReplaySource(settings.limits(), settings.front()).read(directory.resolve(ScenarioFiles.CSV_FILE), null,
+          backtest::accept);
+      backtest.finish();
+    });
+    assertEquals("reader stops at 3", thrown.getMessage());
+    assertEquals(3, refreshes.get(), "no table is read after the exception");
   }
 }
