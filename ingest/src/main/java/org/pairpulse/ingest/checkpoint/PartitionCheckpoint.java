@@ -7,7 +7,7 @@ import java.util.Map;
 import java.util.Objects;
 import java.util.SortedMap;
 import java.util.TreeMap;
-import java.util.zip.CRC32C;
+import org.pairpulse.sketch.snapshot.PayloadCheck;
 import org.pairpulse.sketch.snapshot.SnapshotFormatException;
 
 /**
@@ -91,9 +91,7 @@ public record PartitionCheckpoint(String topic, int partition, long nextOffset, 
       out.putInt(name.length).put(name).putInt(e.getValue().length).put(e.getValue());
     }
     byte[] bytes = out.array();
-    CRC32C crc = new CRC32C();
-    crc.update(bytes, HEADER_BYTES, payload);
-    ByteBuffer.wrap(bytes).putInt(OFFSET_CRC, (int) crc.getValue());
+    ByteBuffer.wrap(bytes).putInt(OFFSET_CRC, PayloadCheck.crcAfter(bytes, HEADER_BYTES));
     return bytes;
   }
 
@@ -111,16 +109,7 @@ public record PartitionCheckpoint(String topic, int partition, long nextOffset, 
       throw new SnapshotFormatException("partition checkpoint format " + version
           + " is not supported; this build reads " + FORMAT_VERSION_1 + " and " + FORMAT_VERSION);
     }
-    long payload = in.getLong(OFFSET_PAYLOAD_BYTES);
-    if (payload != bytes.length - HEADER_BYTES) {
-      throw new SnapshotFormatException("partition checkpoint truncated or padded: header says " + payload
-          + " payload bytes, found " + (bytes.length - HEADER_BYTES));
-    }
-    CRC32C crc = new CRC32C();
-    crc.update(bytes, HEADER_BYTES, bytes.length - HEADER_BYTES);
-    if ((int) crc.getValue() != in.getInt(OFFSET_CRC)) {
-      throw new SnapshotFormatException("partition checkpoint corrupt: checksum mismatch");
-    }
+    PayloadCheck.check("partition checkpoint", bytes, HEADER_BYTES, in.getLong(OFFSET_PAYLOAD_BYTES), in.getInt(OFFSET_CRC));
     try {
       in.position(HEADER_BYTES);
       byte[] topicBytes = new byte[in.getInt()];

@@ -14,6 +14,7 @@ import java.util.zip.CRC32C;
 import org.pairpulse.sketch.cms.UpdateRule;
 import org.pairpulse.sketch.horizon.HorizonKind;
 import org.pairpulse.sketch.horizon.HorizonSpec;
+import org.pairpulse.sketch.snapshot.PayloadCheck;
 import org.pairpulse.sketch.snapshot.SnapshotFormatException;
 import org.pairpulse.sketch.stats.SizeClasses;
 
@@ -161,18 +162,7 @@ public final class Snapshots {
     boolean classed = version != FORMAT_VERSION_1;
     boolean weightedSlots = version >= FORMAT_VERSION_3;
     boolean ranked = version >= FORMAT_VERSION;
-    long payloadBytes = header.getLong(OFFSET_PAYLOAD_BYTES);
-    if (payloadBytes != snapshot.length - HEADER_BYTES) {
-      throw new SnapshotFormatException("snapshot truncated or padded: header says " + payloadBytes
-          + " payload bytes, found " + (snapshot.length - HEADER_BYTES));
-    }
-    CRC32C crc = new CRC32C();
-    crc.update(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES);
-    int expected = header.getInt(OFFSET_CRC);
-    if ((int) crc.getValue() != expected) {
-      throw new SnapshotFormatException(String.format("snapshot corrupt: checksum 0x%08X, header says 0x%08X",
-          (int) crc.getValue(), expected));
-    }
+    PayloadCheck.check("snapshot", snapshot, HEADER_BYTES, header.getLong(OFFSET_PAYLOAD_BYTES), header.getInt(OFFSET_CRC));
     try {
       DataInputStream in = new DataInputStream(new ByteArrayInputStream(snapshot, HEADER_BYTES, snapshot.length - HEADER_BYTES));
       PairEngine engine = new PairEngine(readConfig(in, version));
