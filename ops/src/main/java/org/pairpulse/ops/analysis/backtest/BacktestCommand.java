@@ -124,17 +124,18 @@ public final class BacktestCommand implements Callable<Integer> {
           err.flush();
         });
       }
+      BacktestSettings.Builder options = settings.toBuilder();
       if (refreshEvery != null) {
-        settings = settings.withRefreshEveryMillis(refreshEvery.toMillis());
+        options.refreshEveryMillis(refreshEvery.toMillis());
       }
       if (summaryEvery != null) {
-        settings = settings.withSummaryEveryMillis(summaryEvery.toMillis());
+        options.summaryEveryMillis(summaryEvery.toMillis());
       }
       if (summaryTop != null) {
-        settings = settings.withSummaryTop(summaryTop);
+        options.summaryTop(summaryTop);
       }
       if (floor != null) {
-        settings = settings.withCohortFloor(floor);
+        options.cohortFloor(floor);
       }
       EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
       if (evalShare != null) {
@@ -155,7 +156,7 @@ public final class BacktestCommand implements Callable<Integer> {
       if (seed != null) {
         evaluation = evaluation.withSeed(seed);
       }
-      return settings.withEvaluation(evaluation.share() > 0 ? evaluation : null);
+      return options.evaluation(evaluation.share() > 0 ? evaluation : null).build();
     } catch (IllegalArgumentException e) {
       throw new ParameterException(spec.commandLine(), e.getMessage(), e, null, null);
     }

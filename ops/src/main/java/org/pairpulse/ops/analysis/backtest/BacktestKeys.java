@@ -31,14 +31,17 @@ public final class BacktestKeys {
 
   private BacktestKeys() {}
 
-  /** {@code base} with the keys of {@code given} that are backtest keys applied (others are ignored). */
-  static BacktestSettings apply(BacktestSettings base, Map<String, ?> given) {
+  /**
+   * Sets on {@code settings} the backtest keys of {@code given} (others are ignored); a key not given sets
+   * {@code base}'s value.
+   */
+  static void apply(BacktestSettings.Builder settings, BacktestSettings base, Map<String, ?> given) {
     Map<String, Object> ours = new LinkedHashMap<>(given);
     ours.keySet().retainAll(DEFINITION.names());
     Map<String, Object> v = DEFINITION.parse(ours);
     v.keySet().retainAll(ours.keySet());
-    return base.withRefreshEveryMillis((Long) v.getOrDefault(REFRESH_EVERY_MS, base.refreshEveryMillis()))
-        .withSummaryEveryMillis((Long) v.getOrDefault(SUMMARY_EVERY_MS, base.summaryEveryMillis()))
-        .withSummaryTop((Integer) v.getOrDefault(SUMMARY_TOP, base.summaryTop()));
+    settings.refreshEveryMillis((Long) v.getOrDefault(REFRESH_EVERY_MS, base.refreshEveryMillis()))
+        .summaryEveryMillis((Long) v.getOrDefault(SUMMARY_EVERY_MS, base.summaryEveryMillis()))
+        .summaryTop((Integer) v.getOrDefault(SUMMARY_TOP, base.summaryTop()));
   }
 }

@@ -79,9 +79,19 @@ public record BacktestSettings(EngineConfig engine, DriftSettings drift, double 
 
   /** The defaults of the table above. */
   public static BacktestSettings defaults() {
-    return new BacktestSettings(EngineConfig.defaults(), DriftSettings.defaults(), CohortFloor.DEFAULT_MIN_BASKETS,
-        DEFAULT_REFRESH_EVERY_MILLIS, DEFAULT_SUMMARY_EVERY_MILLIS, DEFAULT_SUMMARY_TOP, EvaluationSettings.defaults(),
-        FrontSettings.defaults(), replayLimits());
+    return builder().build();
+  }
+
+  /** A builder holding {@link #defaults()}. */
+  public static Builder builder() {
+    return new Builder();
+  }
+
+  /** A builder holding these settings. */
+  public Builder toBuilder() {
+    return new Builder().engine(engine).drift(drift).cohortFloor(cohortFloor).refreshEveryMillis(refreshEveryMillis)
+        .summaryEveryMillis(summaryEveryMillis).summaryTop(summaryTop).evaluation(evaluation).front(front)
+        .limits(limits);
   }
 
   /**
@@ -100,48 +110,76 @@ public record BacktestSettings(EngineConfig engine, DriftSettings drift, double 
     return new CohortFloor(cohortFloor, engine.horizons());
   }
 
-  public BacktestSettings withEngine(EngineConfig value) {
-    return new BacktestSettings(value, drift, cohortFloor, refreshEveryMillis, summaryEveryMillis, summaryTop, evaluation,
-        front, limits);
-  }
+  /** Settings that start at the defaults; {@link #build()} checks them together. */
+  public static final class Builder {
+    private EngineConfig engine = EngineConfig.defaults();
+    private DriftSettings drift = DriftSettings.defaults();
+    private double cohortFloor = CohortFloor.DEFAULT_MIN_BASKETS;
+    private long refreshEveryMillis = DEFAULT_REFRESH_EVERY_MILLIS;
+    private long summaryEveryMillis = DEFAULT_SUMMARY_EVERY_MILLIS;
+    private int summaryTop = DEFAULT_SUMMARY_TOP;
+    private EvaluationSettings evaluation = EvaluationSettings.defaults();
+    private FrontSettings front = FrontSettings.defaults();
+    private EventLimits limits = replayLimits();
 
-  public BacktestSettings withDrift(DriftSettings value) {
-    return new BacktestSettings(engine, value, cohortFloor, refreshEveryMillis, summaryEveryMillis, summaryTop, evaluation,
-        front, limits);
-  }
+    private Builder() {}
 
-  public BacktestSettings withCohortFloor(double value) {
-    return new BacktestSettings(engine, drift, value, refreshEveryMillis, summaryEveryMillis, summaryTop, evaluation,
-        front, limits);
-  }
+    public Builder engine(EngineConfig value) {
+      this.engine = value;
+      return this;
+    }
 
-  public BacktestSettings withRefreshEveryMillis(long value) {
-    return new BacktestSettings(engine, drift, cohortFloor, value, Math.max(value, summaryEveryMillis), summaryTop,
-        evaluation, front, limits);
-  }
+    public Builder drift(DriftSettings value) {
+      this.drift = value;
+      return this;
+    }
 
-  public BacktestSettings withSummaryEveryMillis(long value) {
-    return new BacktestSettings(engine, drift, cohortFloor, refreshEveryMillis, value, summaryTop, evaluation, front,
-        limits);
-  }
+    /** The cohort floor in distinct baskets. */
+    public Builder cohortFloor(double value) {
+      this.cohortFloor = value;
+      return this;
+    }
 
-  public BacktestSettings withSummaryTop(int value) {
-    return new BacktestSettings(engine, drift, cohortFloor, refreshEveryMillis, summaryEveryMillis, value, evaluation,
-        front, limits);
-  }
+    /**
+     * Event time between refreshes; raises the summary interval set so far to at least this value (a summary
+     * interval set afterwards is taken as given).
+     */
+    public Builder refreshEveryMillis(long value) {
+      this.refreshEveryMillis = value;
+      this.summaryEveryMillis = Math.max(value, summaryEveryMillis);
+      return this;
+    }
 
-  public BacktestSettings withEvaluation(EvaluationSettings value) {
-    return new BacktestSettings(engine, drift, cohortFloor, refreshEveryMillis, summaryEveryMillis, summaryTop, value,
-        front, limits);
-  }
+    public Builder summaryEveryMillis(long value) {
+      this.summaryEveryMillis = value;
+      return this;
+    }
 
-  public BacktestSettings withFront(FrontSettings value) {
-    return new BacktestSettings(engine, drift, cohortFloor, refreshEveryMillis, summaryEveryMillis, summaryTop, evaluation,
-        value, limits);
-  }
+    public Builder summaryTop(int value) {
+      this.summaryTop = value;
+      return this;
+    }
 
-  public BacktestSettings withLimits(EventLimits value) {
-    return new BacktestSettings(engine, drift, cohortFloor, refreshEveryMillis, summaryEveryMillis, summaryTop, evaluation,
-        front, value);
+    /** The evaluation settings; null: no evaluation. */
+    public Builder evaluation(EvaluationSettings value) {
+      this.evaluation = value;
+      return this;
+    }
+
+    public Builder front(FrontSettings value) {
+      this.front = value;
+      return this;
+    }
+
+    public Builder limits(EventLimits value) {
+      this.limits = value;
+      return this;
+    }
+
+    /** @throws IllegalArgumentException when a setting is out of its range or they disagree (see the record's checks) */
+    public BacktestSettings build() {
+      return new BacktestSettings(engine, drift, cohortFloor, refreshEveryMillis, summaryEveryMillis, summaryTop,
+          evaluation, front, limits);
+    }
   }
 }

@@ -153,32 +153,32 @@ public final class SettingsFile {
     if (!problems.isEmpty()) {
       throw new IllegalArgumentException(String.join("; ", problems));
     }
-    BacktestSettings settings = base;
+    BacktestSettings.Builder settings = base.toBuilder();
     if (!serve.isEmpty()) {
       ServeConfig config = ServeConfig.from(serve);
-      settings = settings.withDrift(config.driftSettings());
+      settings.drift(config.driftSettings());
       if (serve.containsKey(ServeConfig.COHORT_FLOOR)) {
-        settings = settings.withCohortFloor(config.doubleValue(ServeConfig.COHORT_FLOOR));
+        settings.cohortFloor(config.doubleValue(ServeConfig.COHORT_FLOOR));
       }
     }
     if (!ingest.isEmpty()) {
-      settings = withIngest(settings, ingest);
+      applyIngest(settings, base.limits(), ingest);
     }
-    settings = settings.withEngine(EngineKeys.apply(settings.engine(), used));
-    settings = BacktestKeys.apply(settings, used);
-    EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
-    return settings.withEvaluation(EvaluationKeys.apply(evaluation, EvaluationKeys.OFFLINE, used));
+    settings.engine(EngineKeys.apply(base.engine(), used));
+    BacktestKeys.apply(settings, base, used);
+    EvaluationSettings evaluation = base.evaluation() != null ? base.evaluation() : EvaluationSettings.defaults();
+    return settings.evaluation(EvaluationKeys.apply(evaluation, EvaluationKeys.OFFLINE, used)).build();
   }
 
   /** Ingest's front settings and event limits from its keys (the wall-clock limits stay off unless set). */
-  private static BacktestSettings withIngest(BacktestSettings settings, Map<String, Object> ingest) {
+  private static void applyIngest(BacktestSettings.Builder settings, EventLimits base, Map<String, Object> ingest) {
     Map<String, Object> props = new LinkedHashMap<>(ingest);
     props.put(IngestConfig.BOOTSTRAP_SERVERS, "unused:9092");
     props.put(IngestConfig.TOPICS, "unused");
     props.put(IngestConfig.CHECKPOINT_STORE, "none");
     IngestConfig config = new IngestConfig(props);
-    EventLimits limits = config.eventLimits(settings.limits().clock());
-    return settings.withFront(config.frontSettings()).withLimits(new EventLimits(limits.maxBasketItems(),
+    EventLimits limits = config.eventLimits(base.clock());
+    settings.front(config.frontSettings()).limits(new EventLimits(limits.maxBasketItems(),
         limits.maxIdChars(), ingest.containsKey(IngestConfig.MAX_FUTURE_MS) ? limits.maxFutureMillis() : Long.MAX_VALUE,
         ingest.containsKey(IngestConfig.MAX_PAST_MS) ? limits.maxPastMillis() : Long.MAX_VALUE,
         limits.maxAttributes(), limits.clock()));

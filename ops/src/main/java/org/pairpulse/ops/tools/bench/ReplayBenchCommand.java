@@ -81,8 +81,8 @@ public final class ReplayBenchCommand implements Callable<Integer> {
     try {
       BacktestSettings base = SettingsFile.readOption(config, BacktestSettings.defaults(), bench.err(),
           "bench replay");
-      fine = base.withRefreshEveryMillis(refreshEvery.toMillis());
-      coarse = base.withRefreshEveryMillis(COARSE_REFRESH.toMillis());
+      fine = base.toBuilder().refreshEveryMillis(refreshEvery.toMillis()).build();
+      coarse = base.toBuilder().refreshEveryMillis(COARSE_REFRESH.toMillis()).build();
       scenario = scenarioOptions.scenario(days);
     } catch (IllegalArgumentException e) {
       throw bench.usage(e.getMessage(), e);

@@ -134,9 +134,9 @@ public final class ShiftBenchCommand implements Callable<Integer> {
     BacktestSettings settings = benchmarkSettings();
     try {
       settings = SettingsFile.readOption(config, settings, bench.err(), "bench shift");
-      settings = settings.withRefreshEveryMillis(refresh.millis());
       EvaluationSettings evaluation = settings.evaluation() != null ? settings.evaluation() : EvaluationSettings.defaults();
-      return settings.withEvaluation(evalShare > 0 ? evaluation.withShare(evalShare).withK(10) : null);
+      return settings.toBuilder().refreshEveryMillis(refresh.millis())
+          .evaluation(evalShare > 0 ? evaluation.withShare(evalShare).withK(10) : null).build();
     } catch (IllegalArgumentException e) {
       throw bench.usage(e.getMessage(), e);
     }
@@ -144,7 +144,7 @@ public final class ShiftBenchCommand implements Callable<Integer> {
 
   /** The benchmark's settings before options: the backtest's defaults (production engine and drift settings). */
   static BacktestSettings benchmarkSettings() {
-    return BacktestSettings.defaults().withSummaryEveryMillis(Duration.ofDays(1).toMillis());
+    return BacktestSettings.builder().summaryEveryMillis(Duration.ofDays(1).toMillis()).build();
   }
 
   /** The RESULT line of a run with ground truth and evaluation. */

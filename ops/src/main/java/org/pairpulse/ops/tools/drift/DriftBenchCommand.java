@@ -210,10 +210,10 @@ public final class DriftBenchCommand implements Callable<Integer> {
   }
 
   BacktestSettings settings() throws IOException {
-    BacktestSettings settings = BacktestSettings.defaults().withSummaryEveryMillis(BacktestSettings.DAY_MILLIS);
+    BacktestSettings settings = BacktestSettings.builder().summaryEveryMillis(BacktestSettings.DAY_MILLIS).build();
     try {
       settings = SettingsFile.readOption(config, settings, bench.err(), "bench drift");
-      return settings.withRefreshEveryMillis(refresh.millis()).withEvaluation(null);
+      return settings.toBuilder().refreshEveryMillis(refresh.millis()).evaluation(null).build();
     } catch (IllegalArgumentException e) {
       throw bench.usage(e.getMessage(), e);
     }

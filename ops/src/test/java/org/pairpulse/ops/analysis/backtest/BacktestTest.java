@@ -91,9 +91,8 @@ class BacktestTest {
   void aBasketIsTestedBeforeItTrains() {
     // the association ranking: its answers come from pairs only, so a rank > 0 would show that the table knew the
     // pair (the posterior ranking also answers from popularity: x would be found for {z} without the pair)
-    BacktestSettings settings = BacktestSettings.defaults().withEngine(SMALL).withCohortFloor(0)
-        .withRefreshEveryMillis(MINUTE)
-        .withEvaluation(EvaluationSettings.defaults().withShare(1.0).withRanking(SuggestionRanking.ASSOCIATION));
+    BacktestSettings settings = BacktestSettings.builder().engine(SMALL).cohortFloor(0).refreshEveryMillis(MINUTE)
+        .evaluation(EvaluationSettings.defaults().withShare(1.0).withRanking(SuggestionRanking.ASSOCIATION)).build();
     List<Trial> trials = new ArrayList<>();
     Backtest backtest = new Backtest(settings, new Backtest.Listener() {
       @Override
@@ -133,8 +132,8 @@ class BacktestTest {
 
   @Test
   void theNightlyTableChangesOncePerSimulatedDay() throws IOException {
-    BacktestSettings settings = BacktestSettings.defaults().withEngine(SMALL).withCohortFloor(10)
-        .withRefreshEveryMillis(60 * MINUTE).withEvaluation(EvaluationSettings.defaults().withShare(0.05));
+    BacktestSettings settings = BacktestSettings.builder().engine(SMALL).cohortFloor(10)
+        .refreshEveryMillis(60 * MINUTE).evaluation(EvaluationSettings.defaults().withShare(0.05)).build();
     Map<Long, Set<Long>> nightlyVersionsByDay = new TreeMap<>();
     Map<Long, Set<Long>> incrementalVersionsByDay = new TreeMap<>();
     Backtest.Listener listener = new Backtest.Listener() {

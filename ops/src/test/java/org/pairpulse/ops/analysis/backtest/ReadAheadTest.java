@@ -54,8 +54,8 @@ class ReadAheadTest {
   @ParameterizedTest
   @ValueSource(strings = {ScenarioFiles.CSV_FILE, ScenarioFiles.JSON_LINES_FILE})
   void aBacktestWritesByteIdenticalJson(String fileName) throws IOException {
-    BacktestSettings settings = BacktestSettings.defaults().withEngine(BacktestTest.SMALL)
-        .withRefreshEveryMillis(BacktestTest.MINUTE * 30).withCohortFloor(10);
+    BacktestSettings settings = BacktestSettings.builder().engine(BacktestTest.SMALL)
+        .refreshEveryMillis(BacktestTest.MINUTE * 30).cohortFloor(10).build();
     List<byte[]> outputs = new ArrayList<>();
     for (boolean readAhead : new boolean[] {false, true}) {
       BacktestRun run = BacktestRun.run(directory.resolve(fileName), settings, null, null, null, null, readAhead);
@@ -83,8 +83,8 @@ class ReadAheadTest {
 
   @org.junit.jupiter.api.Test
   void anExceptionOnTheTableReadingThreadReachesTheCaller() throws IOException {
-    BacktestSettings settings = BacktestSettings.defaults().withEngine(BacktestTest.SMALL)
-        .withRefreshEveryMillis(BacktestTest.MINUTE * 30);
+    BacktestSettings settings = BacktestSettings.builder().engine(BacktestTest.SMALL)
+        .refreshEveryMillis(BacktestTest.MINUTE * 30).build();
     AtomicInteger refreshes = new AtomicInteger();
     Backtest.Listener failing = new Backtest.Listener() {
       @Override

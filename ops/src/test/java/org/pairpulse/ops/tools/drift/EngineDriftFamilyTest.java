@@ -32,10 +32,10 @@ class EngineDriftFamilyTest {
   @Test
   void findsEachShapeInItsDirectionAndNothingElse() {
     DriftStream stream = DriftFamily.stream(DriftFamily.DEFAULT_SEED, TrafficLevel.QUIET, DriftFamily.DEFAULT_DAYS);
-    BacktestSettings settings = BacktestSettings.defaults()
-        .withEngine(EngineConfig.builder().trackedPairCapacity(4096).trackedItemCapacity(4096).build())
-        .withRefreshEveryMillis(Duration.ofMinutes(30).toMillis())
-        .withSummaryEveryMillis(BacktestSettings.DAY_MILLIS).withEvaluation(null);
+    BacktestSettings settings = BacktestSettings.builder()
+        .engine(EngineConfig.builder().trackedPairCapacity(4096).trackedItemCapacity(4096).build())
+        .refreshEveryMillis(Duration.ofMinutes(30).toMillis())
+        .summaryEveryMillis(BacktestSettings.DAY_MILLIS).evaluation(null).build();
     Backtest backtest = new Backtest(settings, null, null);
     for (ReplayBasket basket : (Iterable<ReplayBasket>) stream::iterator) {
       backtest.accept(basket);
