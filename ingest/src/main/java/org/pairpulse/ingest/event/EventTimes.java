@@ -19,14 +19,10 @@ public final class EventTimes {
     if (n < 10) {
       throw bad(text, "too short for a date");
     }
-    int year = digits(text, 0, 4);
-    expect(text, 4, '-');
-    int month = digits(text, 5, 2);
-    expect(text, 7, '-');
+    int year = digitsThen(text, 0, 4, '-');
+    int month = digitsThen(text, 5, 2, '-');
     int day = digits(text, 8, 2);
-    if (month < 1 || month > 12 || day < 1 || day > daysInMonth(year, month)) {
-      throw bad(text, "no such date");
-    }
+    require(month >= 1 && month <= 12 && day >= 1 && day <= daysInMonth(year, month), text, "no such date");
     long days = daysFromCivil(year, month, day);
     if (n == 10) {
       return days * 86_400_000L;
@@ -38,14 +34,10 @@ public final class EventTimes {
     if (n < 20) {
       throw bad(text, "too short for a date-time with offset");
     }
-    int hour = digits(text, 11, 2);
-    expect(text, 13, ':');
-    int minute = digits(text, 14, 2);
-    expect(text, 16, ':');
+    int hour = digitsThen(text, 11, 2, ':');
+    int minute = digitsThen(text, 14, 2, ':');
     int second = digits(text, 17, 2);
-    if (hour > 23 || minute > 59 || second > 59) {
-      throw bad(text, "no such time of day");
-    }
+    require(hour <= 23 && minute <= 59 && second <= 59, text, "no such time of day");
     int i = 19;
     int millis = 0;
     if (text.charAt(i) == '.') {
@@ -77,12 +69,9 @@ public final class EventTimes {
       if (i + 6 != n) {
         throw bad(text, "offset must be ±hh:mm");
       }
-      int oh = digits(text, i + 1, 2);
-      expect(text, i + 3, ':');
+      int oh = digitsThen(text, i + 1, 2, ':');
       int om = digits(text, i + 4, 2);
-      if (oh > 23 || om > 59) {
-        throw bad(text, "no such offset");
-      }
+      require(oh <= 23 && om <= 59, text, "no such offset");
       offsetMinutes = (oh * 60 + om) * (zone == '-' ? -1 : 1);
       i += 6;
     } else {
@@ -93,6 +82,19 @@ public final class EventTimes {
     }
     long secondsOfDay = hour * 3600L + minute * 60L + second - offsetMinutes * 60L;
     return (days * 86_400L + secondsOfDay) * 1000L + millis;
+  }
+
+  /** {@code width} digits at {@code at}, followed by {@code separator}. */
+  private static int digitsThen(CharSequence text, int at, int width, char separator) {
+    int value = digits(text, at, width);
+    expect(text, at + width, separator);
+    return value;
+  }
+
+  private static void require(boolean holds, CharSequence text, String why) {
+    if (!holds) {
+      throw bad(text, why);
+    }
   }
 
   /** Days since 1970-01-01 of a proleptic Gregorian date (Hinnant's days_from_civil). */

@@ -17,17 +17,7 @@ import org.pairpulse.ingest.worker.BasketBatch;
  * basket sink, or, when it cannot be used, to the dead-letter topic with its reason (undecodable, late, oversized
  * basket); a re-delivered basket is counted as a duplicate and dropped. Poll thread only.
  */
-final class RecordRouter {
-  private final EventDecoder decoder;
-  private final DeadLetters deadLetters;
-  private final IngestMetrics metrics;
-
-  RecordRouter(EventDecoder decoder, DeadLetters deadLetters, IngestMetrics metrics) {
-    this.decoder = decoder;
-    this.deadLetters = deadLetters;
-    this.metrics = metrics;
-  }
-
+record RecordRouter(EventDecoder decoder, DeadLetters deadLetters, IngestMetrics metrics) {
   /**
    * Routes {@code records} of one partition, in order, through {@code front} into {@code batch} (with attributes)
    * and then {@code tap} (without; null: none).

@@ -19,7 +19,6 @@ import java.util.TreeMap;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.common.TopicPartition;
 import org.junit.jupiter.api.extension.ExtendWith;
 import org.junit.jupiter.api.io.TempDir;
@@ -61,9 +60,7 @@ class CrashRestartTest {
     }
     Workload w = Workload.generate(seed, 3000);
     int firstPart = (int) (w.records.size() * 0.6);
-    try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
-      w.produce(producer, topic, 0, firstPart);
-    }
+    w.produce(broker, topic, 0, firstPart);
     Map<String, Object> props = TestIngest.withSegments(TestIngest.props(broker, topic, store));
     props.put(IngestConfig.INSTANCE_ID, "crashy");
     props.put(IngestConfig.CHECKPOINT_DIR, dir.resolve("checkpoints").toString());
@@ -101,9 +98,7 @@ class CrashRestartTest {
       child.waitFor(30, TimeUnit.SECONDS);
     }
     System.out.printf("killed the child at %d records%n", seen.get());
-    try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
-      w.produce(producer, topic, firstPart, w.records.size());
-    }
+    w.produce(broker, topic, firstPart, w.records.size());
     Map<TopicPartition, Long> ends = broker.endOffsets(topic);
     try (Ingestor restarted = new Ingestor(new IngestConfig(props), Workload.engineConfig(), new SimpleMeterRegistry(),
         EventClock.system()).start()) {

@@ -18,7 +18,6 @@ import java.util.Set;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.common.TopicPartition;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.extension.ExtendWith;
@@ -68,18 +67,14 @@ class GroupTest {
     broker.createTopic(topic, 4, Map.of());
     Workload w = Workload.generate(21, 2000);
     int half = w.records.size() / 2;
-    try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
-      w.produce(producer, topic, 0, half);
-    }
+    w.produce(broker, topic, 0, half);
     Map<String, Object> props = TestIngest.withSegments(TestIngest.props(broker, topic, "kafka"));
     try (Ingestor a = instance(props, "a")) {
       awaitAllCaughtUp(List.of(a), broker.endOffsets(topic), Duration.ofSeconds(120));
       try (Ingestor b = instance(props, "b")) {
         Await.until(Duration.ofSeconds(120), "the partitions to be shared", () -> a.assignment().size() == 2 && b.assignment().size() == 2,
             () -> "a=" + a.assignment() + " b=" + b.assignment());
-        try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
-          w.produce(producer, topic, half, w.records.size());
-        }
+        w.produce(broker, topic, half, w.records.size());
         awaitAllCaughtUp(List.of(a, b), broker.endOffsets(topic), Duration.ofSeconds(120));
         // A checkpoint whose commit races a rebalance (on a busy machine the cooperative second round can
         // overlap a's periodic checkpoint) is aborted and its partitions are restored again: a legitimate
@@ -108,9 +103,7 @@ class GroupTest {
     broker.createTopic(topic, 6, Map.of());
     Workload w = Workload.generate(31, 3000);
     int half = w.records.size() / 2;
-    try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
-      w.produce(producer, topic, 0, half);
-    }
+    w.produce(broker, topic, 0, half);
     Map<String, Object> props = TestIngest.withSegments(TestIngest.props(broker, topic, "kafka"));
     props.put(IngestConfig.CHECKPOINT_INTERVAL_BASKETS, "100");
     props.put("kafka.consumer.max.poll.records", "10");
@@ -144,9 +137,7 @@ class GroupTest {
         c.waitFor(30, TimeUnit.SECONDS);
       }
       System.out.printf("killed instance c after it handled %d records%n", cHandled.get());
-      try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
-        w.produce(producer, topic, half, w.records.size());
-      }
+      w.produce(broker, topic, half, w.records.size());
       awaitAllCaughtUp(List.of(a, b), broker.endOffsets(topic), Duration.ofSeconds(120));
       Set<TopicPartition> owned = new HashSet<>(a.assignment());
       owned.addAll(b.assignment());

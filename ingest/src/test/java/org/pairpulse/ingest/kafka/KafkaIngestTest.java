@@ -17,7 +17,6 @@ import java.util.Set;
 import java.util.concurrent.TimeUnit;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.header.Header;
 import org.junit.jupiter.api.Test;
@@ -43,9 +42,7 @@ class KafkaIngestTest {
     String topic = "basic";
     broker.createTopic(topic, 3, Map.of());
     Workload w = Workload.generate(11, 2000);
-    try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
-      w.produce(producer, topic, 0, w.records.size());
-    }
+    w.produce(broker, topic, 0, w.records.size());
     SimpleMeterRegistry registry = new SimpleMeterRegistry();
     Map<TopicPartition, Long> ends = broker.endOffsets(topic);
     try (Ingestor ingestor = new Ingestor(new IngestConfig(TestIngest.props(broker, topic, "kafka")), Workload.engineConfig(),

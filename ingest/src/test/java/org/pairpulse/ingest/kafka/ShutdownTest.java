@@ -9,7 +9,6 @@ import java.util.EnumMap;
 import java.util.List;
 import java.util.Map;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.common.TopicPartition;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.extension.ExtendWith;
@@ -34,9 +33,7 @@ class ShutdownTest {
     String topic = "shutdown";
     broker.createTopic(topic, 3, Map.of());
     Workload w = Workload.generate(41, 1000);
-    try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
-      w.produce(producer, topic, 0, w.records.size());
-    }
+    w.produce(broker, topic, 0, w.records.size());
     Map<TopicPartition, Long> ends = broker.endOffsets(topic);
     Map<String, Object> props = TestIngest.props(broker, topic, "kafka");
     // no checkpoint before the final one

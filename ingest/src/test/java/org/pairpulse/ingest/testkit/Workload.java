@@ -288,6 +288,13 @@ public final class Workload {
 
   // ---------------------------------------------------------------- producing and checking
 
+  /** Produces records [from, to) on a producer of its own, as {@link #produce(KafkaProducer, String, int, int)}. */
+  public void produce(Broker broker, String topic, int from, int to) {
+    try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
+      produce(producer, topic, from, to);
+    }
+  }
+
   /** Produces records [from, to) keyed by basket id, and waits for the acknowledgements. */
   public void produce(KafkaProducer<byte[], byte[]> producer, String topic, int from, int to) {
     List<java.util.concurrent.Future<org.apache.kafka.clients.producer.RecordMetadata>> sent = new ArrayList<>();

@@ -10,17 +10,7 @@ import org.pairpulse.serve.trend.TrendHistory;
 import org.pairpulse.serve.wire.Wire;
 
 /** The routes that answer from what the refresh loop kept: drift, alerts, pair and item trends. */
-final class HistoryRoutes {
-  private final RequestBinder bind;
-  private final DriftSettings drift;
-  private final AlertHistory alerts;
-
-  HistoryRoutes(RequestBinder bind, DriftSettings drift, AlertHistory alerts) {
-    this.bind = bind;
-    this.drift = drift;
-    this.alerts = alerts;
-  }
-
+record HistoryRoutes(RequestBinder bind, DriftSettings drift, AlertHistory alerts) {
   void register(Routes routes) {
     routes.get(ApiServer.API + "/drift", this::drift);
     routes.get(ApiServer.API + "/alerts", this::alerts);

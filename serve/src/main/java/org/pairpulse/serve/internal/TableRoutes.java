@@ -5,6 +5,7 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.concurrent.TimeUnit;
+import java.util.function.Supplier;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.metrics.ServeMeters;
 import org.pairpulse.serve.query.DirectedRules;
@@ -81,21 +82,26 @@ final class TableRoutes {
 
   private void topPairs(Context ctx) {
     RequestBinder.OnView<TopPairs.Query> r = bind.topPairs(ctx);
-    Replies.json(ctx, cache.get(key("top", r), () -> {
-      Map<String, Object> out = head(r);
-      out.put("horizon", r.query().horizon());
-      out.put("measure", r.query().measure().wireName());
-      out.put("pairs", Wire.pairs(TopPairs.of(r.view(), r.query())));
-      return out;
-    }));
+    TopPairs.Query q = r.query();
+    pairList(ctx, "top", r, q.horizon(), q.measure().wireName(), () -> TopPairs.of(r.view(), q));
   }
 
   private void repelling(Context ctx) {
     RequestBinder.OnView<RepellingPairs.Query> r = bind.repelling(ctx);
-    Replies.json(ctx, cache.get(key("repelling", r), () -> {
+    RepellingPairs.Query q = r.query();
+    pairList(ctx, "repelling", r, q.horizon(), null, () -> RepellingPairs.of(r.view().pairs(q.horizon()), q.count()));
+  }
+
+  /** A reply holding one horizon's list of pairs ({@code measure} left out when null), cached by {@code kind}. */
+  private void pairList(Context ctx, String kind, RequestBinder.OnView<?> r, String horizon, String measure,
+      Supplier<List<PairStats>> pairs) {
+    Replies.json(ctx, cache.get(key(kind, r), () -> {
       Map<String, Object> out = head(r);
-      out.put("horizon", r.query().horizon());
-      out.put("pairs", Wire.pairs(RepellingPairs.of(r.view().pairs(r.query().horizon()), r.query().count())));
+      out.put("horizon", horizon);
+      if (measure != null) {
+        out.put("measure", measure);
+      }
+      out.put("pairs", Wire.pairs(pairs.get()));
       return out;
     }));
   }

@@ -98,6 +98,11 @@ public record SuggestionRequest(List<String> basket, String horizon, Measure mea
         DEFAULT_MIN_CONFIDENCE, DEFAULT_MAX_CONFIDENCE, 0.0, false, DEFAULT_RANKING);
   }
 
+  /** The same request for another basket. */
+  public SuggestionRequest withBasket(List<String> value) {
+    return new SuggestionRequest(value, horizon, measure, count, minConfidence, maxConfidence, minSupport, includeBundles, ranking);
+  }
+
   public SuggestionRequest withHorizon(String value) {
     return new SuggestionRequest(basket, value, measure, count, minConfidence, maxConfidence, minSupport, includeBundles, ranking);
   }

@@ -34,12 +34,7 @@ class FlooredTableRowsTest {
     long t = T0;
     for (int i = 0; i < 20_000; i++) {
       t += random.nextLong(20_000L);
-      int size = 1 + random.nextInt(5);
-      String[] basket = new String[size];
-      for (int k = 0; k < size; k++) {
-        basket[k] = "item-" + (int) Math.floor(Math.pow(random.nextDouble(), 2.5) * 400);
-      }
-      engine.addBasket(t, basket);
+      engine.addBasket(t, skewedBasket(random));
     }
     PairTable withRows = engine.refresh(PairTables.Options.of(1, 0L));
     assertTrue(withRows.pairRows("day").isPresent(), "a refresh's table has rows");
@@ -72,5 +67,14 @@ class FlooredTableRowsTest {
         }
       }
     }
+  }
+
+  /** 1 to 5 of 400 items, the low numbers far more often (u^2.5). */
+  private static String[] skewedBasket(SplittableRandom random) {
+    String[] basket = new String[1 + random.nextInt(5)];
+    for (int k = 0; k < basket.length; k++) {
+      basket[k] = "item-" + (int) Math.floor(Math.pow(random.nextDouble(), 2.5) * 400);
+    }
+    return basket;
   }
 }

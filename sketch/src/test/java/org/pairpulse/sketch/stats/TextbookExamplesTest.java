@@ -43,9 +43,7 @@ class TextbookExamplesTest {
   void tanSteinbachKumarDiapersAndBeer() {
     PairMeasures m = PairMeasures.of(countPair("Diapers", "Beer"));
     // TSK 2005 ch. 6 (from memory): support 0.6, c(Diapers ⇒ Beer) = 0.75, c(Beer ⇒ Diapers) = 1.0
-    assertEquals(0.6, m.support(), 1e-12);
-    assertEquals(0.75, m.confidenceAB(), 1e-12);
-    assertEquals(1.0, m.confidenceBA(), 1e-12);
+    assertSupportAndConfidences(m, 0.6, 0.75, 1.0);
     // lift 1.25 (from memory; = 0.75 / s(Beer) = 0.75 / 0.6)
     assertEquals(1.25, m.lift(), 1e-12);
     // the textbook values by name (without size classes the adjusted ones coincide with them)
@@ -70,17 +68,13 @@ class TextbookExamplesTest {
     // hand-computed from TSK Table 6.1 (transcribed from memory above):
     // Bread {1,2,4,5}, Milk {1,3,4,5}, both {1,4,5}: support 3/5, confidences 3/4, lift 5·3/16
     PairMeasures breadMilk = PairMeasures.of(countPair("Bread", "Milk"));
-    assertEquals(0.6, breadMilk.support(), 1e-12);
-    assertEquals(0.75, breadMilk.confidenceAB(), 1e-12);
-    assertEquals(0.75, breadMilk.confidenceBA(), 1e-12);
+    assertSupportAndConfidences(breadMilk, 0.6, 0.75, 0.75);
     assertEquals(0.9375, breadMilk.lift(), 1e-12);
     assertEquals(0.0, breadMilk.imbalanceRatio(), 1e-12);
     // Beer {2,3,4}, Cola {3,5}, both {3}: support 1/5, c(Beer ⇒ Cola) = 1/3, c(Cola ⇒ Beer) = 1/2,
     // lift 5·1/(3·2) = 5/6
     PairMeasures beerCola = PairMeasures.of(countPair("Beer", "Cola"));
-    assertEquals(0.2, beerCola.support(), 1e-12);
-    assertEquals(1.0 / 3, beerCola.confidenceAB(), 1e-12);
-    assertEquals(0.5, beerCola.confidenceBA(), 1e-12);
+    assertSupportAndConfidences(beerCola, 0.2, 1.0 / 3, 0.5);
     assertEquals(5.0 / 6, beerCola.lift(), 1e-12);
     // Eggs {2}, Cola {3,5}: never together: support 0, lift 0, leverage −(1/5)(2/5)
     PairMeasures eggsCola = PairMeasures.of(countPair("Eggs", "Cola"));
@@ -162,5 +156,12 @@ class TextbookExamplesTest {
     assertEquals(d1.kulczynski(), d2.kulczynski(), 1e-15);
     assertEquals(d1.imbalanceRatio(), d2.imbalanceRatio(), 1e-15);
     assertTrue(d1.lift() > 9 && Math.abs(d2.lift() - 1) < 0.01);
+  }
+
+  private static void assertSupportAndConfidences(PairMeasures m, double support, double confidenceAB,
+      double confidenceBA) {
+    assertEquals(support, m.support(), 1e-12, "support");
+    assertEquals(confidenceAB, m.confidenceAB(), 1e-12, "confidence a => b");
+    assertEquals(confidenceBA, m.confidenceBA(), 1e-12, "confidence b => a");
   }
 }

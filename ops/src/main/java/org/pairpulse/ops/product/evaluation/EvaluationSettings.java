@@ -27,16 +27,11 @@ import org.pairpulse.sketch.stats.Measure;
  *
  * @param share the share of baskets evaluated, in [0, 1]
  * @param seed the sampling seed
- * @param k suggestions asked for, 1..100
- * @param horizon the horizon suggestions use
- * @param measure the scoring measure
- * @param minConfidence lower end of the confidence band
- * @param maxConfidence upper end of the confidence band
- * @param includeBundles whether bundle pairs may produce suggestions
- * @param ranking how the suggester orders candidates ({@code association} or {@code posterior})
+ * @param ask what a trial asks the suggester (its basket is replaced by the trial's; its count is k, 1..100): the
+ *     horizon, the scoring measure, the confidence band, whether bundle pairs may produce suggestions, and how the
+ *     suggester orders candidates ({@code association} or {@code posterior}); no support floor
  */
-public record EvaluationSettings(double share, long seed, int k, String horizon, Measure measure, double minConfidence,
-    double maxConfidence, boolean includeBundles, SuggestionRanking ranking) {
+public record EvaluationSettings(double share, long seed, SuggestionRequest ask) {
 
   public static final double DEFAULT_SHARE = 0.10;
   public static final int DEFAULT_K = 10;
@@ -45,64 +40,92 @@ public record EvaluationSettings(double share, long seed, int k, String horizon,
   public static final SuggestionRanking DEFAULT_RANKING = SuggestionRanking.POSTERIOR;
 
   public EvaluationSettings {
-    Objects.requireNonNull(horizon, "horizon");
-    Objects.requireNonNull(measure, "measure");
-    Objects.requireNonNull(ranking, "ranking");
+    Objects.requireNonNull(ask, "ask");
     if (!(share >= 0 && share <= 1)) {
       throw new IllegalArgumentException("evaluation share must be in [0, 1], got " + share);
     }
-    if (k < 1 || k > MAX_K) {
-      throw new IllegalArgumentException("evaluation k must be in 1.." + MAX_K + ", got " + k);
+    if (ask.count() < 1 || ask.count() > MAX_K) {
+      throw new IllegalArgumentException("evaluation k must be in 1.." + MAX_K + ", got " + ask.count());
     }
-    // the request checks the band and the ranking against the measure (the fields are not assigned yet)
-    new SuggestionRequest(List.of("x"), horizon, measure, k, minConfidence, maxConfidence, 0, includeBundles, ranking);
+    if (ask.minSupport() != 0) {
+      throw new IllegalArgumentException("the evaluation asks without a support floor, got " + ask.minSupport());
+    }
   }
 
   /** What the evaluation asks the suggester for a trial's basket: these settings, no support floor. */
   public SuggestionRequest request(List<String> basket) {
-    return new SuggestionRequest(basket, horizon, measure, k, minConfidence, maxConfidence, 0.0, includeBundles, ranking);
+    return ask.withBasket(basket);
   }
 
   /** The defaults of the table above. */
   public static EvaluationSettings defaults() {
-    return new EvaluationSettings(DEFAULT_SHARE, 1, DEFAULT_K, SuggestionRequest.DEFAULT_HORIZON, Measure.SHRUNK_LIFT,
-        0.0, 1.0, true, DEFAULT_RANKING);
+    return new EvaluationSettings(DEFAULT_SHARE, 1, new SuggestionRequest(List.of("trial"),
+        SuggestionRequest.DEFAULT_HORIZON, Measure.SHRUNK_LIFT, DEFAULT_K, 0.0, 1.0, 0.0, true, DEFAULT_RANKING));
+  }
+
+  /** Suggestions asked for per trial. */
+  public int k() {
+    return ask.count();
+  }
+
+  public String horizon() {
+    return ask.horizon();
+  }
+
+  public Measure measure() {
+    return ask.measure();
+  }
+
+  public double minConfidence() {
+    return ask.minConfidence();
+  }
+
+  public double maxConfidence() {
+    return ask.maxConfidence();
+  }
+
+  public boolean includeBundles() {
+    return ask.includeBundles();
+  }
+
+  public SuggestionRanking ranking() {
+    return ask.ranking();
   }
 
   public EvaluationSettings withShare(double value) {
-    return new EvaluationSettings(value, seed, k, horizon, measure, minConfidence, maxConfidence, includeBundles, ranking);
+    return new EvaluationSettings(value, seed, ask);
   }
 
   public EvaluationSettings withSeed(long value) {
-    return new EvaluationSettings(share, value, k, horizon, measure, minConfidence, maxConfidence, includeBundles, ranking);
+    return new EvaluationSettings(share, value, ask);
   }
 
   public EvaluationSettings withK(int value) {
-    return new EvaluationSettings(share, seed, value, horizon, measure, minConfidence, maxConfidence, includeBundles, ranking);
+    return new EvaluationSettings(share, seed, ask.withCount(value));
   }
 
   public EvaluationSettings withHorizon(String value) {
-    return new EvaluationSettings(share, seed, k, value, measure, minConfidence, maxConfidence, includeBundles, ranking);
+    return new EvaluationSettings(share, seed, ask.withHorizon(value));
   }
 
   public EvaluationSettings withMeasure(Measure value) {
-    return new EvaluationSettings(share, seed, k, horizon, value, minConfidence, maxConfidence, includeBundles, ranking);
+    return new EvaluationSettings(share, seed, ask.withMeasure(value));
   }
 
   public EvaluationSettings withConfidenceBand(double min, double max) {
-    return new EvaluationSettings(share, seed, k, horizon, measure, min, max, includeBundles, ranking);
+    return new EvaluationSettings(share, seed, ask.withConfidenceBand(min, max));
   }
 
   public EvaluationSettings withIncludeBundles(boolean value) {
-    return new EvaluationSettings(share, seed, k, horizon, measure, minConfidence, maxConfidence, value, ranking);
+    return new EvaluationSettings(share, seed, ask.withIncludeBundles(value));
   }
 
   public EvaluationSettings withRanking(SuggestionRanking value) {
-    return new EvaluationSettings(share, seed, k, horizon, measure, minConfidence, maxConfidence, includeBundles, value);
+    return new EvaluationSettings(share, seed, ask.withRanking(value));
   }
 
   /** The cut-offs hit rates are reported at: 1, 5 and k (those not above k, distinct, ascending). */
   public int[] cutoffs() {
-    return java.util.stream.IntStream.of(1, 5, k).filter(c -> c <= k).distinct().sorted().toArray();
+    return java.util.stream.IntStream.of(1, 5, k()).filter(c -> c <= k()).distinct().sorted().toArray();
   }
 }
