@@ -33,15 +33,18 @@ public final class BacktestKeys {
 
   /**
    * Sets on {@code settings} the backtest keys of {@code given} (others are ignored); a key not given sets
-   * {@code base}'s value.
+   * {@code base}'s value, except that a summary interval not given is never shorter than the refresh interval.
    */
   static void apply(BacktestSettings.Builder settings, BacktestSettings base, Map<String, ?> given) {
     Map<String, Object> ours = new LinkedHashMap<>(given);
     ours.keySet().retainAll(DEFINITION.names());
     Map<String, Object> v = DEFINITION.parse(ours);
     v.keySet().retainAll(ours.keySet());
-    settings.refreshEveryMillis((Long) v.getOrDefault(REFRESH_EVERY_MS, base.refreshEveryMillis()))
-        .summaryEveryMillis((Long) v.getOrDefault(SUMMARY_EVERY_MS, base.summaryEveryMillis()))
+    long refreshEveryMillis = (Long) v.getOrDefault(REFRESH_EVERY_MS, base.refreshEveryMillis());
+    // a summary interval not given follows a longer refresh interval up, as the builder's does
+    long summaryEveryMillis = v.containsKey(SUMMARY_EVERY_MS) ? (Long) v.get(SUMMARY_EVERY_MS)
+        : Math.max(base.summaryEveryMillis(), refreshEveryMillis);
+    settings.refreshEveryMillis(refreshEveryMillis).summaryEveryMillis(summaryEveryMillis)
         .summaryTop((Integer) v.getOrDefault(SUMMARY_TOP, base.summaryTop()));
   }
 }

@@ -69,6 +69,23 @@ class SettingsFileTest {
   }
 
   @Test
+  void aRefreshIntervalLongerThanTheDefaultSummaryIntervalTakesTheSummaryWithIt() {
+    // as --refresh-every 12h does on the command line: the summary interval (default 6 h) follows up to 12 h
+    BacktestSettings longRefresh = SettingsFile.apply(Map.of("backtest.refresh.every.ms", "43200000"),
+        BacktestSettings.defaults());
+    assertEquals(43_200_000L, longRefresh.refreshEveryMillis());
+    assertEquals(43_200_000L, longRefresh.summaryEveryMillis());
+    // a summary interval that is given is kept, and a shorter refresh leaves the default summary interval alone
+    assertEquals(86_400_000L, SettingsFile.apply(Map.of("backtest.refresh.every.ms", "43200000",
+        "backtest.summary.every.ms", "86400000"), BacktestSettings.defaults()).summaryEveryMillis());
+    assertEquals(BacktestSettings.defaults().summaryEveryMillis(), SettingsFile.apply(
+        Map.of("backtest.refresh.every.ms", "60000"), BacktestSettings.defaults()).summaryEveryMillis());
+    // given both, a summary shorter than the refresh is still an error
+    assertThrows(IllegalArgumentException.class, () -> SettingsFile.apply(Map.of("backtest.refresh.every.ms",
+        "43200000", "backtest.summary.every.ms", "3600000"), BacktestSettings.defaults()));
+  }
+
+  @Test
   void unknownKeysAndBadValuesAreErrorsThatNameThem() {
     IllegalArgumentException typo = assertThrows(IllegalArgumentException.class,
         () -> SettingsFile.apply(Map.of("horizon.recent.halflife", "1"), BacktestSettings.defaults()));
