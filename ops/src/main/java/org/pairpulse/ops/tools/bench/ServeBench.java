@@ -42,7 +42,10 @@ import picocli.CommandLine.Option;
  *
  * <ol>
  *   <li>State: a {@link PairEngine} ({@code trackedPairCapacity} 262,144) over a 10,000-item Zipf
- *       catalog, preloaded, then fed at full speed by a feeder thread calling
+ *       catalog in which the {@code --planted-rules} most popular items each pull one partner into a basket with
+ *       probability 0.45 (inside the default confidence band, so that suggestion lists are not empty: on
+ *       independent items the offer screen rightly lists nothing, and the bench would time empty answers),
+ *       preloaded, then fed at full speed by a feeder thread calling
  *       {@link PairEngine#addBasket} for the whole run; the same thread refreshes a pair table every 2 s
  *       (the engine is single-writer) and publishes it into a {@link PairTableHolder}. The ingest
  *       pipeline (Kafka) is not used: this measures serving while the state changes under it.</li>
@@ -82,6 +85,11 @@ public final class ServeBench implements Callable<Integer> {
       description = "trackedPairCapacity of the engine (default: ${DEFAULT-VALUE}).")
   int trackedPairs = 262_144;
 
+  @Option(names = "--planted-rules", paramLabel = "N",
+      description = "Most popular items that each pull one partner into a basket with probability 0.45"
+          + " (default: ${DEFAULT-VALUE}).")
+  int plantedRules = 1_000;
+
   @Option(names = "--preload-baskets", paramLabel = "N",
       description = "Baskets fed before the load starts (default: ${DEFAULT-VALUE}).")
   int preloadBaskets = 400_000;
@@ -117,6 +125,9 @@ public final class ServeBench implements Callable<Integer> {
   long seed = 42;
 
   /** One measured block's latencies and duration. */
+  /** The planted rules' confidence: inside the default band 0.30–0.60. */
+  private static final double PLANTED_CONFIDENCE = 0.45;
+
   private record Block(long[] nanos, long wallNanos, long nonEmpty, long errors) {}
 
   @Override
@@ -136,8 +147,13 @@ public final class ServeBench implements Callable<Integer> {
         + refreshMillis + " ms (the Kafka ingest pipeline is not part of this benchmark)");
     out.flush();
 
-    Feeder feeder = new Feeder(engine, BasketStream.builder(seed).zipf(names, zipf).sizes(BasketSizes.uniform(1, 8))
-        .draws(BasketStream.Draws.INDEPENDENT).build(), refreshMillis);
+    BasketStream.Builder stream = BasketStream.builder(seed).zipf(names, zipf).sizes(BasketSizes.uniform(1, 8))
+        .draws(BasketStream.Draws.INDEPENDENT);
+    for (int rank = 0; rank < plantedRules; rank++) { // item i pulls in an item of the catalog's other half
+      stream.join(new BasketStream.Join(names[rank], names[catalogItems / 2 + rank % (catalogItems / 2)],
+          PLANTED_CONFIDENCE));
+    }
+    Feeder feeder = new Feeder(engine, stream.build(), refreshMillis);
     long preloadStart = System.nanoTime();
     feeder.feed(preloadBaskets);
     PairTableHolder holder = new PairTableHolder();
@@ -231,7 +247,8 @@ public final class ServeBench implements Callable<Integer> {
 
   private void validate() {
     if (catalogItems < 2 * basketItems || basketItems < 1 || requests < 4 || clients < 1 || warmupRequests < 0
-        || trackedPairs < 2 || refreshMillis < 100 || maxSeconds < 10 || preloadBaskets < 1) {
+        || trackedPairs < 2 || refreshMillis < 100 || maxSeconds < 10 || preloadBaskets < 1 || plantedRules < 0
+        || plantedRules > catalogItems / 2) {
       throw bench.usage("options out of range (see --help)");
     }
   }
