@@ -77,20 +77,18 @@ final class StateTopicStore {
   private final int statePartitions;
   private final int chunkBytes;
   private final Producer<byte[], byte[]> producer;
-  private final SharedStateReader.Lease reader;
   private final Duration timeout;
   private final ToLongFunction<TopicPartition> logEnd;
   /** Chunks of the last checkpoint written or read, per input partition (for tombstones). */
   private final Map<TopicPartition, Integer> lastChunkCount = new HashMap<>();
 
   /**
-   * @param reader this store's lease on the instance's state-topic reader
    * @param timeout longest wait for a checkpoint hidden behind an open transaction (see above)
    * @param logEnd the log end offset (high watermark, {@code read_uncommitted}) of a state partition, or −1
    *     when it cannot be told
    */
   StateTopicStore(String stateTopic, String group, int statePartitions, int chunkBytes, Producer<byte[], byte[]> producer,
-      SharedStateReader.Lease reader, Duration timeout, ToLongFunction<TopicPartition> logEnd) {
+      Duration timeout, ToLongFunction<TopicPartition> logEnd) {
     if (chunkBytes < 1024) {
       throw new IllegalArgumentException("state chunk must be at least 1 KiB, got " + chunkBytes);
     }
@@ -99,7 +97,6 @@ final class StateTopicStore {
     this.statePartitions = statePartitions;
     this.chunkBytes = chunkBytes;
     this.producer = producer;
-    this.reader = reader;
     this.timeout = timeout;
     this.logEnd = logEnd;
   }
@@ -181,12 +178,12 @@ final class StateTopicStore {
 
   record Written(Map<TopicPartition, OffsetAndMetadata> offsets, long bytes) {}
 
-  /** The partition's checkpoint: through the commit metadata if given, else by scanning. */
-  Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed) {
-    return reader.use((consumer, lent) -> load(consumer, tp, committed));
-  }
-
-  private Optional<PartitionCheckpoint> load(Consumer<byte[], byte[]> reader, TopicPartition tp, OffsetAndMetadata committed) {
+  /**
+   * The partition's checkpoint, read with {@code reader} (a {@code read_committed} consumer without a group, of an
+   * outside reader such as {@link StateTopicReader}: a running instance reads through its {@link StateTap}): through
+   * the commit metadata if given, else by scanning.
+   */
+  Optional<PartitionCheckpoint> load(Consumer<byte[], byte[]> reader, TopicPartition tp, OffsetAndMetadata committed) {
     Optional<PartitionCheckpoint> found = Optional.empty();
     if (committed != null && committed.metadata() != null && committed.metadata().startsWith(METADATA_PREFIX + " ")) {
       String[] parts = committed.metadata().split(" ");
@@ -214,8 +211,13 @@ final class StateTopicStore {
       LOG.warn("checkpoint of {} covers up to offset {}, the group committed {}; resuming from the checkpoint", tp,
           found.get().nextOffset(), committed.offset());
     }
-    found.ifPresent(cp -> lastChunkCount.merge(tp, chunkCountOf(cp), Math::max));
+    found.ifPresent(cp -> restored(tp, cp));
     return found;
+  }
+
+  /** {@code cp} was restored: a shorter later checkpoint of {@code tp} tombstones its extra chunks. */
+  void restored(TopicPartition tp, PartitionCheckpoint cp) {
+    lastChunkCount.merge(tp, chunkCountOf(cp), Math::max);
   }
 
   private int chunkCountOf(PartitionCheckpoint cp) {
