@@ -358,7 +358,9 @@ final class StateTap {
       }
       NewestCheckpoint read = newest.get(tp);
       Optional<PartitionCheckpoint> newestRead = Optional.ofNullable(read).map(NewestCheckpoint::checkpoint);
-      if (wantedId >= 0 && newestRead.isPresent() && newestRead.get().checkpointId() >= wantedId) {
+      // the very checkpoint the offsets were committed with (ids restart after a partition lost its state, so an
+      // older lineage's higher id is no match)
+      if (wantedId >= 0 && newestRead.isPresent() && newestRead.get().checkpointId() == wantedId) {
         return finish(newestRead);
       }
       long now = System.nanoTime();
