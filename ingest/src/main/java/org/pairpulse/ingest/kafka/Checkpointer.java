@@ -94,19 +94,27 @@ final class Checkpointer {
   }
 
   /**
-   * The checkpoint at shutdown. If its transaction fails to commit (typically because a rebalance, such as
-   * another instance leaving at the same moment, made the group generation stale), the partitions were
-   * rewound to their last checkpoints: read them again ({@code pollRound}) up to where this instance had stopped
-   * and commit again, until {@code budgetMs} is spent.
-   * Without this, a clean stop could leave the group's committed state behind what the instance had read.
+   * The checkpoint at shutdown. It first reads the partitions again up to where this instance had read them, should a
+   * failed commit have rewound them just before the stop; if its own transaction fails to commit (typically because a
+   * rebalance, such as another instance leaving at the same moment, made the group generation stale), the partitions
+   * were rewound to their last checkpoints: it reads them again ({@code pollRound}) and commits again, until
+   * {@code budgetMs} is spent. Without this, a clean stop could leave the group's committed state behind what the
+   * instance had read.
    */
   void finalCheckpoint(long budgetMs, java.util.function.LongSupplier clockMillis, PollRound pollRound)
       throws InterruptedException {
     long started = System.nanoTime();
     long deadline = started + TimeUnit.MILLISECONDS.toNanos(budgetMs);
     Map<TopicPartition, Long> target = slots.readOffsets();
-    int attempts = 1;
-    while (!checkpoint(slots.owned(), clockMillis.getAsLong())) {
+    int attempts = 0;
+    while (true) {
+      attempts++;
+      while (!slots.reached(target) && System.nanoTime() < deadline) {
+        pollRound.run();
+      }
+      if (checkpoint(slots.owned(), clockMillis.getAsLong())) {
+        break;
+      }
       if (System.nanoTime() > deadline) {
         LOG.warn("final checkpoint of instance {} failed {} times; its partitions resume from their last committed checkpoints",
             instanceId, attempts);
@@ -114,10 +122,6 @@ final class Checkpointer {
       }
       LOG.info("final checkpoint of instance {} failed; reading its partitions again up to {} before committing again",
           instanceId, target);
-      while (!slots.reached(target) && System.nanoTime() < deadline) {
-        pollRound.run();
-      }
-      attempts++;
     }
     if (attempts > 1) {
       LOG.info("final checkpoint of instance {} committed at attempt {}, {} ms after the stop", instanceId, attempts,

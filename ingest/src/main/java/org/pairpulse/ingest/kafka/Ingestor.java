@@ -429,6 +429,14 @@ public final class Ingestor implements AutoCloseable {
     return checkpoints.checkpoint(candidates, clock.millis());
   }
 
+  /** Test hook: on the poll thread, stops the loop right after a checkpoint (as a periodic one at the moment of a stop). */
+  void stopRightAfterACheckpoint() {
+    tasks.add(() -> {
+      running = false;
+      checkpoint(slots.owned());
+    });
+  }
+
   /** Test hook: the next {@code n} transaction commits fail like a commit with a stale group generation. */
   void failNextCommits(int n) {
     commitsToFail.set(n);

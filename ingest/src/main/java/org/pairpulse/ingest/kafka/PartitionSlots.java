@@ -64,6 +64,11 @@ final class PartitionSlots {
   /** Assigned partitions paused until their checkpoints can be read (state-topic store), in assignment order. */
   private final Map<TopicPartition, Pending> pending = new java.util.LinkedHashMap<>();
   private final Map<TopicPartition, Long> positions = new ConcurrentHashMap<>();
+  /**
+   * How far each owned partition has been read since it was assigned, kept across rewinds: where a final checkpoint
+   * must get back to when a failed commit rewound the partitions just before the stop.
+   */
+  private final Map<TopicPartition, Long> readUpTo = new HashMap<>();
   private volatile Set<TopicPartition> assignment = Set.of();
 
   PartitionSlots(Consumer<byte[], byte[]> consumer, CheckpointStore store, EngineLanes lanes, FrontSettings frontSettings,
@@ -101,6 +106,7 @@ final class PartitionSlots {
     slot.nextOffset = nextOffset;
     slot.dirty = true;
     positions.put(tp, nextOffset);
+    readUpTo.merge(tp, nextOffset, Math::max);
   }
 
   /**
@@ -163,12 +169,20 @@ final class PartitionSlots {
     }
   }
 
-  /** How far each owned partition is read (those read at all): the targets of a redone final checkpoint. */
+  /**
+   * How far each owned partition has been read (those read at all), before any rewind since it was assigned: the
+   * targets of the final checkpoint.
+   */
   Map<TopicPartition, Long> readOffsets() {
     Map<TopicPartition, Long> target = new HashMap<>();
     slots.forEach((tp, slot) -> {
       if (slot.nextOffset >= 0) {
         target.put(tp, slot.nextOffset);
+      }
+    });
+    readUpTo.forEach((tp, offset) -> {
+      if (slots.containsKey(tp) || pending.containsKey(tp)) {
+        target.merge(tp, offset, Math::max);
       }
     });
     return target;
@@ -202,7 +216,15 @@ final class PartitionSlots {
         starts.put(tp, slot.startOffset);
       }
     }
+    Map<TopicPartition, Long> read = new HashMap<>();
+    partitions.forEach(tp -> {
+      Long offset = readUpTo.get(tp);
+      if (offset != null) {
+        read.put(tp, offset);
+      }
+    });
     forget(partitions);
+    readUpTo.putAll(read); // still ours: a final checkpoint reads them again up to here
     restore(partitions, starts);
   }
 
@@ -309,6 +331,7 @@ final class PartitionSlots {
       slots.remove(tp);
       pending.remove(tp);
       positions.remove(tp);
+      readUpTo.remove(tp);
       metrics.forgetPartition(tp.topic(), tp.partition());
     }
     assignment = Set.copyOf(slots.keySet());

@@ -54,8 +54,10 @@ import org.slf4j.LoggerFactory;
  * The chunks are sent in the ingestor's open transaction; the consumer offsets follow in the same
  * transaction, each with metadata {@code "pp1 <statePartition> <firstChunkOffset> <chunkCount> <checkpointId>"}
  * saying where its checkpoint starts. So the offsets and the state they describe commit together or not
- * at all. A restore seeks to that offset and reads the chunks ({@code read_committed}); without usable
- * metadata it scans the state partition and takes the newest complete checkpoint.
+ * at all. A running instance reads the chunks as its one consumer polls them ({@link StateTap}) and restores
+ * the checkpoint the metadata names; an outside reader ({@link StateTopicReader}, {@link #load}) seeks to that
+ * offset and reads the chunks ({@code read_committed}); without usable metadata either takes the newest complete
+ * checkpoint of the state partition.
  *
  * <h2>Open transactions ahead of a checkpoint</h2>
  * A {@code read_committed} reader sees nothing past a partition's last stable offset (LSO), the start of
