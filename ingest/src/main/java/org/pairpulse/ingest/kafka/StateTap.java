@@ -52,6 +52,8 @@ final class StateTap {
   private static final Logger LOG = LoggerFactory.getLogger(StateTap.class);
   /** How often a waiting restore asks again for its state partition's end offsets. */
   private static final long RECHECK_NANOS = 1_000_000_000L;
+  /** How long a state partition's asked end offset serves other restores. */
+  private static final long END_REUSE_NANOS = 200_000_000L;
 
   private final String stateTopic;
   private final String group;
@@ -65,6 +67,8 @@ final class StateTap {
   private final Map<TopicPartition, NewestCheckpoint> newest = new ConcurrentHashMap<>();
   /** Where the tap stood in each shared partition when it was last revoked (sought back on a new assignment). */
   private final Map<TopicPartition, Long> leftAt = new HashMap<>();
+  /** The newest end offset asked per state partition: [offset, System.nanoTime() when asked]. */
+  private final Map<TopicPartition, long[]> stableEnds = new HashMap<>();
   private volatile List<TopicPartition> inputs = List.of();
   private BiConsumer<TopicPartition, NewestCheckpoint> published = (tp, cp) -> { };
   private Consumer<byte[], byte[]> consumer;
@@ -418,13 +422,27 @@ final class StateTap {
       return answer;
     }
 
-    /** The state partition's {@code read_committed} end offset (its last stable offset); −1 when not told now. */
     private long endOffset() {
-      try {
-        return consumer.endOffsets(List.of(source), Duration.ofSeconds(10)).getOrDefault(source, -1L);
-      } catch (KafkaException e) {
-        return -1;
-      }
+      return stableEnd(source);
+    }
+  }
+
+  /**
+   * A state partition's {@code read_committed} end offset (its last stable offset), asked of the broker at most once
+   * per 200 ms (the restores of one assignment share one answer); −1 when not told now.
+   */
+  private long stableEnd(TopicPartition source) {
+    long now = System.nanoTime();
+    long[] known = stableEnds.get(source);
+    if (known != null && now - known[1] < END_REUSE_NANOS) {
+      return known[0];
+    }
+    try {
+      long end = consumer.endOffsets(List.of(source), Duration.ofSeconds(10)).getOrDefault(source, -1L);
+      stableEnds.put(source, new long[] {end, now});
+      return end;
+    } catch (KafkaException e) {
+      return -1;
     }
   }
 
