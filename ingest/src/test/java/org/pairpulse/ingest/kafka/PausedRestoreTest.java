@@ -3,10 +3,8 @@ package org.pairpulse.ingest.kafka;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
-import java.util.HashMap;
 import java.util.Map;
 import java.util.Set;
 import java.util.concurrent.TimeUnit;
@@ -20,7 +18,6 @@ import org.pairpulse.ingest.testkit.SharedBroker;
 import org.pairpulse.ingest.testkit.TestIngest;
 import org.pairpulse.ingest.testkit.Workload;
 import org.pairpulse.sketch.engine.PairEngine;
-import org.pairpulse.sketch.time.EventClock;
 
 /**
  * Group mode restores through the instance's one consumer without blocking its poll loop: the newest checkpoints of
@@ -41,7 +38,7 @@ class PausedRestoreTest {
     try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
       w.produce(producer, topic, 0, half);
     }
-    try (Ingestor a = instance(props, "a")) { // first checkpoints, before anything is left open
+    try (Ingestor a = GroupTest.instance(props, "a")) { // first checkpoints, before anything is left open
       TestIngest.awaitCaughtUp(a, broker.endOffsets(topic), Duration.ofSeconds(120));
     }
     try (KafkaProducer<byte[], byte[]> zombie = StateTopicStoreTest.transactional(broker, "paused-zombie")) {
@@ -53,11 +50,11 @@ class PausedRestoreTest {
       try (KafkaProducer<byte[], byte[]> producer = broker.producer()) {
         w.produce(producer, topic, half, w.records.size());
       }
-      try (Ingestor a = instance(props, "a")) { // its final checkpoints land behind the open transaction
+      try (Ingestor a = GroupTest.instance(props, "a")) { // its final checkpoints land behind the open transaction
         TestIngest.awaitCaughtUp(a, broker.endOffsets(topic), Duration.ofSeconds(120));
       }
 
-      try (Ingestor b = instance(props, "b")) {
+      try (Ingestor b = GroupTest.instance(props, "b")) {
         Thread.sleep(3000); // time to join, be assigned both partitions and look for their checkpoints
         PairEngine meanwhile = b.view().get(30, TimeUnit.SECONDS); // the poll loop answers: not blocked
         assertEquals(0, meanwhile.stats().baskets(), 0.0, "nothing counted before the restore");
@@ -73,12 +70,5 @@ class PausedRestoreTest {
         w.assertExact(b.view().get(30, TimeUnit.SECONDS));
       }
     }
-  }
-
-  private static Ingestor instance(Map<String, Object> base, String id) {
-    Map<String, Object> props = new HashMap<>(base);
-    props.put(IngestConfig.INSTANCE_ID, id);
-    return new Ingestor(new IngestConfig(props), Workload.engineConfig(), new SimpleMeterRegistry(), EventClock.system())
-        .start();
   }
 }
