@@ -58,13 +58,43 @@ interface CheckpointStore extends AutoCloseable {
     return consumer.committed(partitions);
   }
 
-  /** The instance's state-topic reader, which other readers of the state topic share (state-topic store only). */
-  default Optional<SharedStateReader> stateReader() {
+  /**
+   * The tap through which the instance's one consumer reads the group's compacted state, beside the basket topics
+   * (state-topic store only).
+   */
+  default Optional<StateTap> stateTap() {
     return Optional.empty();
   }
 
-  /** The newest checkpoint of {@code tp}; {@code committed} is its committed offset, or null. */
-  Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed);
+  /**
+   * The newest checkpoint of {@code tp}, at once (files, none) or once the poll loop has read far enough (the state
+   * topic: see {@link StateTap}); {@code committed} is its committed offset, or null.
+   */
+  Lookup lookup(TopicPartition tp, OffsetAndMetadata committed);
+
+  /** A partition's newest checkpoint, as soon as it can be told (poll thread). */
+  interface Lookup {
+    /** True once {@link #found()} can be told; asked again after every poll until then. */
+    boolean ready();
+
+    /** The checkpoint, or empty when there is none (after {@link #ready()}). */
+    Optional<PartitionCheckpoint> found();
+
+    /** A lookup answered at once. */
+    static Lookup of(Optional<PartitionCheckpoint> found) {
+      return new Lookup() {
+        @Override
+        public boolean ready() {
+          return true;
+        }
+
+        @Override
+        public Optional<PartitionCheckpoint> found() {
+          return found;
+        }
+      };
+    }
+  }
 
   /**
    * Saves {@code checkpoints} and commits the offsets they cover. Returns the bytes written, or −1 when the commit

@@ -19,13 +19,13 @@ import java.util.concurrent.TimeoutException;
 import java.util.concurrent.atomic.AtomicInteger;
 import org.apache.kafka.clients.consumer.CloseOptions;
 import org.apache.kafka.clients.consumer.Consumer;
+import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.ConsumerRecords;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.Producer;
 import org.apache.kafka.common.TopicPartition;
-import org.pairpulse.ingest.checkpoint.PartitionCheckpoint;
 import org.pairpulse.ingest.event.EventDecoder;
 import org.pairpulse.ingest.front.BasketSink;
 import org.pairpulse.ingest.front.PartitionFront;
@@ -76,6 +76,13 @@ import org.slf4j.LoggerFactory;
  * neither loses nor double-counts a basket. With {@code local} the checkpoints are files (single node);
  * with {@code none} there are none.
  *
+ * <h2>One consumer</h2>
+ * An instance reads with one {@code KafkaConsumer}. In group mode it subscribes to the state topic (and to the
+ * compacted topics it follows, {@link #followKey}) beside the basket topics; every member gets every partition of
+ * those ({@link SharedTopicsAssignor}), and the poll loop hands their records to the {@link StateTap}, which serves
+ * the checkpoint restores (a partition being restored is paused until its checkpoint has been read, while the loop
+ * goes on), the group view and the followed keys.
+ *
  * <h2>Threading</h2>
  * {@link #start()} starts the poll thread, which owns the Kafka clients and the fronts; each engine thread
  * owns the engines of its partitions. The public methods may be called from any thread; requests that need the state
@@ -86,7 +93,8 @@ import org.slf4j.LoggerFactory;
  * <h2>Inside</h2>
  * This class holds the poll loop and the lifecycle. Its helpers, one job each: {@link TopicSetup} (topics at
  * start), {@link KafkaClientProperties} (every client's settings), {@link CheckpointStore} (save, load and commit,
- * one implementation per {@code checkpoint.store}), {@link PartitionSlots} (restore, rewind, rebalance),
+ * one implementation per {@code checkpoint.store}), {@link Checkpointer} (when to checkpoint, and the final one),
+ * {@link PartitionSlots} (restore, rewind, rebalance), {@link StateTap} (the state topic as the poll loop reads it),
  * {@link TablePublisher} (refreshes, the group view and what they published) and {@link DeadLetters}.
  */
 public final class Ingestor implements AutoCloseable {
@@ -113,8 +121,7 @@ public final class Ingestor implements AutoCloseable {
   private volatile CheckpointStore store;
   private EngineLanes lanes;
   private RecordRouter router;
-  private long basketsSinceCheckpoint;
-  private long lastCheckpointMillis;
+  private Checkpointer checkpoints;
   private long lastRefreshMillis;
   private long lastTickMillis;
   private boolean failed;
@@ -127,6 +134,10 @@ public final class Ingestor implements AutoCloseable {
   private volatile PartitionSlots slots;
   private volatile boolean running;
   private volatile Throwable failure;
+  /** The compacted keys to follow, given before the start. */
+  private final List<CommittedKey> followed = new java.util.ArrayList<>();
+  /** The state topic as the consumer reads it (group mode; poll thread); null otherwise. */
+  private StateTap stateTap;
   /** Told of every basket a front lets through, before it is counted (poll thread); null: none. */
   private volatile BasketSink tap;
   /** Test hook: so many coming transaction commits fail as if a rebalance had made the group generation stale. */
@@ -179,12 +190,17 @@ public final class Ingestor implements AutoCloseable {
   }
 
   /**
-   * A new lease on this instance's one state-topic reader ({@code read_committed}, no group), for other readers of
-   * compacted state in the same cluster (group mode, once started); empty without the state-topic store.
+   * Follows the newest committed value of {@code key} in the compacted {@code topic} with this instance's one
+   * consumer, beside the basket topics and the state topic (group mode only; every member reads every partition of
+   * it). Call before {@link #start()}; the topic must exist by then.
    */
-  public Optional<SharedStateReader.Lease> stateReaderLease() {
-    CheckpointStore open = store;
-    return open == null ? Optional.empty() : open.stateReader().map(SharedStateReader::lease);
+  public CommittedKey followKey(String topic, byte[] key) {
+    if (config.store() != IngestConfig.Store.KAFKA) {
+      throw new IllegalStateException("only group mode (checkpoint.store=kafka) follows compacted topics");
+    }
+    CommittedKey followed = new CommittedKey(topic, key);
+    this.followed.add(followed);
+    return followed;
   }
 
   /** Closes the ingestor cleanly (checkpoint, commit, close) when the JVM is asked to stop (SIGTERM, Ctrl-C). */
@@ -295,13 +311,9 @@ public final class Ingestor implements AutoCloseable {
       open();
       started.countDown();
       while (running) {
-        runTasks();
-        ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(pollTimeoutMs));
-        if (!records.isEmpty()) {
-          process(records);
-        }
+        pollOnce();
         long now = clock.millis();
-        if (basketsSinceCheckpoint >= checkpointIntervalBaskets || now - lastCheckpointMillis >= checkpointIntervalMs) {
+        if (checkpoints.due(now)) {
           checkpoint(slots.owned());
         }
         if (refreshIntervalMs > 0 && now - lastRefreshMillis >= refreshIntervalMs && !published.refreshing()) {
@@ -313,7 +325,8 @@ public final class Ingestor implements AutoCloseable {
         }
       }
       runTasks();
-      finalCheckpoint();
+      // half of shutdown.timeout.ms: the rest is for closing the clients
+      checkpoints.finalCheckpoint(config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS) / 2, clock::millis, this::pollOnce);
     } catch (Throwable t) {
       failed = true;
       failure = t;
@@ -324,6 +337,19 @@ public final class Ingestor implements AutoCloseable {
       running = false;
       stopped.countDown();
     }
+  }
+
+  /** One round of the loop's reading: tasks, a poll, its records, then what became due (restores, followed keys). */
+  private void pollOnce() throws InterruptedException {
+    runTasks();
+    ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(pollTimeoutMs));
+    if (!records.isEmpty()) {
+      process(records);
+    }
+    if (stateTap != null) {
+      stateTap.afterPoll();
+    }
+    slots.restorePending();
   }
 
   private void runTasks() {
@@ -341,15 +367,25 @@ public final class Ingestor implements AutoCloseable {
     router = new RecordRouter(new EventDecoder(config.eventLimits(clock)),
         new DeadLetters(producer, config.getString(IngestConfig.DEAD_LETTER_TOPIC), metrics), metrics);
     store = CheckpointStore.open(config, layout, producer, clients, commitsToFail);
+    stateTap = store.stateTap().orElse(null);
+    List<String> shared = List.of();
+    if (stateTap != null) {
+      followed.forEach(stateTap::follow);
+      shared = stateTap.sharedTopics();
+    }
     if (config.groupViewEnabled()) {
       published.openGroupView(config, clients, engineConfig, clock::millis, this::assignment,
-          store.stateReader().orElseThrow(() -> new IllegalStateException("the group view needs the state-topic store")));
+          Objects.requireNonNull(stateTap, "the group view needs the state-topic store"));
     }
-    consumer = new KafkaConsumer<>(clients.groupConsumer());
+    consumer = new KafkaConsumer<>(clients.groupConsumer(shared));
     slots = new PartitionSlots(consumer, store, lanes, config.frontSettings(), segmentSettings, metrics);
-    consumer.subscribe(config.topics(), slots.listener(this::checkpoint, () -> failed));
+    ConsumerRebalanceListener listener = slots.listener(this::checkpoint, () -> failed);
+    List<String> subscribed = new java.util.ArrayList<>(config.topics());
+    subscribed.addAll(shared);
+    consumer.subscribe(subscribed, stateTap == null ? listener : stateTap.around(consumer, listener));
     long now = clock.millis();
-    lastCheckpointMillis = now;
+    checkpoints = new Checkpointer(instanceId, slots, store, lanes, consumer, metrics, checkpointIntervalMs,
+        checkpointIntervalBaskets, now);
     lastRefreshMillis = now;
     lastTickMillis = now;
     LOG.info("ingest instance {} reading {} in group {} (checkpoints: {})", instanceId, config.topics(), config.groupId(),
@@ -358,6 +394,10 @@ public final class Ingestor implements AutoCloseable {
 
   private void process(ConsumerRecords<byte[], byte[]> records) throws InterruptedException {
     for (TopicPartition tp : records.partitions()) {
+      if (stateTap != null && stateTap.reads(tp.topic())) {
+        stateTap.accept(records.records(tp));
+        continue;
+      }
       PartitionSlots.Slot slot = slots.get(tp);
       if (slot == null) {
         continue; // not ours any more (cannot happen inside one poll, kept defensive)
@@ -367,7 +407,7 @@ public final class Ingestor implements AutoCloseable {
       router.route(list, slot.front, batch, tap);
       metrics.records(list.size());
       slots.advance(tp, slot, list.get(list.size() - 1).offset() + 1);
-      basketsSinceCheckpoint += batch.size();
+      checkpoints.counted(batch.size());
       lanes.apply(tp, batch);
     }
   }
@@ -375,6 +415,7 @@ public final class Ingestor implements AutoCloseable {
   private void tick(long now) {
     lastTickMillis = now;
     metrics.tick();
+    published.tick();
     slots.advanceToPositions();
     for (TopicPartition tp : slots.owned()) {
       consumer.currentLag(tp).ifPresent(lag -> metrics.lag(tp.topic(), tp.partition(), lag));
@@ -383,69 +424,17 @@ public final class Ingestor implements AutoCloseable {
 
   // ------------------------------------------------------------------ checkpoints
 
-  /**
-   * Checkpoints the dirty partitions among {@code candidates} (group mode: all dirty ones, one transaction).
-   * Returns false if the commit failed: then nothing of it counts, and the partitions were rewound to their
-   * last checkpoints, to be read again.
-   */
+  /** Checkpoints the dirty partitions among {@code candidates}; false when the commit failed (see {@link Checkpointer}). */
   private boolean checkpoint(Collection<TopicPartition> candidates) {
-    long now = clock.millis();
-    List<TopicPartition> dirty = slots.dirty(store.checkpointsWholeAssignment() ? slots.owned() : candidates);
-    if (dirty.isEmpty() || !store.keepsCheckpoints()) {
-      slots.markClean(dirty);
-      basketsSinceCheckpoint = 0;
-      lastCheckpointMillis = now;
-      return true;
-    }
-    long startNanos = System.nanoTime();
-    List<PartitionCheckpoint> checkpoints = slots.checkpointsOf(dirty, lanes.snapshot(dirty).join(), now);
-    long bytes = store.commit(checkpoints, consumer);
-    if (bytes < 0) {
-      metrics.checkpointFailed();
-      slots.rewindAll();
-      return false;
-    }
-    slots.checkpointed(checkpoints);
-    basketsSinceCheckpoint = 0;
-    lastCheckpointMillis = now;
-    metrics.checkpointed(bytes, System.nanoTime() - startNanos);
-    LOG.debug("checkpointed {} ({} bytes)", dirty, bytes);
-    return true;
+    return checkpoints.checkpoint(candidates, clock.millis());
   }
 
-  /**
-   * The checkpoint at shutdown. If its transaction fails to commit (typically because a rebalance, such as
-   * another instance leaving at the same moment, made the group generation stale), the partitions were
-   * rewound to their last checkpoints: read them again up to where this instance had stopped and commit
-   * again, until half of {@code shutdown.timeout.ms} is spent (the rest is for closing the clients).
-   * Without this, a clean stop could leave the group's committed state behind what the instance had read.
-   */
-  private void finalCheckpoint() throws InterruptedException {
-    long started = System.nanoTime();
-    long deadline = started + TimeUnit.MILLISECONDS.toNanos(config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS) / 2);
-    Map<TopicPartition, Long> target = slots.readOffsets();
-    int attempts = 1;
-    while (!checkpoint(slots.owned())) {
-      if (System.nanoTime() > deadline) {
-        LOG.warn("final checkpoint of instance {} failed {} times; its partitions resume from their last committed checkpoints",
-            instanceId, attempts);
-        return;
-      }
-      LOG.info("final checkpoint of instance {} failed; reading its partitions again up to {} before committing again",
-          instanceId, target);
-      while (!slots.reached(target) && System.nanoTime() < deadline) {
-        runTasks();
-        ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(pollTimeoutMs));
-        if (!records.isEmpty()) {
-          process(records);
-        }
-      }
-      attempts++;
-    }
-    if (attempts > 1) {
-      LOG.info("final checkpoint of instance {} committed at attempt {}, {} ms after the stop", instanceId, attempts,
-          TimeUnit.NANOSECONDS.toMillis(System.nanoTime() - started));
-    }
+  /** Test hook: on the poll thread, stops the loop right after a checkpoint (as a periodic one at the moment of a stop). */
+  void stopRightAfterACheckpoint() {
+    tasks.add(() -> {
+      running = false;
+      checkpoint(slots.owned());
+    });
   }
 
   /** Test hook: the next {@code n} transaction commits fail like a commit with a stale group generation. */
@@ -472,6 +461,7 @@ public final class Ingestor implements AutoCloseable {
   }
 
   private void closeClients() {
+    followed.forEach(CommittedKey::close);
     if (consumer != null) {
       closeQuietly("the consumer", () -> consumer.close(CloseOptions.timeout(Duration.ofSeconds(10))));
     }
@@ -481,7 +471,7 @@ public final class Ingestor implements AutoCloseable {
       }
       closeQuietly("the producer", () -> producer.close(Duration.ofSeconds(10)));
     }
-    published.close(); // before the store: the group view shares the store's state-topic reader
+    published.close();
     if (store != null) {
       store.close();
     }

@@ -1,6 +1,7 @@
 package org.pairpulse.ingest.kafka;
 
 import java.util.HashMap;
+import java.util.List;
 import java.util.Map;
 import java.util.Objects;
 import org.apache.kafka.clients.CommonClientConfigs;
@@ -13,13 +14,13 @@ import org.apache.kafka.common.serialization.ByteArraySerializer;
 
 /**
  * The one place that turns ingest's settings into Kafka client properties, for ingest's own clients and for
- * every other client of the process (ops' alerts producer, its admin, the live evaluation's reader).
+ * every other client of the process (ops' alerts producer, its admin).
  *
  * <p>The rule for all of them: {@code bootstrap.servers}, then the pass-through keys {@code kafka.X} (every
  * client), then {@code kafka.<kind>.X} (one kind; wins over {@code kafka.X}). So a SASL/TLS setting given once
  * reaches every client. Ingest's own clients add their defaults before the pass-through (so a user can
- * override them) and the settings they cannot work without after it (byte-array (de)serializers, no group on
- * the state reader); see README-ingest.md, Consumption.
+ * override them) and the settings they cannot work without after it (byte-array (de)serializers; in group mode
+ * {@code read_committed} and the assignor that shares the state topic); see README-ingest.md, Consumption.
  */
 public final class KafkaClientProperties {
   /** The kinds of Kafka client, each with its own pass-through prefix {@code kafka.<name>.}. */
@@ -69,9 +70,12 @@ public final class KafkaClientProperties {
 
   /**
    * The group consumer that reads the input topics: no auto commit (checkpoints commit), {@code read_committed},
-   * cooperative rebalancing, 2,000 records a poll, 4 MiB a partition fetch.
+   * cooperative rebalancing, 2,000 records a poll, 4 MiB a partition fetch. With {@code sharedTopics} (group mode: the
+   * state topic and the followed compacted topics) it is the instance's one consumer of the group's state too: it
+   * subscribes to them as well, and whatever is passed through, it reads {@code read_committed}, in the classic group
+   * protocol, with {@link SharedTopicsAssignor} (every member gets every shared partition).
    */
-  Map<String, Object> groupConsumer() {
+  Map<String, Object> groupConsumer(List<String> sharedTopics) {
     Map<String, Object> props = bootstrap();
     props.put(ConsumerConfig.GROUP_ID_CONFIG, config.groupId());
     props.put(ConsumerConfig.CLIENT_ID_CONFIG, clientIdPrefix);
@@ -82,22 +86,12 @@ public final class KafkaClientProperties {
     props.put(ConsumerConfig.MAX_POLL_RECORDS_CONFIG, 2000);
     props.put(ConsumerConfig.MAX_PARTITION_FETCH_BYTES_CONFIG, 4 << 20);
     props.putAll(config.clientOverrides(Kind.CONSUMER.prefixName));
-    byteArrayDeserializers(props);
-    return props;
-  }
-
-  /**
-   * A consumer without a group that reads the state topic ({@code read_committed}): client id
-   * {@code pairpulse-<instance>-<role>}.
-   */
-  Map<String, Object> stateReader(String role) {
-    Map<String, Object> props = bootstrap();
-    props.put(ConsumerConfig.CLIENT_ID_CONFIG, clientIdPrefix + "-" + role);
-    props.putAll(config.clientOverrides(Kind.CONSUMER.prefixName));
-    props.remove(ConsumerConfig.GROUP_ID_CONFIG);
-    props.remove(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG);
-    props.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
-    props.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+    if (!sharedTopics.isEmpty()) {
+      props.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+      props.put(ConsumerConfig.GROUP_PROTOCOL_CONFIG, "classic");
+      props.put(ConsumerConfig.PARTITION_ASSIGNMENT_STRATEGY_CONFIG, SharedTopicsAssignor.class.getName());
+      props.put(SharedTopicsAssignor.SHARED_TOPICS, String.join(",", sharedTopics));
+    }
     byteArrayDeserializers(props);
     return props;
   }

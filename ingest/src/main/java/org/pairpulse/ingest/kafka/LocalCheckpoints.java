@@ -33,8 +33,8 @@ final class LocalCheckpoints implements CheckpointStore {
   }
 
   @Override
-  public Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed) {
-    return files.load(tp.topic(), tp.partition());
+  public Lookup lookup(TopicPartition tp, OffsetAndMetadata committed) {
+    return Lookup.of(files.load(tp.topic(), tp.partition()));
   }
 
   @Override

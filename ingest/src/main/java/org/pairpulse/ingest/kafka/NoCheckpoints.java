@@ -27,8 +27,8 @@ final class NoCheckpoints implements CheckpointStore {
   }
 
   @Override
-  public Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed) {
-    return Optional.empty();
+  public Lookup lookup(TopicPartition tp, OffsetAndMetadata committed) {
+    return Lookup.of(Optional.empty());
   }
 
   @Override

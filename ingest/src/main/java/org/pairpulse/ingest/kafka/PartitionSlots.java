@@ -61,7 +61,14 @@ final class PartitionSlots {
   private final SegmentSettings segmentSettings;
   private final IngestMetrics metrics;
   private final Map<TopicPartition, Slot> slots = new HashMap<>();
+  /** Assigned partitions paused until their checkpoints can be read (state-topic store), in assignment order. */
+  private final Map<TopicPartition, Pending> pending = new java.util.LinkedHashMap<>();
   private final Map<TopicPartition, Long> positions = new ConcurrentHashMap<>();
+  /**
+   * How far each owned partition has been read since it was assigned, kept across rewinds: where a final checkpoint
+   * must get back to when a failed commit rewound the partitions just before the stop.
+   */
+  private final Map<TopicPartition, Long> readUpTo = new HashMap<>();
   private volatile Set<TopicPartition> assignment = Set.of();
 
   PartitionSlots(Consumer<byte[], byte[]> consumer, CheckpointStore store, EngineLanes lanes, FrontSettings frontSettings,
@@ -99,6 +106,7 @@ final class PartitionSlots {
     slot.nextOffset = nextOffset;
     slot.dirty = true;
     positions.put(tp, nextOffset);
+    readUpTo.merge(tp, nextOffset, Math::max);
   }
 
   /**
@@ -161,7 +169,10 @@ final class PartitionSlots {
     }
   }
 
-  /** How far each owned partition is read (those read at all): the targets of a redone final checkpoint. */
+  /**
+   * How far each owned partition has been read (those read at all), before any rewind since it was assigned: the
+   * targets of the final checkpoint.
+   */
   Map<TopicPartition, Long> readOffsets() {
     Map<TopicPartition, Long> target = new HashMap<>();
     slots.forEach((tp, slot) -> {
@@ -169,12 +180,20 @@ final class PartitionSlots {
         target.put(tp, slot.nextOffset);
       }
     });
+    readUpTo.forEach((tp, offset) -> {
+      if (slots.containsKey(tp) || pending.containsKey(tp)) {
+        target.merge(tp, offset, Math::max);
+      }
+    });
     return target;
   }
 
-  /** True when every partition of {@code target} this instance still owns is read up to its target offset. */
+  /** True when every partition of {@code target} this instance still owns is restored and read up to its target offset. */
   boolean reached(Map<TopicPartition, Long> target) {
     for (Map.Entry<TopicPartition, Long> e : target.entrySet()) {
+      if (pending.containsKey(e.getKey())) {
+        return false;
+      }
       Slot slot = slots.get(e.getKey());
       if (slot != null && slot.nextOffset < e.getValue()) {
         return false;
@@ -197,7 +216,15 @@ final class PartitionSlots {
         starts.put(tp, slot.startOffset);
       }
     }
+    Map<TopicPartition, Long> read = new HashMap<>();
+    partitions.forEach(tp -> {
+      Long offset = readUpTo.get(tp);
+      if (offset != null) {
+        read.put(tp, offset);
+      }
+    });
     forget(partitions);
+    readUpTo.putAll(read); // still ours: a final checkpoint reads them again up to here
     restore(partitions, starts);
   }
 
@@ -205,22 +232,61 @@ final class PartitionSlots {
     restore(partitions, Map.of());
   }
 
+  /** A restore waiting for its checkpoint: the lookup, and where to start without one. */
+  private record Pending(CheckpointStore.Lookup lookup, Long start, OffsetAndMetadata committed) {}
+
   /**
    * Loads the partitions' checkpoints and seeks to the offsets they cover. A partition without a checkpoint
    * starts empty at {@code starts} (a rewind), else at its committed offset, else where the consumer's reset
-   * policy puts it; that start is remembered, so that a later rewind goes back to it.
+   * policy puts it; that start is remembered, so that a later rewind goes back to it. A partition whose checkpoint
+   * cannot be told yet (the state topic is still being read) is paused and restored by {@link #restorePending()}.
    */
   private void restore(Collection<TopicPartition> partitions, Map<TopicPartition, Long> starts) {
     if (partitions.isEmpty()) {
       return;
     }
     Map<TopicPartition, OffsetAndMetadata> committed = store.committed(consumer, new HashSet<>(partitions));
+    List<TopicPartition> paused = new ArrayList<>();
     for (TopicPartition tp : partitions) {
-      Optional<PartitionCheckpoint> checkpoint = store.load(tp, committed.get(tp));
-      Slot slot = checkpoint.isPresent() ? restored(tp, checkpoint.get()) : fresh(tp, starts, committed.get(tp));
-      slots.put(tp, slot);
+      Pending wait = new Pending(store.lookup(tp, committed.get(tp)), starts.get(tp), committed.get(tp));
+      if (wait.lookup().ready()) {
+        place(tp, wait);
+      } else {
+        pending.put(tp, wait);
+        paused.add(tp);
+      }
+    }
+    if (!paused.isEmpty()) {
+      consumer.pause(paused);
+      LOG.debug("{} paused until their checkpoints are read", paused);
     }
     assignment = Set.copyOf(slots.keySet());
+  }
+
+  /** After every poll: restores (and resumes) the paused partitions whose checkpoints can be told now. */
+  void restorePending() {
+    if (pending.isEmpty()) {
+      return;
+    }
+    List<TopicPartition> resumed = new ArrayList<>();
+    for (java.util.Iterator<Map.Entry<TopicPartition, Pending>> it = pending.entrySet().iterator(); it.hasNext(); ) {
+      Map.Entry<TopicPartition, Pending> e = it.next();
+      if (e.getValue().lookup().ready()) {
+        it.remove();
+        place(e.getKey(), e.getValue());
+        resumed.add(e.getKey());
+      }
+    }
+    if (!resumed.isEmpty()) {
+      consumer.resume(resumed);
+      assignment = Set.copyOf(slots.keySet());
+    }
+  }
+
+  /** Restores {@code tp} from its lookup's checkpoint, or starts it empty. */
+  private void place(TopicPartition tp, Pending wait) {
+    Optional<PartitionCheckpoint> checkpoint = wait.lookup().found();
+    slots.put(tp, checkpoint.isPresent() ? restored(tp, checkpoint.get()) : fresh(tp, wait.start(), wait.committed()));
   }
 
   private Slot restored(TopicPartition tp, PartitionCheckpoint cp) {
@@ -242,12 +308,12 @@ final class PartitionSlots {
     return slot;
   }
 
-  private Slot fresh(TopicPartition tp, Map<TopicPartition, Long> starts, OffsetAndMetadata committed) {
+  private Slot fresh(TopicPartition tp, Long rewindTo, OffsetAndMetadata committed) {
     Slot slot = new Slot(new PartitionFront(frontSettings));
     lanes.drop(List.of(tp)).join();
     long start;
-    if (starts.containsKey(tp)) {
-      start = starts.get(tp);
+    if (rewindTo != null) {
+      start = rewindTo;
     } else if (committed != null) {
       start = committed.offset();
       LOG.warn("{} has committed offset {} but no checkpoint: its earlier baskets are not in this state", tp, start);
@@ -263,7 +329,9 @@ final class PartitionSlots {
     lanes.drop(partitions).join();
     for (TopicPartition tp : partitions) {
       slots.remove(tp);
+      pending.remove(tp);
       positions.remove(tp);
+      readUpTo.remove(tp);
       metrics.forgetPartition(tp.topic(), tp.partition());
     }
     assignment = Set.copyOf(slots.keySet());

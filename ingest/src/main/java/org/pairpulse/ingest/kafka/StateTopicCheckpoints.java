@@ -7,7 +7,6 @@ import java.util.concurrent.atomic.AtomicInteger;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.consumer.CommitFailedException;
 import org.apache.kafka.clients.consumer.Consumer;
-import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
 import org.apache.kafka.clients.producer.Producer;
 import org.apache.kafka.common.KafkaException;
@@ -37,7 +36,7 @@ final class StateTopicCheckpoints implements CheckpointStore {
   private static final long TRANSACTION_ABORT_SLACK_MS = 30_000;
 
   private final Producer<byte[], byte[]> producer;
-  private final SharedStateReader stateReader;
+  private final StateTap tap;
   private final StateTopicStore chunks;
   private final KafkaClientProperties clients;
   /** Test hook: so many coming commits fail as if a rebalance had made the group generation stale. */
@@ -52,18 +51,14 @@ final class StateTopicCheckpoints implements CheckpointStore {
     this.commitsToFail = commitsToFail;
     producer.initTransactions();
     producer.beginTransaction();
-    this.stateReader = new SharedStateReader(new KafkaConsumer<>(clients.stateReader("state")));
     // a restore may wait for a dead instance's open transaction to be aborted (transaction.timeout.ms)
-    long restoreTimeoutMs = Math.max(Math.max(MIN_RESTORE_TIMEOUT_MS, config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS)),
-        config.transactionTimeoutMs() + TRANSACTION_ABORT_SLACK_MS);
-    try {
-      this.chunks = new StateTopicStore(config.getString(IngestConfig.STATE_TOPIC), config.groupId(),
-          layout.statePartitions(), layout.chunkBytes(), producer, stateReader.lease(), Duration.ofMillis(restoreTimeoutMs),
-          this::stateLogEnd);
-    } catch (RuntimeException e) {
-      stateReader.close(Duration.ofSeconds(5));
-      throw e;
-    }
+    Duration restoreTimeout = Duration.ofMillis(Math.max(Math.max(MIN_RESTORE_TIMEOUT_MS,
+        config.getLong(IngestConfig.SHUTDOWN_TIMEOUT_MS)), config.transactionTimeoutMs() + TRANSACTION_ABORT_SLACK_MS));
+    String stateTopic = config.getString(IngestConfig.STATE_TOPIC);
+    this.chunks = new StateTopicStore(stateTopic, config.groupId(), layout.statePartitions(), layout.chunkBytes(), producer,
+        restoreTimeout, this::stateLogEnd);
+    this.tap = new StateTap(stateTopic, config.groupId(), layout.statePartitions(), config.topics(), restoreTimeout,
+        this::stateLogEnd);
   }
 
   @Override
@@ -72,8 +67,8 @@ final class StateTopicCheckpoints implements CheckpointStore {
   }
 
   @Override
-  public Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed) {
-    return chunks.load(tp, committed);
+  public Lookup lookup(TopicPartition tp, OffsetAndMetadata committed) {
+    return tap.lookup(tp, committed, cp -> chunks.restored(tp, cp));
   }
 
   @Override
@@ -133,13 +128,12 @@ final class StateTopicCheckpoints implements CheckpointStore {
   }
 
   @Override
-  public Optional<SharedStateReader> stateReader() {
-    return Optional.of(stateReader);
+  public Optional<StateTap> stateTap() {
+    return Optional.of(tap);
   }
 
   @Override
   public void close() {
-    stateReader.close(Duration.ofSeconds(5));
     if (stateAdmin != null) {
       stateAdmin.close(Duration.ofSeconds(5));
     }

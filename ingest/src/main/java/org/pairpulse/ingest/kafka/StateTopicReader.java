@@ -49,7 +49,7 @@ public final class StateTopicReader {
     Map<TopicPartition, PartitionCheckpoint> out = new TreeMap<>((a, b) -> a.topic().equals(b.topic())
         ? Integer.compare(a.partition(), b.partition()) : a.topic().compareTo(b.topic()));
     try (Admin admin = Admin.create(adminProps);
-        SharedStateReader reader = new SharedStateReader(new KafkaConsumer<>(readerProps))) {
+        KafkaConsumer<byte[], byte[]> reader = new KafkaConsumer<>(readerProps)) {
       Map<String, TopicDescription> described = admin.describeTopics(topics).allTopicNames().get(60, TimeUnit.SECONDS);
       List<TopicPartition> inputs = new java.util.ArrayList<>();
       described.values().forEach(topic -> topic.partitions().forEach(p -> inputs.add(new TopicPartition(topic.name(),
@@ -57,12 +57,12 @@ public final class StateTopicReader {
       Map<TopicPartition, OffsetAndMetadata> committed = StableOffsets.committed(admin, group, inputs);
       int statePartitions = admin.describeTopics(List.of(stateTopic)).allTopicNames().get(60, TimeUnit.SECONDS)
           .get(stateTopic).partitions().size();
-      StateTopicStore store = new StateTopicStore(stateTopic, group, statePartitions, 1 << 20, null, reader.lease(),
+      StateTopicStore store = new StateTopicStore(stateTopic, group, statePartitions, 1 << 20, null,
           Duration.ofSeconds(90), source -> logEndOffset(admin, source));
       for (TopicDescription topic : described.values()) {
         topic.partitions().forEach(p -> {
           TopicPartition tp = new TopicPartition(topic.name(), p.partition());
-          Optional<PartitionCheckpoint> cp = store.load(tp, committed.get(tp));
+          Optional<PartitionCheckpoint> cp = store.load(reader, tp, committed.get(tp));
           cp.ifPresent(c -> out.put(tp, c));
         });
       }

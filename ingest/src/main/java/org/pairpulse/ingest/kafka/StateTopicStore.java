@@ -54,8 +54,10 @@ import org.slf4j.LoggerFactory;
  * The chunks are sent in the ingestor's open transaction; the consumer offsets follow in the same
  * transaction, each with metadata {@code "pp1 <statePartition> <firstChunkOffset> <chunkCount> <checkpointId>"}
  * saying where its checkpoint starts. So the offsets and the state they describe commit together or not
- * at all. A restore seeks to that offset and reads the chunks ({@code read_committed}); without usable
- * metadata it scans the state partition and takes the newest complete checkpoint.
+ * at all. A running instance reads the chunks as its one consumer polls them ({@link StateTap}) and restores
+ * the checkpoint the metadata names; an outside reader ({@link StateTopicReader}, {@link #load}) seeks to that
+ * offset and reads the chunks ({@code read_committed}); without usable metadata either takes the newest complete
+ * checkpoint of the state partition.
  *
  * <h2>Open transactions ahead of a checkpoint</h2>
  * A {@code read_committed} reader sees nothing past a partition's last stable offset (LSO), the start of
@@ -77,20 +79,18 @@ final class StateTopicStore {
   private final int statePartitions;
   private final int chunkBytes;
   private final Producer<byte[], byte[]> producer;
-  private final SharedStateReader.Lease reader;
   private final Duration timeout;
   private final ToLongFunction<TopicPartition> logEnd;
   /** Chunks of the last checkpoint written or read, per input partition (for tombstones). */
   private final Map<TopicPartition, Integer> lastChunkCount = new HashMap<>();
 
   /**
-   * @param reader this store's lease on the instance's state-topic reader
    * @param timeout longest wait for a checkpoint hidden behind an open transaction (see above)
    * @param logEnd the log end offset (high watermark, {@code read_uncommitted}) of a state partition, or −1
    *     when it cannot be told
    */
   StateTopicStore(String stateTopic, String group, int statePartitions, int chunkBytes, Producer<byte[], byte[]> producer,
-      SharedStateReader.Lease reader, Duration timeout, ToLongFunction<TopicPartition> logEnd) {
+      Duration timeout, ToLongFunction<TopicPartition> logEnd) {
     if (chunkBytes < 1024) {
       throw new IllegalArgumentException("state chunk must be at least 1 KiB, got " + chunkBytes);
     }
@@ -99,7 +99,6 @@ final class StateTopicStore {
     this.statePartitions = statePartitions;
     this.chunkBytes = chunkBytes;
     this.producer = producer;
-    this.reader = reader;
     this.timeout = timeout;
     this.logEnd = logEnd;
   }
@@ -181,12 +180,12 @@ final class StateTopicStore {
 
   record Written(Map<TopicPartition, OffsetAndMetadata> offsets, long bytes) {}
 
-  /** The partition's checkpoint: through the commit metadata if given, else by scanning. */
-  Optional<PartitionCheckpoint> load(TopicPartition tp, OffsetAndMetadata committed) {
-    return reader.use((consumer, lent) -> load(consumer, tp, committed));
-  }
-
-  private Optional<PartitionCheckpoint> load(Consumer<byte[], byte[]> reader, TopicPartition tp, OffsetAndMetadata committed) {
+  /**
+   * The partition's checkpoint, read with {@code reader} (a {@code read_committed} consumer without a group, of an
+   * outside reader such as {@link StateTopicReader}: a running instance reads through its {@link StateTap}): through
+   * the commit metadata if given, else by scanning.
+   */
+  Optional<PartitionCheckpoint> load(Consumer<byte[], byte[]> reader, TopicPartition tp, OffsetAndMetadata committed) {
     Optional<PartitionCheckpoint> found = Optional.empty();
     if (committed != null && committed.metadata() != null && committed.metadata().startsWith(METADATA_PREFIX + " ")) {
       String[] parts = committed.metadata().split(" ");
@@ -214,8 +213,13 @@ final class StateTopicStore {
       LOG.warn("checkpoint of {} covers up to offset {}, the group committed {}; resuming from the checkpoint", tp,
           found.get().nextOffset(), committed.offset());
     }
-    found.ifPresent(cp -> lastChunkCount.merge(tp, chunkCountOf(cp), Math::max));
+    found.ifPresent(cp -> restored(tp, cp));
     return found;
+  }
+
+  /** {@code cp} was restored: a shorter later checkpoint of {@code tp} tombstones its extra chunks. */
+  void restored(TopicPartition tp, PartitionCheckpoint cp) {
+    lastChunkCount.merge(tp, chunkCountOf(cp), Math::max);
   }
 
   private int chunkCountOf(PartitionCheckpoint cp) {

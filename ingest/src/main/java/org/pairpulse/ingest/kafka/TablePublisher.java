@@ -31,7 +31,7 @@ import org.pairpulse.sketch.table.PairTableSource;
  * {@code group.view}, the {@link GroupView} whose remote partitions each refresh merges in and the coverage of the
  * newest table.
  *
- * <p>Threading: {@link #openGroupView}, {@link #refresh} and {@link #close} on the poll thread; a refresh's
+ * <p>Threading: {@link #openGroupView}, {@link #refresh}, {@link #tick} and {@link #close} on the poll thread; a refresh's
  * callback (an engine thread) publishes; the readers ({@link #all()}, {@link #segments()}, ...) may be called from
  * any thread and see each table whole.
  */
@@ -62,10 +62,16 @@ final class TablePublisher {
    * the view partial.
    */
   void openGroupView(IngestConfig config, KafkaClientProperties clients, EngineConfig engineConfig, LongSupplier clock,
-      Supplier<Set<TopicPartition>> owned, SharedStateReader stateReader) {
+      Supplier<Set<TopicPartition>> owned, StateTap tap) {
     viewAdmin = Admin.create(clients.admin("admin"));
-    groupView = new GroupView(config.getString(IngestConfig.STATE_TOPIC), config.groupId(), config.topics(),
-        engineConfig, config.groupViewStaleMs(), stateReader.lease(), viewAdmin, clock, owned).start();
+    groupView = new GroupView(config.topics(), engineConfig, config.groupViewStaleMs(), tap, viewAdmin, clock, owned);
+  }
+
+  /** The poll loop's tick: the group view asks for the log end offsets (poll thread). */
+  void tick() {
+    if (groupView != null) {
+      groupView.tick();
+    }
   }
 
   /** True while the previous refresh has not published yet (a refresh is not started on top of it). */

@@ -92,6 +92,8 @@ class GroupTest {
     Map<TopicPartition, PartitionCheckpoint> state = StateTopicReader.read(broker.bootstrapServers(), topic + "-state",
         "g-" + topic, List.of(topic), Map.of());
     assertEquals(4, state.size());
+    state.forEach((tp, cp) -> System.out.printf("state of %s: checkpoint %d, next offset %d, %d baskets%n", tp,
+        cp.checkpointId(), cp.nextOffset(), Snapshots.read(cp.engine()).stats().baskets()));
     w.assertExact(StateTopicReader.merge(Workload.engineConfig(), state));
     w.assertExactSegments(StateTopicReader.mergeSegments(state));
   }

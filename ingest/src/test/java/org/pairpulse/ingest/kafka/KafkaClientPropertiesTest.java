@@ -4,6 +4,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 
 import java.util.HashMap;
+import java.util.List;
 import java.util.Map;
 import org.apache.kafka.clients.consumer.ConsumerConfig;
 import org.apache.kafka.clients.producer.ProducerConfig;
@@ -39,14 +40,14 @@ class KafkaClientPropertiesTest {
   }
 
   @Test
-  void ingestDefaultsGiveWayButItsByteArraysAndStateReaderRulesDoNot() {
+  void ingestDefaultsGiveWayButItsByteArraysAndSharedStateRulesDoNot() {
     IngestConfig config = config("kafka", "kafka.consumer.max.poll.records", "10",
         "kafka.consumer.key.deserializer", "org.apache.kafka.common.serialization.StringDeserializer",
         "kafka.consumer.group.instance.id", "pod-1", "kafka.consumer.isolation.level", "read_uncommitted",
         "kafka.producer.compression.type", "zstd");
     KafkaClientProperties clients = new KafkaClientProperties(config, "i1");
 
-    Map<String, Object> consumer = clients.groupConsumer();
+    Map<String, Object> consumer = clients.groupConsumer(List.of());
     assertEquals("10", consumer.get(ConsumerConfig.MAX_POLL_RECORDS_CONFIG), "a default overridden by pass-through");
     assertEquals(4 << 20, consumer.get(ConsumerConfig.MAX_PARTITION_FETCH_BYTES_CONFIG), "a default kept");
     assertEquals("g", consumer.get(ConsumerConfig.GROUP_ID_CONFIG));
@@ -55,11 +56,15 @@ class KafkaClientPropertiesTest {
     assertEquals(ByteArrayDeserializer.class.getName(), consumer.get(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG),
         "the poll loop reads bytes, whatever is passed through");
 
-    Map<String, Object> reader = clients.stateReader("view");
-    assertFalse(reader.containsKey(ConsumerConfig.GROUP_ID_CONFIG), "the state reader joins no group");
-    assertFalse(reader.containsKey(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG), "nor as a static member");
-    assertEquals("read_committed", reader.get(ConsumerConfig.ISOLATION_LEVEL_CONFIG), "checkpoints: committed only");
-    assertEquals("pairpulse-i1-view", reader.get(ConsumerConfig.CLIENT_ID_CONFIG));
+    assertEquals("read_uncommitted", consumer.get(ConsumerConfig.ISOLATION_LEVEL_CONFIG), "without shared topics: passed through");
+
+    Map<String, Object> shared = clients.groupConsumer(List.of("state", "state.alerts"));
+    assertEquals("read_committed", shared.get(ConsumerConfig.ISOLATION_LEVEL_CONFIG), "checkpoints: committed only");
+    assertEquals("classic", shared.get(ConsumerConfig.GROUP_PROTOCOL_CONFIG), "the client-side assignor decides");
+    assertEquals(SharedTopicsAssignor.class.getName(), shared.get(ConsumerConfig.PARTITION_ASSIGNMENT_STRATEGY_CONFIG));
+    assertEquals("state,state.alerts", shared.get(SharedTopicsAssignor.SHARED_TOPICS));
+    assertEquals("pod-1", shared.get(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG), "a static member still");
+    assertEquals("pairpulse-i1", shared.get(ConsumerConfig.CLIENT_ID_CONFIG));
 
     Map<String, Object> producer = clients.producer();
     assertEquals("zstd", producer.get(ProducerConfig.COMPRESSION_TYPE_CONFIG));

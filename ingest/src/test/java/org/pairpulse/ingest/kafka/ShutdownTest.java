@@ -23,14 +23,28 @@ import org.pairpulse.sketch.time.EventClock;
 /**
  * A clean stop whose final checkpoint fails to commit (as when another instance leaves the group at the
  * same moment and the generation goes stale) still leaves the group's state complete: the instance reads
- * its partitions again from their last checkpoints and commits again before it closes.
+ * its partitions again from their last checkpoints and commits again before it closes. The same when the commit
+ * that fails is a periodic one just before the stop (its partitions are rewound when the final checkpoint begins).
  */
 @ExtendWith(SharedBroker.class)
 class ShutdownTest {
 
   @Test
   void aFinalCheckpointThatFailsToCommitIsRedoneBeforeClosing(Broker broker) throws Exception {
-    String topic = "shutdown";
+    stopWithAFailedCommit(broker, "shutdown", Ingestor::close);
+  }
+
+  @Test
+  void aCheckpointThatFailsJustBeforeTheStopIsMadeGoodByTheFinalOne(Broker broker) throws Exception {
+    stopWithAFailedCommit(broker, "shutdown-after-failure", ingestor -> {
+      ingestor.stopRightAfterACheckpoint();
+      ingestor.close();
+    });
+  }
+
+  /** Reads a whole input, makes the next commit fail, stops with {@code stop}: the group's state is complete. */
+  private static void stopWithAFailedCommit(Broker broker, String topic, java.util.function.Consumer<Ingestor> stop)
+      throws Exception {
     broker.createTopic(topic, 3, Map.of());
     Workload w = Workload.generate(41, 1000);
     w.produce(broker, topic, 0, w.records.size());
@@ -46,12 +60,12 @@ class ShutdownTest {
       assertEquals(0, ingestor.metrics().checkpointCount(), "nothing checkpointed before the stop");
       ingestor.failNextCommits(1);
     } finally {
-      ingestor.close();
+      stop.accept(ingestor);
     }
-    assertEquals(1, ingestor.metrics().checkpointFailureCount(), 0.0, "the final commit failed once");
+    assertEquals(1, ingestor.metrics().checkpointFailureCount(), 0.0, "a commit failed once");
     Map<TopicPartition, PartitionCheckpoint> state = StateTopicReader.read(broker.bootstrapServers(), topic + "-state",
         "g-" + topic, List.of(topic), Map.of());
-    assertEquals(3, state.size(), "a checkpoint per partition after the redone final checkpoint");
+    assertEquals(3, state.size(), "a checkpoint per partition after the final checkpoint");
     state.forEach((tp, cp) -> assertEquals(ends.get(tp), cp.nextOffset(), "checkpoint of " + tp + " covers its input"));
     w.assertExact(StateTopicReader.merge(Workload.engineConfig(), state));
     Map<DeadLetterReason, Long> byReason = new EnumMap<>(DeadLetterReason.class);

@@ -77,14 +77,14 @@ class StateTopicStoreTest {
     ScheduledExecutorService timer = Executors.newSingleThreadScheduledExecutor();
     try (KafkaProducer<byte[], byte[]> zombie = transactional(broker, "hidden-zombie");
         KafkaProducer<byte[], byte[]> live = transactional(broker, "hidden-live");
-        SharedStateReader reader = new SharedStateReader(broker.reader());
+        KafkaConsumer<byte[], byte[]> reader = broker.reader();
         Admin admin = broker.admin()) {
       // the killed instance: a transaction left open on the state partition
       zombie.beginTransaction();
       zombie.send(new ProducerRecord<>(stateTopic, 0, "half".getBytes(StandardCharsets.UTF_8), new byte[] {1})).get();
 
       // another instance commits a checkpoint (3 chunks) and the offsets pointing at it, after it
-      StateTopicStore store = new StateTopicStore(stateTopic, group, 1, 4096, live, reader.lease(), Duration.ofSeconds(120),
+      StateTopicStore store = new StateTopicStore(stateTopic, group, 1, 4096, live, Duration.ofSeconds(120),
           source -> StateTopicReader.logEndOffset(admin, source));
       live.beginTransaction();
       StateTopicStore.Written w = store.write(List.of(written));
@@ -106,13 +106,13 @@ class StateTopicStoreTest {
       assertNotNull(committed, "the committed offsets of " + group);
       assertEquals(42, committed.offset());
       assertTrue(committed.metadata().startsWith("pp1 0 1 3 1"), committed.metadata());
-      assertEquals(0L, reader.lease().<Long>use((c, lent) -> c.endOffsets(List.of(statePartition)).get(statePartition)),
+      assertEquals(0L, reader.endOffsets(List.of(statePartition)).get(statePartition),
           "precondition: the open transaction hides everything after it from read_committed readers");
 
       // the coordinator would abort the zombie after its transaction timeout; here the test does
       ScheduledFuture<?> abort = timer.schedule(() -> zombie.abortTransaction(), 2, TimeUnit.SECONDS);
       long t0 = System.nanoTime();
-      Optional<PartitionCheckpoint> loaded = store.load(tp, committed);
+      Optional<PartitionCheckpoint> loaded = store.load(reader, tp, committed);
       long waitedMs = TimeUnit.NANOSECONDS.toMillis(System.nanoTime() - t0);
       abort.get(60, TimeUnit.SECONDS);
       assertTrue(loaded.isPresent(), "the committed checkpoint was not found behind the open transaction");
@@ -129,7 +129,7 @@ class StateTopicStoreTest {
       // metadata pointing at a checkpoint that is not there, with nothing open: no waiting out the timeout,
       // the scan finds the newest complete checkpoint
       t0 = System.nanoTime();
-      Optional<PartitionCheckpoint> scanned = store.load(tp, new OffsetAndMetadata(42, "pp1 0 1 3 77"));
+      Optional<PartitionCheckpoint> scanned = store.load(reader, tp, new OffsetAndMetadata(42, "pp1 0 1 3 77"));
       long scanMs = TimeUnit.NANOSECONDS.toMillis(System.nanoTime() - t0);
       assertTrue(scanned.isPresent());
       assertEquals(1, scanned.get().checkpointId());

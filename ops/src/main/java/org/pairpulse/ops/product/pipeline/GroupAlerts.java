@@ -6,8 +6,6 @@ import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 import java.util.function.Supplier;
-import org.apache.kafka.clients.consumer.Consumer;
-import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.Producer;
 import org.apache.kafka.clients.producer.ProducerConfig;
@@ -16,9 +14,9 @@ import org.apache.kafka.common.KafkaException;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.errors.ProducerFencedException;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
+import org.pairpulse.ingest.kafka.CommittedKey;
 import org.pairpulse.ingest.kafka.IngestConfig;
 import org.pairpulse.ingest.kafka.KafkaClientProperties;
-import org.pairpulse.ingest.kafka.SharedStateReader;
 import org.pairpulse.serve.alerts.AlertLeadership;
 import org.pairpulse.serve.alerts.CloudEvents;
 import org.pairpulse.serve.drift.AlertEvent;
@@ -39,7 +37,8 @@ import org.slf4j.LoggerFactory;
  * {@code pairpulse-<group.id>-alerts}. Each round's alert events (to the alerts topic, as CloudEvents) and the alert
  * state after them (to the compacted alert-state topic, key {@code <group.id>}) form one transaction. A new leader's
  * {@code initTransactions} fences the previous one (a crashed or paused instance can publish nothing more) and aborts
- * its open transaction; it then reads the state committed last ({@code read_committed}) and continues from it. So an
+ * its open transaction; it then reads the state committed last ({@code read_committed}, through the instance's one
+ * consumer, which follows the alert-state topic) and continues from it. So an
  * event that was committed is in the state the successor starts from (it is not raised again), and one that was not
  * is raised by the successor from its own tables (it is not lost). Alert ids are stable ({@link AlertEvent#id()}).
  * Readers of the alerts topic must read committed records ({@code isolation.level=read_committed}) to see each event
@@ -49,8 +48,7 @@ final class GroupAlerts implements AlertLeadership {
   private static final Logger LOG = LoggerFactory.getLogger(GroupAlerts.class);
 
   private final Map<String, Object> producerProps;
-  private final Supplier<SharedStateReader.Lease> stateReaders;
-  private SharedStateReader.Lease stateReader; // taken at the first take-over (the ingestor has started then)
+  private final CommittedKey committedState;
   private final Supplier<java.util.Set<TopicPartition>> owned;
   private final TopicPartition designated;
   private final String alertTopic;
@@ -66,13 +64,14 @@ final class GroupAlerts implements AlertLeadership {
    * @param designated the partition whose owner leads
    * @param alertTopic the alerts topic; empty: events go to no topic (the state is published all the same)
    * @param stateTopic the compacted alert-state topic (one partition)
-   * @param stateReaders gives a lease on the instance's one state-topic reader ({@code read_committed}, no group),
-   *     which reads the alert state at a take-over; asked once, at the first take-over
+   * @param committedState the group's alert state ({@code stateTopic}, key {@code <group.id>}) as the instance's one
+   *     consumer follows it ({@code read_committed}, see {@link org.pairpulse.ingest.kafka.Ingestor#followKey}): a
+   *     take-over reads it to the end
    * @param registry where the deliveries to the alerts topic are counted ({@code pairpulse_alert_deliveries_total}
    *     with {@code sink="kafka"}, as the one-instance topic sink counts them)
    */
   GroupAlerts(IngestConfig ingest, String group, Supplier<java.util.Set<TopicPartition>> owned,
-      TopicPartition designated, String alertTopic, String stateTopic, Supplier<SharedStateReader.Lease> stateReaders,
+      TopicPartition designated, String alertTopic, String stateTopic, CommittedKey committedState,
       io.micrometer.core.instrument.MeterRegistry registry) {
     Map<String, Object> p = KafkaClientProperties.forClient(ingest, KafkaClientProperties.Kind.PRODUCER);
     p.put(ProducerConfig.CLIENT_ID_CONFIG, "pairpulse-alerts");
@@ -81,7 +80,7 @@ final class GroupAlerts implements AlertLeadership {
     p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
     p.put(ProducerConfig.MAX_BLOCK_MS_CONFIG, 60_000);
     this.producerProps = p;
-    this.stateReaders = stateReaders;
+    this.committedState = committedState;
     this.owned = owned;
     this.designated = designated;
     this.alertTopic = alertTopic;
@@ -122,32 +121,9 @@ final class GroupAlerts implements AlertLeadership {
     return readState();
   }
 
-  /** The alert state committed last, read to the end of the alert-state topic's partition. */
+  /** The alert state committed last: the poll loop has read the alert-state topic to its end as of now. */
   private Optional<byte[]> readState() {
-    if (stateReader == null) {
-      stateReader = stateReaders.get();
-    }
-    return stateReader.use((reader, lent) -> readState(reader));
-  }
-
-  private Optional<byte[]> readState(Consumer<byte[], byte[]> reader) {
-    TopicPartition source = new TopicPartition(stateTopic, 0);
-    byte[] found = null;
-    reader.assign(List.of(source));
-    reader.seekToBeginning(List.of(source));
-    long end = reader.endOffsets(List.of(source), Duration.ofSeconds(60)).get(source);
-    long deadline = System.nanoTime() + Duration.ofSeconds(60).toNanos();
-    while (reader.position(source) < end) {
-      if (System.nanoTime() > deadline) {
-        throw new KafkaException("timed out reading the alert state from " + stateTopic);
-      }
-      for (ConsumerRecord<byte[], byte[]> r : reader.poll(Duration.ofMillis(200))) {
-        if (java.util.Arrays.equals(r.key(), stateKey)) {
-          found = r.value();
-        }
-      }
-    }
-    return Optional.ofNullable(found);
+    return committedState.readCommitted(Duration.ofSeconds(60));
   }
 
   @Override

@@ -8,6 +8,7 @@ import io.micrometer.core.instrument.binder.system.ProcessorMetrics;
 import io.micrometer.core.instrument.binder.system.UptimeMetrics;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
+import java.nio.charset.StandardCharsets;
 import java.util.List;
 import java.util.Map;
 import java.util.Objects;
@@ -216,7 +217,7 @@ public final class Pipeline implements AutoCloseable {
     if (ingestor.groupViewEnabled()) {
       groupAlerts = new GroupAlerts(ingestConfig, ingestConfig.groupId(), ingestor::assignment,
           GroupAlerts.designated(ingestConfig.topics()), settings.alertTopic(), alertStateTopic(ingestConfig),
-          () -> ingestor.stateReaderLease().orElseThrow(() -> new IllegalStateException("ingest has not started")),
+          ingestor.followKey(alertStateTopic(ingestConfig), ingestConfig.groupId().getBytes(StandardCharsets.UTF_8)),
           registry);
       GroupAlerts leader = groupAlerts;
       builder.alertLeadership(groupAlerts).group(new GroupStatus() {

@@ -38,8 +38,9 @@ import org.pairpulse.ops.product.pipeline.Pipeline;
  * MBean server's registrations over the instance's whole life (start, ingest, evaluation trials, close), so a
  * consumer opened only briefly is counted too. Single-node mode (local checkpoints), as {@code run} starts it
  * from a configuration file. In group mode (state-topic checkpoints, the group view and the group's alert leadership
- * on) the instance adds exactly one reader of compacted state, which the checkpoint restores, the group view and the
- * alert take-over share ({@code SharedStateReader}).
+ * on) it is still one: the group's consumer reads the state topic and the alert-state topic beside the basket topics
+ * (every member gets every partition of them, {@code SharedTopicsAssignor}), and the checkpoint restores, the group
+ * view and the alert take-over are fed from its poll loop ({@code StateTap}, {@code CommittedKey}).
  */
 class OneConsumerTest {
   private static final String TOPIC = "one.consumer.baskets";
@@ -59,21 +60,22 @@ class OneConsumerTest {
   }
 
   @Test
-  void inGroupModeTheRestoresTheGroupViewAndTheAlertTakeOverShareOneStateReader() throws Exception {
+  void inGroupModeTheRestoresTheGroupViewAndTheAlertTakeOverReadThroughTheGroupConsumer() throws Exception {
     try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder().build().start()) {
       List<String> opened = runAndCountConsumers(broker, List.of(
           IngestConfig.CHECKPOINT_STORE + "=kafka",
           IngestConfig.STATE_TOPIC + "=" + STATE_TOPIC,
-          IngestConfig.GROUP_VIEW + "=true"), 2, pipeline -> {
+          IngestConfig.GROUP_VIEW + "=true"), 1, pipeline -> {
             // the leader took over the group's alerts: it opened its transactional producer, then read the alert state
             ObjectName alertsProducer = new ObjectName("kafka.producer:type=app-info,id=pairpulse-alerts");
             waitFor(() -> ManagementFactory.getPlatformMBeanServer().isRegistered(alertsProducer),
                 "the take-over of the group's alerts");
             Thread.sleep(1000); // its read of the alert state follows the producer's start
           });
-      assertEquals(2, opened.size(), "consumers opened by one instance of run in group mode (the group's consumer and "
-          + "the one state-topic reader): " + opened);
-      assertEquals(1, opened.stream().filter(id -> id.endsWith("-state")).count(), "one state-topic reader: " + opened);
+      assertEquals(1, opened.size(), "consumers opened by one instance of run in group mode (the group's consumer, "
+          + "which reads the state topics too): " + opened);
+      assertTrue(opened.get(0).matches("pairpulse-[0-9a-f]{8}"), "the group's consumer (client id pairpulse-<instance>), "
+          + "no reader of a role of its own: " + opened);
     }
   }
 
