@@ -87,18 +87,19 @@ public final class PairTables {
     Estimate[] itemByBucket = new Estimate[buckets.count];
     SizeStrata strata = SizeStrata.of(engine, state);
     SizeStrata.ItemClasses[] classesByBucket = strata == null ? null : new SizeStrata.ItemClasses[buckets.count];
+    LiveSlots live = state.isWindow() ? LiveSlots.of(state) : null;
     for (int slot = 0; slot < items.size(); slot++) {
-      Estimate count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch);
+      Estimate count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch, live);
       itemByBucket[slot] = count;
       if (strata != null) {
-        classesByBucket[slot] = strata.item(Counts.knownByClass(engine, state, slot), count);
+        classesByBucket[slot] = strata.item(Counts.knownByClass(engine, state, slot, live), count);
       }
     }
     TrackedTable pairs = engine.pairs;
     Estimate[] countAB = new Estimate[pairs.size()];
     double minPairCount = shared.options.minPairCount();
     for (int slot = 0; slot < pairs.size(); slot++) {
-      Estimate count = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch);
+      Estimate count = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch, live);
       if (count.upper() < minPairCount || count.upper() <= 0) {
         continue;
       }
@@ -262,6 +263,18 @@ public final class PairTables {
 
     @Override
     public PairStats stats(int row) {
+      PairCounts counts = counts(row);
+      return new PairStats(shared.labelA[row], shared.labelB[row], horizon, counts,
+          PairMeasures.of(counts, shared.options.settings()), shared.admittedAtMillis[row]);
+    }
+
+    @Override
+    public double associationPValue(int row) {
+      return PairMeasures.associationPValue(counts(row));
+    }
+
+    /** A present row's counts with the size-adjusted expectation. */
+    private PairCounts counts(int row) {
       int bucketA = shared.buckets.bucketA[row];
       int bucketB = shared.buckets.bucketB[row];
       Estimate countA = itemByBucket[bucketA];
@@ -273,8 +286,7 @@ public final class PairTables {
             bucketB < shared.buckets.tracked ? classesByBucket[bucketB] : strata.untracked(countB));
         counts = counts.withStratifiedExpected(expectation.expected(), expectation.dispersion());
       }
-      return new PairStats(shared.labelA[row], shared.labelB[row], horizon, counts,
-          PairMeasures.of(counts, shared.options.settings()), shared.admittedAtMillis[row]);
+      return counts;
     }
 
     /** Best first by the sort measure (NaN last), ties by item names: strict, as rows hold distinct pairs. */

@@ -156,14 +156,38 @@ public final class PairMeasures {
     double expectedPoint = Math.min(expected.value(), Math.min(point.countA(), point.countB()));
     expectedCountAB = counts.isStratified() ? expectedPoint : point.expectedCountAB();
     adjusted = counts.isStratified() ? adjusted(counts, point, expectedPoint, settings) : unadjusted;
-    double upperA = Math.min(counts.countA().upper(), baskets);
-    double upperB = Math.min(counts.countB().upper(), baskets);
     // the tail (an incomplete beta function) is computed when asked: only the offer screen reads it, for one
     // horizon, while a refresh builds the measures of every pair in every horizon
-    // in effective baskets: a weighted pair count varies φ times as much as a count of baskets
-    double dispersion = counts.isStratified() ? counts.pairCountDispersion() : 1.0;
-    pValueCount = Math.min(counts.countAB().lower(), Math.min(upperA, upperB)) / dispersion;
-    pValueMean = expected.upper() / dispersion;
+    pValueCount = pValueCount(counts);
+    pValueMean = pValueMean(counts, expected);
+  }
+
+  /** The observed count {@link #associationPValue()} reads: n_ab's lower bound (≤ both n_a's upper), over φ. */
+  private static double pValueCount(PairCounts counts) {
+    double baskets = counts.baskets();
+    double upperA = Math.min(counts.countA().upper(), baskets);
+    double upperB = Math.min(counts.countB().upper(), baskets);
+    return Math.min(counts.countAB().lower(), Math.min(upperA, upperB)) / dispersion(counts);
+  }
+
+  /** The mean {@link #associationPValue()} reads: E's upper bound over φ. */
+  private static double pValueMean(PairCounts counts, Estimate expected) {
+    return expected.upper() / dispersion(counts);
+  }
+
+  /** φ: in effective baskets a weighted pair count varies φ times as much as a count of baskets (1 unstratified). */
+  private static double dispersion(PairCounts counts) {
+    return counts.isStratified() ? counts.pairCountDispersion() : 1.0;
+  }
+
+  /**
+   * {@link #associationPValue()} of {@code counts} without the other measures (bit for bit the value that
+   * {@code of(counts, settings).associationPValue()} returns for any settings: the test reads counts and E only). The
+   * offer screen needs every published pair's p-value but no other measure.
+   */
+  public static double associationPValue(PairCounts counts) {
+    return gammaPoissonUpperTail(pValueCount(counts), pValueMean(counts, counts.expectedCountAB()),
+        NULL_MODEL_TOLERANCE);
   }
 
   /** The size-adjusted measures: E from basket-size classes in place of n_a·n_b/N (see the class comment). */
