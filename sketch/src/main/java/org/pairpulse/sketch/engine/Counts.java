@@ -106,6 +106,87 @@ final class Counts {
   }
 
   /**
+   * Every tracked key's count in window {@code state} (slot i at index i), bit for bit what {@link #tracked} gives
+   * key by key: each key's terms are added in the same order (its closed panes' sums from {@code closed}, then its
+   * live panes in ring order), but the live panes are read one pane at a time over all keys, a sequential pass over
+   * the pane-major arrays instead of one load per pane for each key.
+   */
+  static Estimate[] trackedInWindow(PairEngine engine, TrackedTable table, HorizonState state, ClosedPaneSums closed,
+      LiveSlots live) {
+    int keys = table.size();
+    double[] upper = new double[keys];
+    double[] lower = new double[keys];
+    double[] value = new double[keys];
+    long[] admitted = new long[keys];
+    CountMinSketch[] sketches = table == engine.pairs ? state.pairSketch : state.itemSketch;
+    double[] scratch = new double[3];
+    for (int slot = 0; slot < keys; slot++) {
+      long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
+      admitted[slot] = admittedPane;
+      if (admittedPane != Long.MIN_VALUE) { // before admission: still in the panes' sketches
+        closed.read(state, live, sketches, slot, table.keys[slot], admittedPane, scratch);
+        upper[slot] = scratch[0];
+        lower[slot] = scratch[1];
+        value[slot] = scratch[2];
+      }
+    }
+    for (int i = 0; i < live.count; i++) {
+      int p = live.slots[i];
+      long pane = live.panes[i];
+      int from = table.paneIndex(0, state.paneCellOffset + p);
+      double maxError = sketches[p].maxError();
+      for (int slot = 0; slot < keys; slot++) {
+        long admittedPane = admitted[slot];
+        if (admittedPane == Long.MIN_VALUE || pane > admittedPane) { // exact since admission
+          double count = table.panes[from + slot];
+          upper[slot] += count;
+          lower[slot] += count;
+          value[slot] += count;
+        } else if (pane == admittedPane) { // sketch estimate at admission + exact since
+          double count = table.panes[from + slot];
+          double paneLower = Math.max(0, count - maxError);
+          double bias = table.admissionBias[slot * table.horizonCount + state.index];
+          upper[slot] += count;
+          lower[slot] += paneLower;
+          value[slot] += Math.max(paneLower, count - bias);
+        }
+      }
+    }
+    Estimate[] out = new Estimate[keys];
+    for (int slot = 0; slot < keys; slot++) {
+      double low = Math.min(lower[slot], upper[slot]);
+      out[slot] = new Estimate(Math.min(upper[slot], Math.max(low, value[slot])), low, upper[slot]);
+    }
+    return out;
+  }
+
+  /**
+   * {@link #knownByClass} of every tracked item in window {@code state}, at {@code slot * classCount + c}: bit for bit
+   * the same sums (each item's panes in ring order), read one pane at a time over all items.
+   */
+  static double[] knownByClassInWindow(PairEngine engine, HorizonState state, LiveSlots live) {
+    TrackedTable table = engine.items;
+    int classes = table.classCount;
+    int keys = table.size();
+    double[] known = new double[keys * classes];
+    for (int i = 0; i < live.count; i++) {
+      long pane = live.panes[i];
+      int from = table.classPaneIndex(0, state.paneCellOffset + live.slots[i], 0);
+      for (int slot = 0; slot < keys; slot++) {
+        long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
+        if (admittedPane == Long.MIN_VALUE || pane >= admittedPane) {
+          int cell = from + slot * classes;
+          int at = slot * classes;
+          for (int c = 0; c < classes; c++) {
+            known[at + c] += table.classPanes[cell + c];
+          }
+        }
+      }
+    }
+    return known;
+  }
+
+  /**
    * {upper, lower, value} summed over the live panes of window {@code state} older than {@code admittedPane}, in
    * ring order, into {@code out}: the estimate, {@code max(0, estimate − ε·W)} and the debiased estimate of each.
    * These panes are closed; see {@link ClosedPaneSums}.
