@@ -6,7 +6,6 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
-import java.util.concurrent.atomic.AtomicReferenceArray;
 import org.pairpulse.serve.floor.FlooredTable;
 import org.pairpulse.serve.floor.OfferScreen;
 import org.pairpulse.sketch.stats.Estimate;
@@ -30,8 +29,10 @@ import org.pairpulse.sketch.table.PairStats;
  * 200,000 pairs in three horizons, at most 1.2 M entries (~50 MB) once every item is read, usually far fewer.
  */
 final class SuggestIndex {
-  final Map<String, Integer> ids;
-  final String[] names;
+  /** Item ids, given on first sight (an item's entries, an entry's other item, a published count): any order will do. */
+  private final Map<String, Integer> ids = new ConcurrentHashMap<>();
+  /** Name of each id; grows under the lock of {@link #register}, entries are never changed once written. */
+  private volatile String[] names = new String[256];
   private final FlooredTable table;
   private final int limit;
   private final Map<String, Horizon> horizons = new ConcurrentHashMap<>();
@@ -96,12 +97,17 @@ final class SuggestIndex {
    * published (held back by the floor, or not tracked), and the ids of the items with a published count, most
    * frequent first (n_c descending, then id string ascending).
    */
-  record Priors(double[] lnSupport, int[] popular) {}
+  record Priors(double[] lnSupport, int[] popular) {
+    /** ln s(c) of item id {@code id}; NaN without a published count (an id given after the priors has none). */
+    double lnSupportOf(int id) {
+      return id < lnSupport.length ? lnSupport[id] : Double.NaN;
+    }
+  }
 
   /** One horizon's entries, each item's on first read. */
   final class Horizon {
     final String name;
-    private final AtomicReferenceArray<Entries> entries = new AtomicReferenceArray<>(names.length);
+    private final Map<Integer, Entries> entries = new ConcurrentHashMap<>();
     private volatile Priors priors;
     private volatile OfferScreen.Horizon screen;
 
@@ -109,12 +115,12 @@ final class SuggestIndex {
       this.name = name;
     }
 
-    /** The entries of item id {@code id}, built on first read. */
+    /** The entries of item id {@code id}, built on first read (the first built is kept: readers share it). */
     Entries entries(int id) {
       Entries e = entries.get(id);
       if (e == null) {
-        Entries built = build(id);
-        e = entries.compareAndExchange(id, null, built);
+        Entries built = build(name(id));
+        e = entries.putIfAbsent(id, built);
         if (e == null) {
           e = built;
         }
@@ -122,8 +128,26 @@ final class SuggestIndex {
       return e;
     }
 
-    private Entries build(int id) {
-      List<PairStats> row = table.neighbours(names[id], name);
+    /**
+     * The id of {@code item} when it has entries in this horizon (its entries built on the way), else −1: an item the
+     * table does not know gets no id.
+     */
+    int idWithEntries(String item) {
+      Integer id = ids.get(item);
+      if (id != null) {
+        return entries(id).size() == 0 ? -1 : id;
+      }
+      Entries built = build(item);
+      if (built.size() == 0) {
+        return -1;
+      }
+      int given = register(item);
+      Entries raced = entries.putIfAbsent(given, built);
+      return (raced == null ? built : raced).size() == 0 ? -1 : given;
+    }
+
+    private Entries build(String item) {
+      List<PairStats> row = table.neighbours(item, name);
       int size = Math.min(limit, row.size());
       if (size == 0) {
         return Entries.NONE;
@@ -131,9 +155,9 @@ final class SuggestIndex {
       Entries out = new Entries(size);
       for (int e = 0; e < size; e++) {
         PairStats p = row.get(e);
-        boolean fwd = p.itemA().equals(names[id]);
+        boolean fwd = p.itemA().equals(item);
         PairMeasures m = p.measures();
-        out.other[e] = ids.get(fwd ? p.itemB() : p.itemA());
+        out.other[e] = register(fwd ? p.itemB() : p.itemA());
         out.stats[e] = p;
         out.forward[e] = fwd;
         out.confidence[e] = fwd ? m.confidenceAB() : m.confidenceBA();
@@ -164,22 +188,25 @@ final class SuggestIndex {
     }
 
     private Priors computePriors() {
-      double[] lnSupport = new double[names.length];
-      Arrays.fill(lnSupport, Double.NaN);
       double baskets = table.baskets(name);
       Map<String, Estimate> counts = table.items(name);
       List<Integer> published = new ArrayList<>(counts.size());
+      Map<Integer, Double> logs = new HashMap<>();
       for (Map.Entry<String, Estimate> item : counts.entrySet()) {
         double support = item.getValue().value() / baskets;
         if (support > 0 && !Double.isInfinite(support)) { // false for NaN (N under the floor)
-          int id = ids.get(item.getKey());
-          lnSupport[id] = Math.log(Math.min(1.0, support));
+          int id = register(item.getKey());
+          logs.put(id, Math.log(Math.min(1.0, support)));
           published.add(id);
         }
       }
+      String[] known = names;
+      double[] lnSupport = new double[ids.size()];
+      Arrays.fill(lnSupport, Double.NaN);
+      logs.forEach((id, value) -> lnSupport[id] = value);
       published.sort((x, y) -> {
         int byCount = Double.compare(lnSupport[y], lnSupport[x]);
-        return byCount != 0 ? byCount : names[x].compareTo(names[y]);
+        return byCount != 0 ? byCount : known[x].compareTo(known[y]);
       });
       return new Priors(lnSupport, published.stream().mapToInt(Integer::intValue).toArray());
     }
@@ -188,22 +215,38 @@ final class SuggestIndex {
   private SuggestIndex(FlooredTable table, int limit) {
     this.table = table;
     this.limit = limit;
-    // ids: every item of the table's rows and item counts (a superset of the published ones; an id without entries
-    // or a published count reads as unknown), so that an item's entries are built only when a request reads it
-    Map<String, Integer> idOf = new HashMap<>();
-    for (String h : table.horizonNames()) {
-      HorizonTable raw = table.table().horizon(h).orElseThrow();
-      for (int row = 0; row < raw.rowCount(); row++) {
-        idOf.putIfAbsent(raw.itemA(row), idOf.size());
-        idOf.putIfAbsent(raw.itemB(row), idOf.size());
-      }
-      for (String item : raw.itemCounts().keySet()) {
-        idOf.putIfAbsent(item, idOf.size());
-      }
+  }
+
+  /** The id of {@code item}, given now if it has none (ids are dense: 0, 1, 2, ...). */
+  int register(String item) {
+    Integer id = ids.get(item);
+    if (id != null) {
+      return id;
     }
-    this.ids = idOf;
-    this.names = new String[idOf.size()];
-    idOf.forEach((name, id) -> names[id] = name);
+    synchronized (this) {
+      id = ids.get(item);
+      if (id == null) {
+        id = ids.size();
+        String[] n = names;
+        if (id == n.length) {
+          n = Arrays.copyOf(n, n.length * 2);
+        }
+        n[id] = item;
+        names = n; // published before the id is: whoever reads the id reads the name
+        ids.put(item, id);
+      }
+      return id;
+    }
+  }
+
+  /** The id of {@code item}, or null when it has none yet. */
+  Integer id(String item) {
+    return ids.get(item);
+  }
+
+  /** The name of an id given by {@link #register}. */
+  String name(int id) {
+    return names[id];
   }
 
   /** The index of {@code table} for {@code limit}, built on first use and shared. */
@@ -217,9 +260,15 @@ final class SuggestIndex {
   SuggestIndex buildAll() {
     for (String h : table.horizonNames()) {
       Horizon horizon = horizon(h);
-      for (int id = 0; id < names.length; id++) {
-        horizon.entries(id).contributions(Measure.SHRUNK_LIFT); // the default measure, ready before a request
-        horizon.significant(id);
+      HorizonTable raw = table.table().horizon(h).orElseThrow();
+      for (int row = 0; row < raw.rowCount(); row++) {
+        for (String item : new String[] {raw.itemA(row), raw.itemB(row)}) {
+          int id = horizon.idWithEntries(item);
+          if (id >= 0) {
+            horizon.entries(id).contributions(Measure.SHRUNK_LIFT); // the default measure, ready before a request
+            horizon.significant(id);
+          }
+        }
       }
       horizon.priors();
     }

@@ -189,14 +189,13 @@ public final class Suggester {
     int known = 0;
     int entries = 0;
     for (String item : basket) {
-      Integer id = index.ids.get(item);
-      int size = id == null ? 0 : h.entries(id).size();
-      if (size == 0) {
+      int id = h.idWithEntries(item);
+      if (id < 0) {
         unknown.add(item);
         continue;
       }
       sc.basket[known++] = id;
-      entries += size;
+      entries += h.entries(id).size();
     }
     boolean posterior = request.ranking() == SuggestionRanking.POSTERIOR;
     SuggestIndex.Priors priors = posterior ? h.priors() : null;
@@ -240,12 +239,11 @@ public final class Suggester {
         addPriors(priors, sc);
       }
       // best `count` eligible candidates: score, then id string ascending
-      String[] names = index.names;
       int[] keys = sc.keys;
       double[] scores = sc.scores;
       Comparator<Integer> worstFirst = (x, y) -> {
         int byScore = Double.compare(scores[x], scores[y]);
-        return byScore != 0 ? byScore : names[keys[y]].compareTo(names[keys[x]]);
+        return byScore != 0 ? byScore : index.name(keys[y]).compareTo(index.name(keys[x]));
       };
       PriorityQueue<Integer> best = new PriorityQueue<>(request.count() + 1, worstFirst);
       boolean bundles = request.includeBundles();
@@ -267,7 +265,7 @@ public final class Suggester {
       ranked.sort(worstFirst.reversed());
       List<Suggestion> suggestions = new ArrayList<>(ranked.size());
       for (int slot : ranked) {
-        suggestions.add(new Suggestion(names[keys[slot]], scores[slot], evidence(request, h, sc, known, keys[slot])));
+        suggestions.add(new Suggestion(index.name(keys[slot]), scores[slot], evidence(request, h, sc, known, keys[slot])));
       }
       return new SuggestionResult(basket, unknown, request.horizon(), measure.wireName(), table.version(), suggestions);
     } finally {
@@ -282,7 +280,7 @@ public final class Suggester {
       if (sc.flags[slot] < 0) {
         continue; // a basket item
       }
-      double prior = priors.lnSupport()[sc.keys[slot]];
+      double prior = priors.lnSupportOf(sc.keys[slot]);
       if (Double.isNaN(prior)) {
         sc.flags[slot] &= ~ELIGIBLE;
       } else {
@@ -299,12 +297,11 @@ public final class Suggester {
    */
   private static void addIndependent(SuggestionRequest request, SuggestIndex index, SuggestIndex.Priors priors,
       Scratch sc, PriorityQueue<Integer> best) {
-    String[] names = index.names;
     double[] lnSupport = priors.lnSupport();
     double maxBasketSupport = 0;
     for (String item : request.basket()) {
-      Integer id = index.ids.get(item);
-      double lnS = id == null ? Double.NaN : lnSupport[id];
+      Integer id = index.id(item);
+      double lnS = id == null ? Double.NaN : priors.lnSupportOf(id);
       if (!Double.isNaN(lnS)) {
         maxBasketSupport = Math.max(maxBasketSupport, Math.exp(lnS));
       }
@@ -314,7 +311,7 @@ public final class Suggester {
       if (best.size() >= request.count() && prior < sc.scores[best.peek()]) {
         return; // sorted by prior: no later item can enter
       }
-      if (sc.find(id) >= 0 || Collections.binarySearch(request.basket(), names[id]) >= 0) {
+      if (sc.find(id) >= 0 || Collections.binarySearch(request.basket(), index.name(id)) >= 0) {
         continue; // a candidate already scored, or a basket item (the basket is sorted)
       }
       double support = Math.exp(prior);

@@ -120,7 +120,23 @@ public final class PairMeasures {
 
   /** The measures that read E, the pair count expected under a null model. */
   private record NullModelMeasures(double lift, double liftLower, double liftUpper, double shrunkLift, double leverage,
-      double convictionAB, double convictionBA, double gSquared, double signedRootGSquared, double gSquaredPValue) {
+      double convictionAB, double convictionBA, double gSquared, double signedRootGSquared) {
+
+    /**
+     * P(χ²₁ ≥ G²), computed when read (a complementary error function: few readers ask for it, and a table's
+     * readers compute the measures of many pairs to rank them).
+     */
+    double gSquaredPValue() {
+      return TwoByTwoTable.chiSquareOneDfPValue(gSquared);
+    }
+
+    @Override
+    public String toString() {
+      return "NullModelMeasures[lift=" + lift + ", liftLower=" + liftLower + ", liftUpper=" + liftUpper
+          + ", shrunkLift=" + shrunkLift + ", leverage=" + leverage + ", convictionAB=" + convictionAB
+          + ", convictionBA=" + convictionBA + ", gSquared=" + gSquared + ", signedRootGSquared=" + signedRootGSquared
+          + ", gSquaredPValue=" + gSquaredPValue() + "]";
+    }
 
     boolean repelling() {
       return liftUpper < 1.0;
@@ -148,8 +164,7 @@ public final class PairMeasures {
     double gSquared = table.gSquared();
     unadjusted = new NullModelMeasures(lift, interval.lower(), interval.upper(),
         (point.countAB() + prior) / (point.expectedCountAB() + prior), support - supportA * supportB,
-        conviction(confidenceAB, supportB), conviction(confidenceBA, supportA), gSquared, table.signedRootGSquared(),
-        TwoByTwoTable.chiSquareOneDfPValue(gSquared));
+        conviction(confidenceAB, supportB), conviction(confidenceBA, supportA), gSquared, table.signedRoot(gSquared));
     chiSquare = table.chiSquare();
 
     Estimate expected = counts.expectedCountAB();
@@ -205,7 +220,7 @@ public final class PairMeasures {
     return new NullModelMeasures(lift, interval.lower(), interval.upper(), shrunk,
         (observed - expected) / baskets, conviction(observed / point.countA(), expected / point.countA()),
         conviction(observed / point.countB(), expected / point.countB()), gSquared,
-        observed < expected ? -root : root, TwoByTwoTable.chiSquareOneDfPValue(gSquared));
+        observed < expected ? -root : root);
   }
 
   /**
