@@ -88,28 +88,18 @@ public final class PairTables {
     SizeStrata strata = SizeStrata.of(engine, state);
     SizeStrata.ItemClasses[] classesByBucket = strata == null ? null : new SizeStrata.ItemClasses[buckets.count];
     LiveSlots live = state.isWindow() ? LiveSlots.of(state) : null;
-    // with memory, a window is read pane by pane over all keys; the oracle (no memory) reads key by key
-    boolean byPane = live != null && memory != null;
-    Estimate[] itemCounts = byPane ? Counts.trackedInWindow(engine, items, state, memory.items, live) : null;
-    double[] known = byPane && strata != null ? Counts.knownByClassInWindow(engine, state, live) : null;
-    int classes = items.classCount;
     for (int slot = 0; slot < items.size(); slot++) {
-      Estimate count = byPane ? itemCounts[slot]
-          : Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch, live);
+      Estimate count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch, live);
       itemByBucket[slot] = count;
       if (strata != null) {
-        double[] byClass = known == null ? Counts.knownByClass(engine, state, slot, live)
-            : Arrays.copyOfRange(known, slot * classes, (slot + 1) * classes);
-        classesByBucket[slot] = strata.item(byClass, count);
+        classesByBucket[slot] = strata.item(Counts.knownByClass(engine, state, slot, live), count);
       }
     }
     TrackedTable pairs = engine.pairs;
     Estimate[] countAB = new Estimate[pairs.size()];
     double minPairCount = shared.options.minPairCount();
-    Estimate[] pairCounts = byPane ? Counts.trackedInWindow(engine, pairs, state, memory.pairs, live) : null;
     for (int slot = 0; slot < pairs.size(); slot++) {
-      Estimate count = byPane ? pairCounts[slot]
-          : Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch, live);
+      Estimate count = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch, live);
       if (count.upper() < minPairCount || count.upper() <= 0) {
         continue;
       }
