@@ -52,6 +52,16 @@ final class LiveSlots {
     return new LiveSlots(state);
   }
 
+  /** The window's oldest live pane (Long.MIN_VALUE before its first basket). */
+  long oldestPane() {
+    return oldestPane;
+  }
+
+  /** The newest late stamp among the panes older than the newest: the closed panes' ({@code lateStampBefore}). */
+  long newestLateStamp() {
+    return newestLate == null ? state.lateStampBefore(Long.MIN_VALUE) : newestLate[state.paneCount - 1];
+  }
+
   /** {@link HorizonState#lateStampBefore(long)}, from a table read once. */
   long lateStampBefore(long pane) {
     if (newestLate == null) {

@@ -88,18 +88,35 @@ public final class PairTables {
     SizeStrata strata = SizeStrata.of(engine, state);
     SizeStrata.ItemClasses[] classesByBucket = strata == null ? null : new SizeStrata.ItemClasses[buckets.count];
     LiveSlots live = state.isWindow() ? LiveSlots.of(state) : null;
+    // with memory, a settled key's window count is its kept closed panes' exact sum plus the newest pane's
+    boolean settledSums = memory != null && live != null && live.count > 0;
     for (int slot = 0; slot < items.size(); slot++) {
-      Estimate count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch, live);
+      Estimate count;
+      double[] known;
+      if (settledSums && ClosedExactSums.settled(live, admittedPane(items, slot, state))) {
+        known = new double[items.classCount];
+        double sum = memory.settledItems.count(state, live, items, slot, known);
+        count = new Estimate(sum, sum, sum);
+      } else {
+        count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch, live);
+        known = strata == null ? null : Counts.knownByClass(engine, state, slot, live);
+      }
       itemByBucket[slot] = count;
       if (strata != null) {
-        classesByBucket[slot] = strata.item(Counts.knownByClass(engine, state, slot, live), count);
+        classesByBucket[slot] = strata.item(known, count);
       }
     }
     TrackedTable pairs = engine.pairs;
     Estimate[] countAB = new Estimate[pairs.size()];
     double minPairCount = shared.options.minPairCount();
     for (int slot = 0; slot < pairs.size(); slot++) {
-      Estimate count = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch, live);
+      Estimate count;
+      if (settledSums && ClosedExactSums.settled(live, admittedPane(pairs, slot, state))) {
+        double sum = memory.settledPairs.count(state, live, pairs, slot, null);
+        count = new Estimate(sum, sum, sum);
+      } else {
+        count = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch, live);
+      }
       if (count.upper() < minPairCount || count.upper() <= 0) {
         continue;
       }
@@ -110,6 +127,11 @@ public final class PairTables {
     long halfLife = state.isWindow() ? 0L : state.spec.halfLifeMillis();
     return HorizonTable.ofRows(state.spec.name(), baskets, halfLife, new SnapshotRows(shared, state.spec.name(),
         baskets, countAB, itemByBucket, strata, classesByBucket, memory == null ? null : memory.lastOrder[state.index]));
+  }
+
+  /** A tracked key's admission pane in window {@code state} (Long.MIN_VALUE: counted exactly from the start). */
+  private static long admittedPane(TrackedTable table, int slot, HorizonState state) {
+    return table.admissionPane[slot * table.windowCount + state.kindOrdinal];
   }
 
   /** An untracked item's count in a horizon, read from the sketches once per bucket. */
