@@ -60,14 +60,10 @@ final class Counts {
    */
   static Estimate tracked(PairEngine engine, TrackedTable table, int slot, HorizonState state, ClosedPaneSums closed,
       double[] scratch, LiveSlots live) {
-    double bias = table.admissionBias[slot * table.horizonCount + state.index];
     if (!state.isWindow()) {
-      double scale = state.scaleAt(engine.watermarkMillis);
-      double upper = table.decays[table.decayIndex(slot, state.kindOrdinal)];
-      double lower = Math.max(0, upper - table.admissionError[slot * table.decayCount + state.kindOrdinal]);
-      double value = Math.max(lower, upper - bias);
-      return new Estimate(value / scale, lower / scale, upper / scale);
+      return trackedInDecay(table, slot, state, state.scaleAt(engine.watermarkMillis));
     }
+    double bias = table.admissionBias[slot * table.horizonCount + state.index];
     long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
     boolean pair = table == engine.pairs;
     CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
@@ -103,6 +99,19 @@ final class Counts {
     }
     lower = Math.min(lower, upper);
     return new Estimate(Math.min(upper, Math.max(lower, value)), lower, upper);
+  }
+
+  /**
+   * A tracked key's count in decay {@code state}, whose weight at the watermark is {@code scale}
+   * ({@code state.scaleAt(watermark)}, computed once per refresh): the estimate at admission plus exact counts since,
+   * less the error recorded at admission.
+   */
+  static Estimate trackedInDecay(TrackedTable table, int slot, HorizonState state, double scale) {
+    double bias = table.admissionBias[slot * table.horizonCount + state.index];
+    double upper = table.decays[table.decayIndex(slot, state.kindOrdinal)];
+    double lower = Math.max(0, upper - table.admissionError[slot * table.decayCount + state.kindOrdinal]);
+    double value = Math.max(lower, upper - bias);
+    return new Estimate(value / scale, lower / scale, upper / scale);
   }
 
   /**
@@ -212,16 +221,19 @@ final class Counts {
    * class.
    */
   static double[] knownByClass(PairEngine engine, HorizonState state, int slot) {
-    return knownByClass(engine, state, slot, state.isWindow() ? LiveSlots.of(state) : null);
+    return knownByClass(engine, state, slot, state.isWindow() ? LiveSlots.of(state) : null,
+        state.scaleAt(engine.watermarkMillis));
   }
 
-  /** As {@link #knownByClass(PairEngine, HorizonState, int)}, with a window's live slots read once per refresh. */
-  static double[] knownByClass(PairEngine engine, HorizonState state, int slot, LiveSlots live) {
+  /**
+   * As {@link #knownByClass(PairEngine, HorizonState, int)}, with a window's live slots and a decay's weight at the
+   * watermark ({@code scale}) read once per refresh.
+   */
+  static double[] knownByClass(PairEngine engine, HorizonState state, int slot, LiveSlots live, double scale) {
     TrackedTable table = engine.items;
     int classes = table.classCount;
     double[] known = new double[classes];
     if (!state.isWindow()) {
-      double scale = state.scaleAt(engine.watermarkMillis);
       for (int c = 0; c < classes; c++) {
         known[c] = table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, c)] / scale;
       }

@@ -90,6 +90,7 @@ public final class PairTables {
     LiveSlots live = state.isWindow() ? LiveSlots.of(state) : null;
     // with memory, a settled key's window count is its kept closed panes' exact sum plus the newest pane's
     boolean settledSums = memory != null && live != null && live.count > 0;
+    double scale = state.scaleAt(engine.watermarkMillis); // a decay's weight at the watermark, once per refresh
     for (int slot = 0; slot < items.size(); slot++) {
       Estimate count;
       double[] known;
@@ -98,8 +99,9 @@ public final class PairTables {
         double sum = memory.settledItems.count(state, live, items, slot, known);
         count = new Estimate(sum, sum, sum);
       } else {
-        count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch, live);
-        known = strata == null ? null : Counts.knownByClass(engine, state, slot, live);
+        count = live == null ? Counts.trackedInDecay(items, slot, state, scale)
+            : Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch, live);
+        known = strata == null ? null : Counts.knownByClass(engine, state, slot, live, scale);
       }
       itemByBucket[slot] = count;
       if (strata != null) {
@@ -115,7 +117,8 @@ public final class PairTables {
         double sum = memory.settledPairs.count(state, live, pairs, slot, null);
         count = new Estimate(sum, sum, sum);
       } else {
-        count = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch, live);
+        count = live == null ? Counts.trackedInDecay(pairs, slot, state, scale)
+            : Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch, live);
       }
       if (count.upper() < minPairCount || count.upper() <= 0) {
         continue;
