@@ -52,6 +52,8 @@ final class ShortScale {
     /** The pair as its row lists it at the last pass. */
     String itemA;
     String itemB;
+    /** Whether {@link #itemA} is the key's first item ({@code itemA.compareTo(itemB) <= 0}). */
+    boolean aFirst;
     long seenPass;
     long startMillis;
     long trackedSinceMillis;
@@ -106,10 +108,12 @@ final class ShortScale {
       String itemB = recent.itemB(row);
       long since = recent.trackedSinceMillis(row);
       Cells c = row < previous.length ? previous[row] : null;
-      if (c == null || c.trackedSinceMillis != since || !c.itemA.equals(itemA) || !c.itemB.equals(itemB)) {
+      boolean sameRow = c != null && c.trackedSinceMillis == since && c.itemA.equals(itemA) && c.itemB.equals(itemB);
+      if (!sameRow) {
         c = cells.get(PairKey.of(itemA, itemB)); // the pair may have moved to another row
       }
-      boolean aFirst = itemA.compareTo(itemB) <= 0;
+      // the row's orientation, compared once per pair and row (the names' bytes are scattered over the heap)
+      boolean aFirst = sameRow ? c.aFirst : itemA.compareTo(itemB) <= 0;
       double a = (aFirst ? recent.countA(row) : recent.countB(row)).value();
       double b = (aFirst ? recent.countB(row) : recent.countA(row)).value();
       double ab = recent.countAB(row).value();
@@ -130,6 +134,7 @@ final class ShortScale {
       c.recentAB = ab;
       c.itemA = itemA;
       c.itemB = itemB;
+      c.aFirst = aFirst;
       next[row] = c;
     }
     passes++;

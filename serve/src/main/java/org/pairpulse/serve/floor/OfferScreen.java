@@ -1,12 +1,11 @@
 package org.pairpulse.serve.floor;
 
-import java.util.Collections;
-import java.util.IdentityHashMap;
-import java.util.List;
+import java.util.Arrays;
+import java.util.BitSet;
 import java.util.Map;
-import java.util.Set;
 import java.util.concurrent.ConcurrentHashMap;
 import org.pairpulse.sketch.stats.Multiplicity;
+import org.pairpulse.sketch.table.HorizonTable;
 import org.pairpulse.sketch.table.PairStats;
 
 /**
@@ -23,25 +22,50 @@ import org.pairpulse.sketch.table.PairStats;
  * items.
  *
  * <p>Built once per table version and rate ({@link FlooredTable#derived}), each horizon on first read; immutable
- * as seen from outside.
+ * as seen from outside. A screen reads each published row's p-value alone
+ * ({@link HorizonTable#associationPValue(int)}: counts and E, none of the other measures) and neither sorts the
+ * horizon nor computes its rows' statistics: which pairs pass depends only on the p-values (the step's threshold
+ * is a function of their multiset), so the pass set is the one a step over the horizon's sorted list of
+ * statistics gives ({@code OfferScreenTest} checks it against that step).
  */
 public final class OfferScreen {
   private final FlooredTable table;
   private final double falseDiscoveryRate;
   private final Map<String, Horizon> horizons = new ConcurrentHashMap<>();
 
-  /**
-   * One horizon's screen.
-   *
-   * @param screened pairs tested (the published pairs of the horizon)
-   * @param passed pairs that pass
-   */
-  public record Horizon(int screened, int passed, Set<PairStats> significant) {
-    static final Horizon EMPTY = new Horizon(0, 0, Set.of());
+  /** One horizon's screen: which of its published rows pass. */
+  public static final class Horizon {
+    static final Horizon EMPTY = new Horizon(null, 0, 0, new BitSet());
 
-    /** Whether {@code pair} (a published pair of this horizon, by identity) passes. */
+    private final HorizonTable held;
+    private final int screened;
+    private final int passed;
+    private final BitSet passingRows;
+
+    private Horizon(HorizonTable held, int screened, int passed, BitSet passingRows) {
+      this.held = held;
+      this.screened = screened;
+      this.passed = passed;
+      this.passingRows = passingRows;
+    }
+
+    /** Pairs tested (the published pairs of the horizon). */
+    public int screened() {
+      return screened;
+    }
+
+    /** Pairs that pass. */
+    public int passed() {
+      return passed;
+    }
+
+    /** Whether {@code pair} (a published pair of this horizon and table version, by identity) passes. */
     public boolean passes(PairStats pair) {
-      return significant.contains(pair);
+      if (passed == 0) {
+        return false;
+      }
+      int row = held.rowOf(pair.itemA(), pair.itemB());
+      return row >= 0 && passingRows.get(row) && held.row(row) == pair;
     }
   }
 
@@ -50,21 +74,28 @@ public final class OfferScreen {
     this.falseDiscoveryRate = falseDiscoveryRate;
   }
 
-  /** The screen of one horizon: every published pair's p-value (the horizon's measures), one step. */
+  /** The screen of one horizon: every published row's p-value, one step. */
   private Horizon screen(String name) {
-    List<PairStats> pairs = table.pairs(name);
-    double[] p = new double[pairs.size()];
-    for (int i = 0; i < p.length; i++) {
-      p[i] = pairs.get(i).measures().associationPValue();
-    }
-    boolean[] pass = Multiplicity.benjaminiHochberg(p, falseDiscoveryRate);
-    Set<PairStats> significant = Collections.newSetFromMap(new IdentityHashMap<>());
-    for (int i = 0; i < p.length; i++) {
-      if (pass[i]) {
-        significant.add(pairs.get(i));
+    HorizonTable held = table.table().horizon(name).orElseThrow();
+    int rowCount = held.rowCount();
+    int[] rows = new int[rowCount];
+    double[] p = new double[rowCount];
+    int n = 0;
+    for (int row = 0; row < rowCount; row++) {
+      if (table.publishes(name, row)) {
+        rows[n] = row;
+        p[n] = held.associationPValue(row);
+        n++;
       }
     }
-    return new Horizon(p.length, significant.size(), Collections.unmodifiableSet(significant));
+    boolean[] pass = Multiplicity.benjaminiHochberg(Arrays.copyOf(p, n), falseDiscoveryRate);
+    BitSet passing = new BitSet(rowCount);
+    for (int i = 0; i < n; i++) {
+      if (pass[i]) {
+        passing.set(rows[i]);
+      }
+    }
+    return new Horizon(held, n, passing.cardinality(), passing);
   }
 
   /** The screen of {@code table} at the default rate, built on first use and shared. */

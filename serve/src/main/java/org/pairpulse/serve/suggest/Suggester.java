@@ -182,7 +182,6 @@ public final class Suggester {
     if (h == null) {
       return new SuggestionResult(basket, basket, request.horizon(), measure.wireName(), table.version(), List.of());
     }
-    double[] phi = h.contributions(measure);
     Scratch sc = SCRATCH.get();
     if (sc.basket.length < basket.size()) {
       sc.basket = new int[basket.size()];
@@ -190,16 +189,17 @@ public final class Suggester {
     int known = 0;
     int entries = 0;
     for (String item : basket) {
-      Integer id = index.ids.get(item);
-      if (id == null || h.start[id] == h.start[id + 1]) {
+      int id = h.idWithEntries(item);
+      if (id < 0) {
         unknown.add(item);
         continue;
       }
       sc.basket[known++] = id;
-      entries += h.start[id + 1] - h.start[id];
+      entries += h.entries(id).size();
     }
     boolean posterior = request.ranking() == SuggestionRanking.POSTERIOR;
-    sc.ensure(entries + basket.size() + (posterior ? h.popular.length : 0));
+    SuggestIndex.Priors priors = posterior ? h.priors() : null;
+    sc.ensure(entries + basket.size() + (posterior ? priors.popular().length : 0));
     try {
       for (int b = 0; b < known; b++) {
         sc.flags[sc.slot(sc.basket[b])] = -1; // basket items are never candidates
@@ -209,39 +209,41 @@ public final class Suggester {
       double minSupport = request.minSupport();
       for (int b = 0; b < known; b++) {
         int id = sc.basket[b];
-        for (int e = h.start[id]; e < h.start[id + 1]; e++) {
+        SuggestIndex.Entries en = h.entries(id);
+        double[] phi = en.contributions(measure);
+        boolean[] significant = posterior ? null : h.significant(id);
+        for (int e = 0; e < en.size(); e++) {
           double contribution = phi[e];
           if (Double.isNaN(contribution)) {
             continue;
           }
-          int slot = sc.slot(h.other[e]);
+          int slot = sc.slot(en.other[e]);
           byte f = sc.flags[slot];
           if (f < 0) {
             continue;
           }
           sc.scores[slot] += contribution;
           f |= SEEN;
-          if (h.bundle[e]) {
+          if (en.bundle[e]) {
             f |= BUNDLE;
           }
-          double confidence = h.confidence[e];
-          if (confidence >= minConfidence && confidence <= maxConfidence && h.support[e] >= minSupport
-              && (posterior || h.significant[e])) {
+          double confidence = en.confidence[e];
+          if (confidence >= minConfidence && confidence <= maxConfidence && en.support[e] >= minSupport
+              && (posterior || significant[e])) {
             f |= ELIGIBLE;
           }
           sc.flags[slot] = f;
         }
       }
       if (posterior) {
-        addPriors(h, sc);
+        addPriors(priors, sc);
       }
       // best `count` eligible candidates: score, then id string ascending
-      String[] names = index.names;
       int[] keys = sc.keys;
       double[] scores = sc.scores;
       Comparator<Integer> worstFirst = (x, y) -> {
         int byScore = Double.compare(scores[x], scores[y]);
-        return byScore != 0 ? byScore : names[keys[y]].compareTo(names[keys[x]]);
+        return byScore != 0 ? byScore : index.name(keys[y]).compareTo(index.name(keys[x]));
       };
       PriorityQueue<Integer> best = new PriorityQueue<>(request.count() + 1, worstFirst);
       boolean bundles = request.includeBundles();
@@ -257,13 +259,13 @@ public final class Suggester {
         }
       }
       if (posterior) {
-        addIndependent(request, index, h, sc, best);
+        addIndependent(request, index, priors, sc, best);
       }
       List<Integer> ranked = new ArrayList<>(best);
       ranked.sort(worstFirst.reversed());
       List<Suggestion> suggestions = new ArrayList<>(ranked.size());
       for (int slot : ranked) {
-        suggestions.add(new Suggestion(names[keys[slot]], scores[slot], evidence(request, h, phi, sc, known, keys[slot])));
+        suggestions.add(new Suggestion(index.name(keys[slot]), scores[slot], evidence(request, h, sc, known, keys[slot])));
       }
       return new SuggestionResult(basket, unknown, request.horizon(), measure.wireName(), table.version(), suggestions);
     } finally {
@@ -272,13 +274,13 @@ public final class Suggester {
   }
 
   /** Posterior ranking: adds ln s(c) to every candidate reached through a pair; without a published s(c) it is out. */
-  private static void addPriors(SuggestIndex.Horizon h, Scratch sc) {
+  private static void addPriors(SuggestIndex.Priors priors, Scratch sc) {
     for (int i = 0; i < sc.usedCount; i++) {
       int slot = sc.used[i];
       if (sc.flags[slot] < 0) {
         continue; // a basket item
       }
-      double prior = h.lnSupport[sc.keys[slot]];
+      double prior = priors.lnSupportOf(sc.keys[slot]);
       if (Double.isNaN(prior)) {
         sc.flags[slot] &= ~ELIGIBLE;
       } else {
@@ -293,23 +295,23 @@ public final class Suggester {
    * item's rules x ⇒ c have confidence s(c) and support s(x)·s(c) under independence; it is eligible when s(c) lies in
    * the band and the largest s(x)·s(c) over the basket reaches the support floor.
    */
-  private static void addIndependent(SuggestionRequest request, SuggestIndex index, SuggestIndex.Horizon h, Scratch sc,
-      PriorityQueue<Integer> best) {
-    String[] names = index.names;
+  private static void addIndependent(SuggestionRequest request, SuggestIndex index, SuggestIndex.Priors priors,
+      Scratch sc, PriorityQueue<Integer> best) {
+    double[] lnSupport = priors.lnSupport();
     double maxBasketSupport = 0;
     for (String item : request.basket()) {
-      Integer id = index.ids.get(item);
-      double lnS = id == null ? Double.NaN : h.lnSupport[id];
+      Integer id = index.id(item);
+      double lnS = id == null ? Double.NaN : priors.lnSupportOf(id);
       if (!Double.isNaN(lnS)) {
         maxBasketSupport = Math.max(maxBasketSupport, Math.exp(lnS));
       }
     }
-    for (int id : h.popular) {
-      double prior = h.lnSupport[id];
+    for (int id : priors.popular()) {
+      double prior = lnSupport[id];
       if (best.size() >= request.count() && prior < sc.scores[best.peek()]) {
         return; // sorted by prior: no later item can enter
       }
-      if (sc.find(id) >= 0 || Collections.binarySearch(request.basket(), names[id]) >= 0) {
+      if (sc.find(id) >= 0 || Collections.binarySearch(request.basket(), index.name(id)) >= 0) {
         continue; // a candidate already scored, or a basket item (the basket is sorted)
       }
       double support = Math.exp(prior);
@@ -328,23 +330,24 @@ public final class Suggester {
   }
 
   /** The evidence of candidate {@code id}: every basket item whose row holds it. */
-  private static List<Evidence> evidence(SuggestionRequest request, SuggestIndex.Horizon h, double[] phi, Scratch sc,
-      int known, int id) {
+  private static List<Evidence> evidence(SuggestionRequest request, SuggestIndex.Horizon h, Scratch sc, int known,
+      int id) {
     List<Evidence> list = new ArrayList<>(known);
     Measure measure = request.measure();
     for (int b = 0; b < known; b++) {
-      int basketId = sc.basket[b];
-      for (int e = h.start[basketId]; e < h.start[basketId + 1]; e++) {
-        if (h.other[e] != id || Double.isNaN(phi[e])) {
+      SuggestIndex.Entries en = h.entries(sc.basket[b]);
+      double[] phi = en.contributions(measure);
+      for (int e = 0; e < en.size(); e++) {
+        if (en.other[e] != id || Double.isNaN(phi[e])) {
           continue;
         }
-        PairStats pair = h.stats[e];
+        PairStats pair = en.stats[e];
         PairMeasures m = pair.measures();
-        boolean forward = h.forward[e];
+        boolean forward = en.forward[e];
         String basketItem = forward ? pair.itemA() : pair.itemB();
-        double confidence = h.confidence[e];
+        double confidence = en.confidence[e];
         boolean inBand = confidence >= request.minConfidence() && confidence <= request.maxConfidence()
-            && h.support[e] >= request.minSupport();
+            && en.support[e] >= request.minSupport();
         list.add(new Evidence(basketItem, pair.horizon(), measure.wireName(), directed(measure, m, forward), phi[e], inBand,
             m.lift(), m.liftLower(), m.liftUpper(), m.shrunkLift(), confidence, m.support(), pair.counts().countAB().value()));
         break;

@@ -49,10 +49,11 @@ final class ClosedPaneSums {
    * Writes {upper, lower, value} of {@code key}'s panes before {@code admittedPane} in {@code state} into
    * {@code out}, from the cache when it is current.
    */
-  void read(HorizonState state, CountMinSketch[] sketches, int slot, long key, long admittedPane, double[] out) {
+  void read(HorizonState state, LiveSlots live, CountMinSketch[] sketches, int slot, long key, long admittedPane,
+      double[] out) {
     int cell = state.kindOrdinal * capacity + slot;
     if (generations[cell] == state.closedPaneGeneration && keys[cell] == key && admittedPanes[cell] == admittedPane
-        && (lateStamps[cell] == state.lateClock || state.lateStampBefore(admittedPane) <= lateStamps[cell])) {
+        && (lateStamps[cell] == state.lateClock || live.lateStampBefore(admittedPane) <= lateStamps[cell])) {
       hits++;
       out[0] = upper[cell];
       out[1] = lower[cell];
@@ -60,7 +61,7 @@ final class ClosedPaneSums {
       return;
     }
     misses++;
-    Counts.preAdmission(state, sketches, key, admittedPane, out);
+    Counts.preAdmission(live, sketches, key, admittedPane, out);
     generations[cell] = state.closedPaneGeneration;
     lateStamps[cell] = state.lateClock;
     keys[cell] = key;

@@ -51,14 +51,19 @@ final class Counts {
    */
   static Estimate tracked(PairEngine engine, TrackedTable table, int slot, HorizonState state, ClosedPaneSums closed,
       double[] scratch) {
-    double bias = table.admissionBias[slot * table.horizonCount + state.index];
+    return tracked(engine, table, slot, state, closed, scratch, state.isWindow() ? LiveSlots.of(state) : null);
+  }
+
+  /**
+   * As {@link #tracked(PairEngine, TrackedTable, int, HorizonState, ClosedPaneSums, double[])}, with a window's live
+   * slots read once for every key of a refresh ({@code live}, {@link LiveSlots#of}; ignored for a decay).
+   */
+  static Estimate tracked(PairEngine engine, TrackedTable table, int slot, HorizonState state, ClosedPaneSums closed,
+      double[] scratch, LiveSlots live) {
     if (!state.isWindow()) {
-      double scale = state.scaleAt(engine.watermarkMillis);
-      double upper = table.decays[table.decayIndex(slot, state.kindOrdinal)];
-      double lower = Math.max(0, upper - table.admissionError[slot * table.decayCount + state.kindOrdinal]);
-      double value = Math.max(lower, upper - bias);
-      return new Estimate(value / scale, lower / scale, upper / scale);
+      return trackedInDecay(table, slot, state, state.scaleAt(engine.watermarkMillis));
     }
+    double bias = table.admissionBias[slot * table.horizonCount + state.index];
     long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
     boolean pair = table == engine.pairs;
     CountMinSketch[] sketches = pair ? state.pairSketch : state.itemSketch;
@@ -68,19 +73,17 @@ final class Counts {
     double value = 0;
     if (admittedPane != Long.MIN_VALUE) { // before admission: still in the panes' sketches
       if (closed != null) {
-        closed.read(state, sketches, slot, key, admittedPane, scratch);
+        closed.read(state, live, sketches, slot, key, admittedPane, scratch);
       } else {
-        preAdmission(state, sketches, key, admittedPane, scratch);
+        preAdmission(live, sketches, key, admittedPane, scratch);
       }
       upper = scratch[0];
       lower = scratch[1];
       value = scratch[2];
     }
-    for (int p = 0; p < state.paneCount; p++) {
-      if (!state.slotLive(p)) {
-        continue;
-      }
-      long pane = state.paneOfSlot[p];
+    for (int i = 0; i < live.count; i++) {
+      int p = live.slots[i];
+      long pane = live.panes[i];
       if (admittedPane == Long.MIN_VALUE || pane > admittedPane) { // exact since admission
         double count = table.panes[table.paneIndex(slot, state.paneCellOffset + p)];
         upper += count;
@@ -99,16 +102,30 @@ final class Counts {
   }
 
   /**
+   * A tracked key's count in decay {@code state}, whose weight at the watermark is {@code scale}
+   * ({@code state.scaleAt(watermark)}, computed once per refresh): the estimate at admission plus exact counts since,
+   * less the error recorded at admission.
+   */
+  static Estimate trackedInDecay(TrackedTable table, int slot, HorizonState state, double scale) {
+    double bias = table.admissionBias[slot * table.horizonCount + state.index];
+    double upper = table.decays[table.decayIndex(slot, state.kindOrdinal)];
+    double lower = Math.max(0, upper - table.admissionError[slot * table.decayCount + state.kindOrdinal]);
+    double value = Math.max(lower, upper - bias);
+    return new Estimate(value / scale, lower / scale, upper / scale);
+  }
+
+  /**
    * {upper, lower, value} summed over the live panes of window {@code state} older than {@code admittedPane}, in
    * ring order, into {@code out}: the estimate, {@code max(0, estimate − ε·W)} and the debiased estimate of each.
    * These panes are closed; see {@link ClosedPaneSums}.
    */
-  static void preAdmission(HorizonState state, CountMinSketch[] sketches, long key, long admittedPane, double[] out) {
+  static void preAdmission(LiveSlots live, CountMinSketch[] sketches, long key, long admittedPane, double[] out) {
     double upper = 0;
     double lower = 0;
     double value = 0;
-    for (int p = 0; p < state.paneCount; p++) {
-      if (state.slotLive(p) && state.paneOfSlot[p] < admittedPane) {
+    for (int i = 0; i < live.count; i++) {
+      int p = live.slots[i];
+      if (live.panes[i] < admittedPane) {
         double estimate = sketches[p].estimate(key);
         upper += estimate;
         lower += Math.max(0, estimate - sketches[p].maxError());
@@ -204,19 +221,28 @@ final class Counts {
    * class.
    */
   static double[] knownByClass(PairEngine engine, HorizonState state, int slot) {
+    return knownByClass(engine, state, slot, state.isWindow() ? LiveSlots.of(state) : null,
+        state.scaleAt(engine.watermarkMillis));
+  }
+
+  /**
+   * As {@link #knownByClass(PairEngine, HorizonState, int)}, with a window's live slots and a decay's weight at the
+   * watermark ({@code scale}) read once per refresh.
+   */
+  static double[] knownByClass(PairEngine engine, HorizonState state, int slot, LiveSlots live, double scale) {
     TrackedTable table = engine.items;
     int classes = table.classCount;
     double[] known = new double[classes];
     if (!state.isWindow()) {
-      double scale = state.scaleAt(engine.watermarkMillis);
       for (int c = 0; c < classes; c++) {
         known[c] = table.classDecays[table.classDecayIndex(slot, state.kindOrdinal, c)] / scale;
       }
       return known;
     }
     long admittedPane = table.admissionPane[slot * table.windowCount + state.kindOrdinal];
-    for (int p = 0; p < state.paneCount; p++) {
-      if (state.slotLive(p) && (admittedPane == Long.MIN_VALUE || state.paneOfSlot[p] >= admittedPane)) {
+    for (int i = 0; i < live.count; i++) {
+      int p = live.slots[i];
+      if (admittedPane == Long.MIN_VALUE || live.panes[i] >= admittedPane) {
         int from = table.classPaneIndex(slot, state.paneCellOffset + p, 0);
         for (int c = 0; c < classes; c++) {
           known[c] += table.classPanes[from + c];

@@ -87,18 +87,39 @@ public final class PairTables {
     Estimate[] itemByBucket = new Estimate[buckets.count];
     SizeStrata strata = SizeStrata.of(engine, state);
     SizeStrata.ItemClasses[] classesByBucket = strata == null ? null : new SizeStrata.ItemClasses[buckets.count];
+    LiveSlots live = state.isWindow() ? LiveSlots.of(state) : null;
+    // with memory, a settled key's window count is its kept closed panes' exact sum plus the newest pane's
+    boolean settledSums = memory != null && live != null && live.count > 0;
+    double scale = state.scaleAt(engine.watermarkMillis); // a decay's weight at the watermark, once per refresh
     for (int slot = 0; slot < items.size(); slot++) {
-      Estimate count = Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch);
+      Estimate count;
+      double[] known;
+      if (settledSums && ClosedExactSums.settled(live, admittedPane(items, slot, state))) {
+        known = new double[items.classCount];
+        double sum = memory.settledItems.count(state, live, items, slot, known);
+        count = new Estimate(sum, sum, sum);
+      } else {
+        count = live == null ? Counts.trackedInDecay(items, slot, state, scale)
+            : Counts.tracked(engine, items, slot, state, memory == null ? null : memory.items, scratch, live);
+        known = strata == null ? null : Counts.knownByClass(engine, state, slot, live, scale);
+      }
       itemByBucket[slot] = count;
       if (strata != null) {
-        classesByBucket[slot] = strata.item(Counts.knownByClass(engine, state, slot), count);
+        classesByBucket[slot] = strata.item(known, count);
       }
     }
     TrackedTable pairs = engine.pairs;
     Estimate[] countAB = new Estimate[pairs.size()];
     double minPairCount = shared.options.minPairCount();
     for (int slot = 0; slot < pairs.size(); slot++) {
-      Estimate count = Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch);
+      Estimate count;
+      if (settledSums && ClosedExactSums.settled(live, admittedPane(pairs, slot, state))) {
+        double sum = memory.settledPairs.count(state, live, pairs, slot, null);
+        count = new Estimate(sum, sum, sum);
+      } else {
+        count = live == null ? Counts.trackedInDecay(pairs, slot, state, scale)
+            : Counts.tracked(engine, pairs, slot, state, memory == null ? null : memory.pairs, scratch, live);
+      }
       if (count.upper() < minPairCount || count.upper() <= 0) {
         continue;
       }
@@ -109,6 +130,11 @@ public final class PairTables {
     long halfLife = state.isWindow() ? 0L : state.spec.halfLifeMillis();
     return HorizonTable.ofRows(state.spec.name(), baskets, halfLife, new SnapshotRows(shared, state.spec.name(),
         baskets, countAB, itemByBucket, strata, classesByBucket, memory == null ? null : memory.lastOrder[state.index]));
+  }
+
+  /** A tracked key's admission pane in window {@code state} (Long.MIN_VALUE: counted exactly from the start). */
+  private static long admittedPane(TrackedTable table, int slot, HorizonState state) {
+    return table.admissionPane[slot * table.windowCount + state.kindOrdinal];
   }
 
   /** An untracked item's count in a horizon, read from the sketches once per bucket. */
@@ -262,6 +288,18 @@ public final class PairTables {
 
     @Override
     public PairStats stats(int row) {
+      PairCounts counts = counts(row);
+      return new PairStats(shared.labelA[row], shared.labelB[row], horizon, counts,
+          PairMeasures.of(counts, shared.options.settings()), shared.admittedAtMillis[row]);
+    }
+
+    @Override
+    public double associationPValue(int row) {
+      return PairMeasures.associationPValue(counts(row));
+    }
+
+    /** A present row's counts with the size-adjusted expectation. */
+    private PairCounts counts(int row) {
       int bucketA = shared.buckets.bucketA[row];
       int bucketB = shared.buckets.bucketB[row];
       Estimate countA = itemByBucket[bucketA];
@@ -273,8 +311,7 @@ public final class PairTables {
             bucketB < shared.buckets.tracked ? classesByBucket[bucketB] : strata.untracked(countB));
         counts = counts.withStratifiedExpected(expectation.expected(), expectation.dispersion());
       }
-      return new PairStats(shared.labelA[row], shared.labelB[row], horizon, counts,
-          PairMeasures.of(counts, shared.options.settings()), shared.admittedAtMillis[row]);
+      return counts;
     }
 
     /** Best first by the sort measure (NaN last), ties by item names: strict, as rows hold distinct pairs. */

@@ -2,7 +2,8 @@ package org.pairpulse.sketch.engine;
 
 /**
  * What a refresh keeps for the next one, so that its cost follows what changed rather than the table's size: the
- * closed panes' sums of tracked items and pairs per window ({@link ClosedPaneSums}) and each horizon's last known
+ * closed panes' sums of tracked items and pairs per window ({@link ClosedPaneSums}, and {@link ClosedExactSums} for keys
+ * whose window count is exact) and each horizon's last known
  * order of pair slots (a table sorts on read; the next sort starts from the newest order a reader computed). Memory
  * only: it never changes a table, which equals one built without it
  * ({@link PairTables#build(PairEngine, PairTables.Options, RefreshMemory)} with null). Writer thread only (the last
@@ -11,6 +12,9 @@ package org.pairpulse.sketch.engine;
 final class RefreshMemory {
   final ClosedPaneSums items;
   final ClosedPaneSums pairs;
+  /** Settled tracked items' and pairs' exact counts in closed window panes ({@link ClosedExactSums}). */
+  final ClosedExactSums settledItems;
+  final ClosedExactSums settledPairs;
   /**
    * Per horizon index, the pair slots best first of the newest table a reader sorted (null before any), set by the
    * reader's thread when it sorts; the next sort of that horizon, in any table, starts from it. An {@code int[]}: no
@@ -26,6 +30,8 @@ final class RefreshMemory {
   RefreshMemory(int windowCount, int itemCapacity, int pairCapacity, int horizonCount) {
     this.items = new ClosedPaneSums(windowCount, itemCapacity);
     this.pairs = new ClosedPaneSums(windowCount, pairCapacity);
+    this.settledItems = new ClosedExactSums(windowCount, itemCapacity);
+    this.settledPairs = new ClosedExactSums(windowCount, pairCapacity);
     this.lastOrder = newOrders(horizonCount);
   }
 

@@ -120,7 +120,23 @@ public final class PairMeasures {
 
   /** The measures that read E, the pair count expected under a null model. */
   private record NullModelMeasures(double lift, double liftLower, double liftUpper, double shrunkLift, double leverage,
-      double convictionAB, double convictionBA, double gSquared, double signedRootGSquared, double gSquaredPValue) {
+      double convictionAB, double convictionBA, double gSquared, double signedRootGSquared) {
+
+    /**
+     * P(χ²₁ ≥ G²), computed when read (a complementary error function: few readers ask for it, and a table's
+     * readers compute the measures of many pairs to rank them).
+     */
+    double gSquaredPValue() {
+      return TwoByTwoTable.chiSquareOneDfPValue(gSquared);
+    }
+
+    @Override
+    public String toString() {
+      return "NullModelMeasures[lift=" + lift + ", liftLower=" + liftLower + ", liftUpper=" + liftUpper
+          + ", shrunkLift=" + shrunkLift + ", leverage=" + leverage + ", convictionAB=" + convictionAB
+          + ", convictionBA=" + convictionBA + ", gSquared=" + gSquared + ", signedRootGSquared=" + signedRootGSquared
+          + ", gSquaredPValue=" + gSquaredPValue() + "]";
+    }
 
     boolean repelling() {
       return liftUpper < 1.0;
@@ -148,22 +164,45 @@ public final class PairMeasures {
     double gSquared = table.gSquared();
     unadjusted = new NullModelMeasures(lift, interval.lower(), interval.upper(),
         (point.countAB() + prior) / (point.expectedCountAB() + prior), support - supportA * supportB,
-        conviction(confidenceAB, supportB), conviction(confidenceBA, supportA), gSquared, table.signedRootGSquared(),
-        TwoByTwoTable.chiSquareOneDfPValue(gSquared));
+        conviction(confidenceAB, supportB), conviction(confidenceBA, supportA), gSquared, table.signedRoot(gSquared));
     chiSquare = table.chiSquare();
 
     Estimate expected = counts.expectedCountAB();
     double expectedPoint = Math.min(expected.value(), Math.min(point.countA(), point.countB()));
     expectedCountAB = counts.isStratified() ? expectedPoint : point.expectedCountAB();
     adjusted = counts.isStratified() ? adjusted(counts, point, expectedPoint, settings) : unadjusted;
-    double upperA = Math.min(counts.countA().upper(), baskets);
-    double upperB = Math.min(counts.countB().upper(), baskets);
     // the tail (an incomplete beta function) is computed when asked: only the offer screen reads it, for one
     // horizon, while a refresh builds the measures of every pair in every horizon
-    // in effective baskets: a weighted pair count varies φ times as much as a count of baskets
-    double dispersion = counts.isStratified() ? counts.pairCountDispersion() : 1.0;
-    pValueCount = Math.min(counts.countAB().lower(), Math.min(upperA, upperB)) / dispersion;
-    pValueMean = expected.upper() / dispersion;
+    pValueCount = pValueCount(counts);
+    pValueMean = pValueMean(counts, expected);
+  }
+
+  /** The observed count {@link #associationPValue()} reads: n_ab's lower bound (≤ both n_a's upper), over φ. */
+  private static double pValueCount(PairCounts counts) {
+    double baskets = counts.baskets();
+    double upperA = Math.min(counts.countA().upper(), baskets);
+    double upperB = Math.min(counts.countB().upper(), baskets);
+    return Math.min(counts.countAB().lower(), Math.min(upperA, upperB)) / dispersion(counts);
+  }
+
+  /** The mean {@link #associationPValue()} reads: E's upper bound over φ. */
+  private static double pValueMean(PairCounts counts, Estimate expected) {
+    return expected.upper() / dispersion(counts);
+  }
+
+  /** φ: in effective baskets a weighted pair count varies φ times as much as a count of baskets (1 unstratified). */
+  private static double dispersion(PairCounts counts) {
+    return counts.isStratified() ? counts.pairCountDispersion() : 1.0;
+  }
+
+  /**
+   * {@link #associationPValue()} of {@code counts} without the other measures (bit for bit the value that
+   * {@code of(counts, settings).associationPValue()} returns for any settings: the test reads counts and E only). The
+   * offer screen needs every published pair's p-value but no other measure.
+   */
+  public static double associationPValue(PairCounts counts) {
+    return gammaPoissonUpperTail(pValueCount(counts), pValueMean(counts, counts.expectedCountAB()),
+        NULL_MODEL_TOLERANCE);
   }
 
   /** The size-adjusted measures: E from basket-size classes in place of n_a·n_b/N (see the class comment). */
@@ -181,7 +220,7 @@ public final class PairMeasures {
     return new NullModelMeasures(lift, interval.lower(), interval.upper(), shrunk,
         (observed - expected) / baskets, conviction(observed / point.countA(), expected / point.countA()),
         conviction(observed / point.countB(), expected / point.countB()), gSquared,
-        observed < expected ? -root : root, TwoByTwoTable.chiSquareOneDfPValue(gSquared));
+        observed < expected ? -root : root);
   }
 
   /**

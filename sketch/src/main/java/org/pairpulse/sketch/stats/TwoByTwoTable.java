@@ -70,7 +70,12 @@ record TwoByTwoTable(double k11, double k12, double k21, double k22) {
 
   /** √G², negative when k11 is below its independence expectation (k11·k22 &lt; k12·k21). */
   double signedRootGSquared() {
-    double root = Math.sqrt(gSquared());
+    return signedRoot(gSquared());
+  }
+
+  /** √{@code gSquared} (this table's G², computed once by the caller), signed as {@link #signedRootGSquared()}. */
+  double signedRoot(double gSquared) {
+    double root = Math.sqrt(gSquared);
     return crossDifference() < 0 ? -root : root;
   }
 

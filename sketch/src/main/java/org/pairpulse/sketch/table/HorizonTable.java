@@ -47,6 +47,14 @@ public final class HorizonTable {
     PairStats stats(int row);
 
     /**
+     * The association p-value of a present row ({@link org.pairpulse.sketch.stats.PairMeasures#associationPValue()}
+     * of {@link #stats}, bit for bit), without computing its other measures.
+     */
+    default double associationPValue(int row) {
+      return stats(row).measures().associationPValue();
+    }
+
+    /**
      * The table's order between two present rows whose statistics are {@code x} and {@code y}: negative when
      * {@code rowX} comes first. Strict: 0 only for the same row.
      */
@@ -184,6 +192,16 @@ public final class HorizonTable {
       }
     }
     return s;
+  }
+
+  /**
+   * The association p-value of a present row ({@code row(row).measures().associationPValue()}, bit for bit): read
+   * from the row's statistics when a reader computed them, else from its counts and E alone (no other measure is
+   * computed, nothing is kept).
+   */
+  public double associationPValue(int row) {
+    PairStats s = stats.get(row);
+    return s != null ? s.measures().associationPValue() : rows.associationPValue(row);
   }
 
   /** n_ab of a present row, without its measures. */

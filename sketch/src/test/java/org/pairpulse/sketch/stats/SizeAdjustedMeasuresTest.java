@@ -152,6 +152,36 @@ class SizeAdjustedMeasuresTest {
         0.0);
   }
 
+  /**
+   * The offer screen's p-value alone ({@link PairMeasures#associationPValue(PairCounts)}) is, bit for bit, the one
+   * the full measures give, on seeded counts with and without size classes, with wide and tight sketch bounds,
+   * counts above N and pairs above their items (which the measures clamp), and dispersion above 1.
+   */
+  @Test
+  void thePValueAloneEqualsTheFullMeasures() {
+    java.util.SplittableRandom random = new java.util.SplittableRandom(17);
+    for (int i = 0; i < 20_000; i++) {
+      double baskets = random.nextInt(5) == 0 ? 0 : 1 + random.nextDouble(100_000);
+      Estimate a = estimate(random, random.nextDouble(baskets * 1.1 + 1));
+      Estimate b = estimate(random, random.nextDouble(baskets * 1.1 + 1));
+      Estimate ab = estimate(random, random.nextDouble(Math.min(a.upper(), b.upper()) * 1.2 + 1));
+      PairCounts counts = new PairCounts(baskets, a, b, ab);
+      if (random.nextBoolean()) {
+        double e = random.nextDouble(a.value() * b.value() / Math.max(1, baskets) * 2 + 1);
+        counts = counts.withStratifiedExpected(estimate(random, e), 1 + random.nextDouble(3));
+      }
+      double full = PairMeasures.of(counts).associationPValue();
+      assertEquals(Double.doubleToRawLongBits(full), Double.doubleToRawLongBits(PairMeasures.associationPValue(counts)),
+          counts.toString());
+    }
+  }
+
+  private static Estimate estimate(java.util.SplittableRandom random, double value) {
+    double lower = random.nextBoolean() ? value : value * random.nextDouble();
+    double upper = random.nextBoolean() ? value : value * (1 + random.nextDouble());
+    return new Estimate(value, lower, upper);
+  }
+
   @Test
   void poissonUpperTailMatchesCommonsMath() {
     for (double mean : new double[] {0.5, 3, 25, 400}) {
